@@ -1,0 +1,27 @@
+#!/usr/bin/env node
+/** The `lagparity` command line. Library modules never import this file. */
+import { Command, CommanderError } from 'commander';
+import { registerBalance } from './balance-command.js';
+import { EXIT_BAD_INPUT } from './output.js';
+
+const program = new Command();
+program
+  .name('lagparity')
+  .description('Latency compensation numbers for online matches: fit hit probability against latency, balance lobbies, audit rule sets.')
+  .version('0.1.0')
+  .exitOverride()
+  .configureOutput({ writeErr: (text) => process.stderr.write(text) })
+  .addHelpText('after', '\nExit codes: 0 success; 1 a check failed (audit); 2 bad input.');
+
+registerBalance(program);
+
+try {
+  await program.parseAsync(process.argv);
+} catch (cause) {
+  if (cause instanceof CommanderError) {
+    process.exitCode = cause.exitCode === 0 ? 0 : EXIT_BAD_INPUT;
+  } else {
+    process.stderr.write(`lagparity: internal error: ${(cause as Error).message}\n`);
+    process.exitCode = EXIT_BAD_INPUT;
+  }
+}

@@ -1,0 +1,60 @@
+/**
+ * The lobby (`lagparity/lobby@1`): one match's players and their measured
+ * latencies, as a matchmaker sends it or an organiser keeps it on file.
+ */
+import { z } from 'zod';
+
+export const LOBBY_FORMAT = 'lagparity/lobby@1';
+
+/** Documented limits: a lobby holds at most this many players ... */
+export const MAX_PLAYERS = 1024;
+/** ... and one player at most this many latency samples. */
+export const MAX_LATENCY_SAMPLES = 4096;
+/** A latency above this (one minute) is not a network latency but a broken measurement. */
+export const MAX_LATENCY_MS = 60_000;
+
+const latencyValue = z
+  .number({ error: 'a latency in milliseconds (a finite number >= 0)' })
+  .refine(Number.isFinite, { error: 'a latency in milliseconds (a finite number >= 0)' })
+  .refine((value) => value >= 0 && value <= MAX_LATENCY_MS, { error: `a latency in milliseconds between 0 and ${MAX_LATENCY_MS}` });
+
+export const playerSchema = z
+  .object({
+    id: z.string().min(1).max(128),
+    team: z.string().min(1).max(128).optional(),
+    latency_ms: z.union([
+      latencyValue,
+      z.array(latencyValue).min(1, { error: 'at least one latency sample' }).max(MAX_LATENCY_SAMPLES, { error: `at most ${MAX_LATENCY_SAMPLES} latency samples per player` }),
+    ], { error: 'a latency in milliseconds, or a non-empty list of measured samples in milliseconds' }),
+  })
+  .strict();
+
+export const lobbyFileSchema = z
+  .object({
+    format: z.literal(LOBBY_FORMAT, { error: `the format tag "${LOBBY_FORMAT}"` }),
+    match_id: z.string().min(1).max(256),
+    attribute: z.enum(['hit_area', 'timing_window']).describe('What the scale multiplies: the target hit area (spatial) or the timing window width (temporal).'),
+    difficulty: z.union([z.number().refine(Number.isFinite), z.string().min(1)]),
+    players: z
+      .array(playerSchema)
+      .min(1, { error: 'at least one player' })
+      .max(MAX_PLAYERS, { error: `at most ${MAX_PLAYERS} players (the documented lobby limit)` }),
+  })
+  .strict()
+  .superRefine((lobby, context) => {
+    const seen = new Map<string, number>();
+    lobby.players.forEach((player, index) => {
+      const first = seen.get(player.id);
+      if (first !== undefined) {
+        context.addIssue({
+          code: 'custom',
+          path: ['players', index, 'id'],
+          message: `a player id used once in the lobby (also at players[${first}])`,
+          params: { code: 'duplicate_player' },
+        });
+      } else seen.set(player.id, index);
+    });
+  });
+
+export type LobbyFile = z.infer<typeof lobbyFileSchema>;
+export type LobbyPlayer = z.infer<typeof playerSchema>;

@@ -1,0 +1,172 @@
+/**
+ * Compiling a model file: validate once, precompute what every prediction
+ * needs, and hand back a branded object the solver trusts without checking
+ * again.
+ *
+ * Because no term is quadratic in latency or scale, at a fixed difficulty the
+ * linear predictor is
+ *
+ *     linearPredictor(latency, s) = (a0 + a1 latency) + (b0 + b1 latency) h(s)
+ *
+ * with h(s) = log s or s. `lineAt(difficulty)` returns those four numbers;
+ * the solver works from them alone.
+ */
+import { type Issue, type Result, at, error, fail, ok, show } from '../issues.js';
+import { type ModelFile, modelFileSchema } from '../formats/model-file.js';
+import { fromZodIssues } from '../formats/zod-issues.js';
+import { type Link, linkFor } from './links.js';
+import { type DesignColumn, type DifficultyCoding, checkTerms, designColumns, scaleForm } from './terms.js';
+
+declare const compiledBrand: unique symbol;
+
+/** The linear predictor at one difficulty, affine in latency and in the scale term. */
+export interface PredictorLine {
+  /** a0: intercept part at latency 0. */
+  readonly base: number;
+  /** a1: change of the intercept part per ms of latency. */
+  readonly basePerMs: number;
+  /** b0: coefficient of the scale term at latency 0. */
+  readonly scaleSlope: number;
+  /** b1: change of the scale term's coefficient per ms of latency. */
+  readonly scaleSlopePerMs: number;
+}
+
+export interface CompiledModel {
+  readonly [compiledBrand]: true;
+  readonly link: Link;
+  readonly scaleForm: 'log' | 'raw' | 'none';
+  readonly columns: readonly DesignColumn[];
+  readonly coefficients: Float64Array;
+  /** Row-major covariance of the coefficients. */
+  readonly covariance: Float64Array;
+  readonly difficulty: DifficultyCoding;
+  readonly training: ModelFile['training'];
+  readonly source: ModelFile;
+  /** The predictor line at a difficulty (a number or a level name), or an issue if the model has no such difficulty. */
+  lineAt(difficulty: number | string): Result<PredictorLine>;
+}
+
+/** Relative tolerance for the covariance symmetry check. */
+const SYMMETRY_TOLERANCE = 1e-8;
+
+/** Cholesky-based positive semi-definiteness check with a relative pivot tolerance. */
+function isPositiveSemiDefinite(matrix: Float64Array, size: number): boolean {
+  const lower = new Float64Array(size * size);
+  let largestDiagonal = 0;
+  for (let index = 0; index < size; index += 1) largestDiagonal = Math.max(largestDiagonal, Math.abs(matrix[index * size + index] ?? 0));
+  const tolerance = 1e-10 * Math.max(largestDiagonal, Number.MIN_VALUE);
+  for (let column = 0; column < size; column += 1) {
+    let pivot = matrix[column * size + column] ?? 0;
+    for (let inner = 0; inner < column; inner += 1) pivot -= (lower[column * size + inner] ?? 0) ** 2;
+    if (pivot < -tolerance) return false;
+    const root = pivot > tolerance ? Math.sqrt(pivot) : 0;
+    lower[column * size + column] = root;
+    for (let row = column + 1; row < size; row += 1) {
+      let sum = matrix[row * size + column] ?? 0;
+      for (let inner = 0; inner < column; inner += 1) sum -= (lower[row * size + inner] ?? 0) * (lower[column * size + inner] ?? 0);
+      lower[row * size + column] = root > 0 ? sum / root : 0;
+      if (root === 0 && Math.abs(sum) > Math.sqrt(tolerance) * Math.sqrt(Math.abs(matrix[row * size + row] ?? 0))) return false;
+    }
+  }
+  return true;
+}
+
+function checkCoefficients(model: ModelFile, columns: readonly DesignColumn[], file: string | undefined): Issue[] {
+  const issues: Issue[] = [];
+  const expected = columns.map((column) => column.name);
+  const { names, estimates, covariance } = model.coefficients;
+  if (names.length !== expected.length || names.some((name, index) => name !== expected[index])) {
+    issues.push(error('terms_mismatch', at(file, 'coefficients.names'), `\`coefficients.names\` requires the columns of the terms in order, ${show(expected.join(','))}, got ${show(names.join(','))}`));
+  }
+  if (estimates.length !== names.length) {
+    issues.push(error('terms_mismatch', at(file, 'coefficients.estimates'), `\`coefficients.estimates\` requires one estimate per name (${names.length}), got ${estimates.length}`));
+  }
+  const size = estimates.length;
+  if (covariance.length !== size || covariance.some((row) => row.length !== size)) {
+    issues.push(error('bad_covariance', at(file, 'coefficients.covariance'), `\`coefficients.covariance\` requires a ${size} x ${size} matrix, got ${covariance.length} rows of lengths ${show(covariance.map((row) => row.length).join(','))}`));
+    return issues;
+  }
+  const flat = new Float64Array(size * size);
+  for (let row = 0; row < size; row += 1) {
+    for (let column = 0; column < size; column += 1) flat[row * size + column] = covariance[row]?.[column] ?? 0;
+  }
+  for (let row = 0; row < size; row += 1) {
+    for (let column = row + 1; column < size; column += 1) {
+      const upper = flat[row * size + column] ?? 0;
+      const lowerValue = flat[column * size + row] ?? 0;
+      const scale = Math.max(Math.abs(upper), Math.abs(lowerValue), Number.MIN_VALUE);
+      if (Math.abs(upper - lowerValue) > SYMMETRY_TOLERANCE * scale) {
+        issues.push(error('bad_covariance', at(file, `coefficients.covariance[${row}][${column}]`), `the covariance requires a symmetric matrix, got ${upper} here and ${lowerValue} at [${column}][${row}]`));
+        return issues;
+      }
+    }
+  }
+  if (!isPositiveSemiDefinite(flat, size)) {
+    issues.push(error('bad_covariance', at(file, 'coefficients.covariance'), 'the covariance requires a positive semi-definite matrix (variances cannot be negative), got one with a negative eigenvalue'));
+  }
+  return issues;
+}
+
+/**
+ * Validate a model document (already parsed from JSON) and compile it.
+ * `file` names the source in issues.
+ */
+export function compileModel(input: unknown, file?: string): Result<CompiledModel> {
+  const parsed = modelFileSchema.safeParse(input);
+  if (!parsed.success) return fail(fromZodIssues(parsed.error.issues, input, file));
+  const model = parsed.data;
+  const termsChecked = checkTerms(model.terms, at(file, 'terms'));
+  if (!termsChecked.ok) return fail(termsChecked.issues);
+  const columns = designColumns(model.terms, model.difficulty);
+  const issues = checkCoefficients(model, columns, file);
+  if (issues.length > 0) return fail(issues);
+  const coefficients = Float64Array.from(model.coefficients.estimates);
+  const size = coefficients.length;
+  const covariance = new Float64Array(size * size);
+  model.coefficients.covariance.forEach((row, rowIndex) => row.forEach((value, columnIndex) => (covariance[rowIndex * size + columnIndex] = value)));
+  const coding = model.difficulty;
+  const form = scaleForm(model.terms);
+  const compiled = {
+    link: linkFor(model.link),
+    scaleForm: form,
+    columns,
+    coefficients,
+    covariance,
+    difficulty: coding,
+    training: model.training,
+    source: model,
+    lineAt(difficulty: number | string): Result<PredictorLine> {
+      return predictorLine(columns, coefficients, coding, difficulty);
+    },
+  };
+  return ok(compiled as unknown as CompiledModel);
+}
+
+/** The predictor line of given coefficients at a difficulty. Shared with uncertainty draws. */
+export function predictorLine(
+  columns: readonly DesignColumn[],
+  coefficients: ArrayLike<number>,
+  coding: DifficultyCoding,
+  difficulty: number | string,
+): Result<PredictorLine> {
+  if (coding.kind === 'numeric' && typeof difficulty !== 'number') {
+    return fail([error('wrong_difficulty', 'difficulty', `the model requires a numeric difficulty, got ${show(difficulty)}`)]);
+  }
+  if (coding.kind === 'levels' && (typeof difficulty !== 'string' || !coding.levels.includes(difficulty))) {
+    return fail([error('wrong_difficulty', 'difficulty', `the model requires a difficulty level among ${coding.levels.map((level) => show(level)).join(', ')}, got ${show(difficulty)}`)]);
+  }
+  let base = 0;
+  let basePerMs = 0;
+  let scaleSlope = 0;
+  let scaleSlopePerMs = 0;
+  columns.forEach((column, index) => {
+    let factor = coefficients[index] ?? 0;
+    if (column.difficulty === 'value') factor *= difficulty as number;
+    else if (column.difficulty !== null) factor *= difficulty === column.difficulty.level ? 1 : 0;
+    if (column.scale && column.latency) scaleSlopePerMs += factor;
+    else if (column.scale) scaleSlope += factor;
+    else if (column.latency) basePerMs += factor;
+    else base += factor;
+  });
+  return ok({ base, basePerMs, scaleSlope, scaleSlopePerMs });
+}
