@@ -5,6 +5,7 @@ export default defineConfig({
     include: ['test/**/*.test.ts'],
     exclude: ['test/browser/**'],
     setupFiles: ['test/setup/no-console.ts'],
+    globalSetup: ['test/setup/build.ts'],
     testTimeout: 60_000,
   },
 });

@@ -4,6 +4,7 @@
  * prototype (`__proto__`, `constructor`, `prototype`) refused wherever they
  * appear, so no crafted file can change how the rest of the program behaves.
  */
+import { printParseErrorCode, visit } from 'jsonc-parser';
 import { type Issue, type Result, at, error, fail, ok, show } from '../issues.js';
 
 /** Documented limit on one JSON input (a lobby, a model, a rules file): 16 MiB. */
@@ -66,6 +67,27 @@ function findForbiddenKey(value: unknown, path: (string | number)[]): Issue | un
 }
 
 /**
+ * `line:column` (1-based) of the first syntax error, located by the
+ * jsonc-parser scanner in strict mode (no comments, no trailing commas), since
+ * Node's own message does not always carry a position.
+ */
+function syntaxErrorPlace(text: string): { place: string; reason: string } {
+  let found: { place: string; reason: string } | undefined;
+  visit(
+    text,
+    {
+      onError: (code, _offset, _length, startLine, startCharacter) => {
+        found ??= { place: `${startLine + 1}:${startCharacter + 1}`, reason: printParseErrorCode(code) };
+      },
+    },
+    { disallowComments: true, allowTrailingComma: false },
+  );
+  if (found !== undefined) return found;
+  const end = lineAndColumn(text, text.length);
+  return { place: `${end.line}:${end.column}`, reason: 'UnexpectedEndOfInput' };
+}
+
+/**
  * Parse JSON text. `file` names the source in every issue (`lobby.json:3:14`).
  * Refuses empty input, input above `maxBytes`, syntax errors (with line and
  * column) and prototype-reaching keys (with their field path).
@@ -84,16 +106,8 @@ export function parseJsonText(text: string, file: string, maxBytes: number = MAX
     value = JSON.parse(body);
   } catch (cause) {
     const message = cause instanceof Error ? cause.message : String(cause);
-    const position = /position (\d+)/.exec(message);
-    let where = file;
-    if (position?.[1] !== undefined) {
-      const { line, column } = lineAndColumn(body, Number(position[1]));
-      where = `${file}:${line}:${column}`;
-    } else if (/end of JSON input|Unterminated/i.test(message)) {
-      const { line, column } = lineAndColumn(body, body.length);
-      where = `${file}:${line}:${column}`;
-    }
-    return fail([error('invalid_json', where, `the file requires well-formed JSON: ${message}`)]);
+    const { place, reason } = syntaxErrorPlace(body);
+    return fail([error('invalid_json', `${file}:${place}`, `the file requires well-formed JSON (${reason}): ${message}`)]);
   }
   const forbidden = findForbiddenKey(value, []);
   if (forbidden) return fail([{ ...forbidden, location: at(file, forbidden.location) }]);

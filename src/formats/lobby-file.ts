@@ -15,8 +15,8 @@ export const MAX_LATENCY_MS = 60_000;
 
 const latencyValue = z
   .number({ error: 'a latency in milliseconds (a finite number >= 0)' })
-  .refine(Number.isFinite, { error: 'a latency in milliseconds (a finite number >= 0)' })
-  .refine((value) => value >= 0 && value <= MAX_LATENCY_MS, { error: `a latency in milliseconds between 0 and ${MAX_LATENCY_MS}` });
+  .min(0, { error: `a latency in milliseconds between 0 and ${MAX_LATENCY_MS}` })
+  .max(MAX_LATENCY_MS, { error: `a latency in milliseconds between 0 and ${MAX_LATENCY_MS}` });
 
 export const playerSchema = z
   .object({
@@ -34,7 +34,7 @@ export const lobbyFileSchema = z
     format: z.literal(LOBBY_FORMAT, { error: `the format tag "${LOBBY_FORMAT}"` }),
     match_id: z.string().min(1).max(256),
     attribute: z.enum(['hit_area', 'timing_window']).describe('What the scale multiplies: the target hit area (spatial) or the timing window width (temporal).'),
-    difficulty: z.union([z.number().refine(Number.isFinite), z.string().min(1)]),
+    difficulty: z.union([z.number(), z.string().min(1).max(128)], { error: 'a numeric difficulty or a level name' }),
     players: z
       .array(playerSchema)
       .min(1, { error: 'at least one player' })

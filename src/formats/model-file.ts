@@ -9,7 +9,7 @@ import { TERM_NAMES } from '../model/terms.js';
 
 export const MODEL_FORMAT = 'lagparity/model@1';
 
-const finite = z.number({ error: 'a finite number' }).refine(Number.isFinite, { error: 'a finite number' });
+const finite = z.number({ error: 'a finite number' });
 
 const range = z
   .object({ min: finite, max: finite })

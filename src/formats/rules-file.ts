@@ -7,7 +7,7 @@ import { z } from 'zod';
 
 export const RULES_FORMAT = 'lagparity/rules@1';
 
-const positive = z.number().refine(Number.isFinite, { error: 'a finite number' }).refine((value) => value > 0, { error: 'a number above 0' });
+const positive = z.number({ error: 'a finite number' }).positive({ error: 'a number above 0' });
 
 export const rulesFileSchema = z
   .object({
@@ -16,28 +16,28 @@ export const rulesFileSchema = z
     scale_cap: positive.default(1.5).describe('Largest scale a player may get.'),
     max_scale_ratio: positive.nullable().default(null).describe('Largest allowed ratio between the largest and smallest scale in a lobby; null: no limit.'),
     latency_limit_ms: positive.nullable().default(null).describe('Players whose latency estimate is above this are ineligible (reported, never scaled); null: no limit.'),
-    accepted_gap: z.number().refine(Number.isFinite).refine((value) => value >= 0, { error: 'a number >= 0' }).default(0.02).describe('Largest residual gap in hit probability to the target an organiser accepts.'),
+    accepted_gap: z.number({ error: 'a finite number' }).min(0, { error: 'a number >= 0' }).default(0.02).describe('Largest residual gap in hit probability to the target an organiser accepts.'),
     quantisation_step: positive.nullable().default(null).describe('Scales are rounded to multiples of this step (for engines with discrete scales); null: continuous.'),
     soft_cap: z
       .object({
         above: positive.describe('Scale above which only a fraction of the further scale is granted.'),
-        fraction: z.number().refine((value) => value > 0 && value < 1, { error: 'a fraction strictly between 0 and 1' }),
+        fraction: z.number().gt(0, { error: 'a fraction strictly between 0 and 1' }).lt(1, { error: 'a fraction strictly between 0 and 1' }),
       })
       .strict()
       .nullable()
       .default(null)
       .describe('Soft cap: a desired scale d above `above` is granted as above + fraction (d - above), then at most `scale_cap`.'),
-    assistance_budget: z.number().refine(Number.isFinite).refine((value) => value >= 0, { error: 'a number >= 0' }).nullable().default(null).describe('Largest sum over the lobby of (scale - 1) for scales above 1; null: no budget.'),
+    assistance_budget: z.number({ error: 'a finite number' }).min(0, { error: 'a number >= 0' }).nullable().default(null).describe('Largest sum over the lobby of (scale - 1) for scales above 1; null: no budget.'),
     target: z
       .discriminatedUnion('kind', [
         z.object({ kind: z.literal('best_connected') }).strict(),
-        z.object({ kind: z.literal('reference_latency'), latency_ms: z.number().refine(Number.isFinite).refine((value) => value >= 0, { error: 'a latency >= 0' }) }).strict(),
-        z.object({ kind: z.literal('fixed'), probability: z.number().refine((value) => value > 0 && value < 1, { error: 'a probability strictly between 0 and 1' }) }).strict(),
+        z.object({ kind: z.literal('reference_latency'), latency_ms: z.number({ error: 'a finite number' }).min(0, { error: 'a latency >= 0' }) }).strict(),
+        z.object({ kind: z.literal('fixed'), probability: z.number().gt(0, { error: 'a probability strictly between 0 and 1' }).lt(1, { error: 'a probability strictly between 0 and 1' }) }).strict(),
       ])
       .default({ kind: 'best_connected' })
       .describe('What everyone is brought up to: the best-connected eligible player at scale 1 (default), the prediction at a reference latency, or a fixed hit probability.'),
     latency_estimator: z
-      .union([z.literal('all_samples'), z.literal('median'), z.object({ percentile: z.number().refine((value) => value >= 0 && value <= 100, { error: 'a percentile between 0 and 100' }) }).strict()])
+      .union([z.literal('all_samples'), z.literal('median'), z.object({ percentile: z.number().min(0, { error: 'a percentile between 0 and 100' }).max(100, { error: 'a percentile between 0 and 100' }) }).strict()])
       .default('all_samples')
       .describe('How samples become a latency: average the prediction over all samples, use their median, or a low percentile (a player can inflate spikes but not the floor of their latency).'),
     duel: z
@@ -47,7 +47,7 @@ export const rulesFileSchema = z
       })
       .strict()
       .default({ hits_to_win: 3, volleys: 'simultaneous' }),
-    spike_fraction: z.number().refine((value) => value > 0 && value <= 1, { error: 'a fraction in (0, 1]' }).default(0.25).describe('Share of a player\'s samples the exploit view makes read at the latency limit.'),
+    spike_fraction: z.number().gt(0, { error: 'a fraction in (0, 1]' }).max(1, { error: 'a fraction in (0, 1]' }).default(0.25).describe('Share of a player\'s samples the exploit view makes read at the latency limit.'),
   })
   .strict()
   .superRefine((rules, context) => {

@@ -19,19 +19,19 @@ export const TRIALS_FORMAT = 'lagparity/trials@1';
 export const MAX_CSV_LINE_BYTES = 64 * 1024;
 export const MAX_TRIAL_ROWS = 50_000_000;
 
-const finite = z.number().refine(Number.isFinite, { error: 'a finite number' });
+const finite = z.number({ error: 'a finite number' });
 
 /** One row of a trials file, after its fields are read as numbers (for docs and JSON Schema). */
 export const trialRowSchema = z
   .object({
-    latency_ms: finite.refine((value) => value >= 0 && value <= MAX_LATENCY_MS, { error: `a latency in milliseconds between 0 and ${MAX_LATENCY_MS}` }),
-    scale: finite.refine((value) => value > 0, { error: 'a scale above 0' }),
+    latency_ms: finite.min(0).max(MAX_LATENCY_MS),
+    scale: finite.positive(),
     difficulty: z.union([finite, z.string().min(1)]),
     player: z.string().min(1).optional(),
     hit: z.union([z.literal(0), z.literal(1)]).optional(),
     hits: z.number().int().nonnegative().optional(),
     attempts: z.number().int().positive().optional(),
-    weight: finite.refine((value) => value >= 0, { error: 'a weight >= 0' }).optional(),
+    weight: finite.min(0).optional(),
   })
   .refine((row) => (row.hit !== undefined) !== (row.hits !== undefined && row.attempts !== undefined), {
     error: 'either `hit`, or both `hits` and `attempts`',

@@ -7,7 +7,7 @@
  */
 import normalCdfImpl from '@stdlib/stats-base-dists-normal-cdf';
 import normalPdfImpl from '@stdlib/stats-base-dists-normal-pdf';
-import normalQuantileImpl from '@stdlib/stats-base-dists-normal-quantile';
+import complementaryErrorInverse from '@stdlib/math-base-special-erfcinv';
 import gammaIncomplete from '@stdlib/math-base-special-gammainc';
 
 /** Standard normal cumulative distribution function P(Z <= x). */
@@ -25,9 +25,15 @@ export function normalDensity(x: number): number {
   return normalPdfImpl(x, 0, 1);
 }
 
-/** Standard normal quantile (inverse CDF); -Infinity at 0, Infinity at 1. */
+/**
+ * Standard normal quantile (inverse CDF); -Infinity at 0, Infinity at 1.
+ * As -sqrt(2) erfcinv(2p) below one half and sqrt(2) erfcinv(2(1 - p)) above,
+ * so that small tail probabilities keep their digits (the form
+ * sqrt(2) erfinv(2p - 1) loses them to cancellation in 2p - 1).
+ */
 export function normalQuantile(p: number): number {
-  return normalQuantileImpl(p, 0, 1);
+  if (Number.isNaN(p) || p < 0 || p > 1) return Number.NaN;
+  return p < 0.5 ? -Math.SQRT2 * complementaryErrorInverse(2 * p) : Math.SQRT2 * complementaryErrorInverse(2 * (1 - p));
 }
 
 /** Two-sided p-value of a standard normal statistic: 2 P(Z > |z|). */

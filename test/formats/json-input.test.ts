@@ -1,0 +1,46 @@
+import { describe, expect, it } from 'vitest';
+import { lineAndColumn, parseJsonText } from '../../src/formats/json-input.js';
+
+describe('parseJsonText()', () => {
+  it('parses a document and strips a UTF-8 byte-order mark', () => {
+    const result = parseJsonText('\uFEFF{"a": [1, 2]}', 'x.json');
+    expect(result).toEqual({ ok: true, value: { a: [1, 2] }, warnings: [] });
+  });
+
+  it('names line and column of a syntax error', () => {
+    const result = parseJsonText('{\n  "a": 1,\n  "b": ]\n}', 'x.json');
+    expect(result.ok).toBe(false);
+    if (!result.ok) {
+      expect(result.issues[0]?.code).toBe('invalid_json');
+      expect(result.issues[0]?.location).toBe('x.json:3:8');
+    }
+  });
+
+  it('refuses truncated JSON with the position of its end', () => {
+    const result = parseJsonText('{"players": [', 'lobby.json');
+    expect(result.ok).toBe(false);
+    if (!result.ok) expect(result.issues[0]?.location).toBe('lobby.json:1:14');
+  });
+
+  it.each(['__proto__', 'constructor', 'prototype'])('refuses a %s key with its field path', (key) => {
+    const result = parseJsonText(`{"players": [{"id": "a", "${key}": {"x": 1}}]}`, 'lobby.json');
+    expect(result.ok).toBe(false);
+    if (!result.ok) {
+      expect(result.issues[0]).toMatchObject({ code: 'forbidden_key', location: `lobby.json:players[0].${key}` });
+    }
+  });
+
+  it('refuses an empty file and one above the size limit', () => {
+    const empty = parseJsonText('  \n', 'e.json');
+    expect(empty.ok || empty.issues[0]?.code).toBe('empty_file');
+    const large = parseJsonText(`"${'x'.repeat(100)}"`, 'big.json', 50);
+    expect(large.ok || large.issues[0]?.code).toBe('too_large');
+  });
+});
+
+describe('lineAndColumn()', () => {
+  it('counts lines from 1 and columns from 1', () => {
+    expect(lineAndColumn('ab\ncd', 0)).toEqual({ line: 1, column: 1 });
+    expect(lineAndColumn('ab\ncd', 4)).toEqual({ line: 2, column: 2 });
+  });
+});

@@ -1,0 +1,108 @@
+import { describe, expect, it } from 'vitest';
+import fc from 'fast-check';
+import { detectDelimiter, parseDecimal, parseTrialsCsv, trialRowSchema } from '../../src/formats/trials-csv.js';
+import { readFileSync } from 'node:fs';
+import { join } from 'node:path';
+import { MATCHES } from '../helpers/demo.js';
+
+function failure(text: string) {
+  const result = parseTrialsCsv(text, 'trials.csv');
+  if (result.ok) throw new Error('expected a failure');
+  return result.issues[0];
+}
+
+describe('parseTrialsCsv()', () => {
+  it('reads the bundled playtest into columns', () => {
+    const result = parseTrialsCsv(readFileSync(join(MATCHES, 'playtest-trials.csv'), 'utf8'));
+    expect(result.ok).toBe(true);
+    if (!result.ok) return;
+    const trials = result.value;
+    expect(trials.shape).toBe('per_round');
+    expect(trials.rows).toBe(36 * 6 * 5 * 3);
+    expect(trials.difficulty.kind).toBe('levels');
+    expect(trials.player?.ids.length).toBe(36);
+    expect(trials.attempts.every((value) => value === 20)).toBe(true);
+  });
+
+  it('reads per-attempt rows, a byte-order mark, CRLF line ends and quoted fields', () => {
+    const result = parseTrialsCsv('\uFEFFlatency_ms,scale,difficulty,hit,player\r\n10,1,"easy, close",1,a\r\n20.5,1.25,hard,0,b\r\n', 'trials.csv');
+    expect(result.ok).toBe(true);
+    if (!result.ok) return;
+    expect(Array.from(result.value.latency)).toEqual([10, 20.5]);
+    expect(result.value.difficulty).toEqual({ kind: 'levels', levels: ['easy, close', 'hard'], codes: Int32Array.from([0, 1]) });
+    expect(Array.from(result.value.successes)).toEqual([1, 0]);
+  });
+
+  it('reads numeric difficulty as numbers', () => {
+    const result = parseTrialsCsv('latency_ms,scale,difficulty,hit\n10,1,2.5,1\n20,1,3,0\n');
+    expect(result.ok && result.value.difficulty).toEqual({ kind: 'numeric', values: Float64Array.from([2.5, 3]) });
+  });
+
+  it('warns about unknown columns and names a detected semicolon delimiter', () => {
+    const result = parseTrialsCsv('latency_ms;scale;difficulty;hit;note\n10;1;2;1;x\n');
+    expect(result.ok).toBe(true);
+    if (!result.ok) return;
+    expect(result.warnings.map((issue) => issue.code)).toEqual(['delimiter_detected', 'unknown_column']);
+    expect(result.warnings[0]?.message).toContain('semicolon');
+  });
+
+  it.each([
+    ['', 'empty_file', 'trials.csv'],
+    ['latency_ms,scale,difficulty,hit\n', 'no_rows', 'trials.csv'],
+    ['latency_ms,scale,hit\n10,1,1\n', 'missing_column', 'trials.csv:1'],
+    ['latency_ms,scale,difficulty,hit,hits,attempts\n', 'ambiguous_response', 'trials.csv:1'],
+    ['latency_ms,scale,difficulty,hit\n10,1,a,1\nabc,1,a,1\n', 'not_a_number', 'trials.csv:3:latency_ms'],
+    ['latency_ms,scale,difficulty,hit\n,1,a,1\n', 'empty_field', 'trials.csv:2:latency_ms'],
+    ['latency_ms,scale,difficulty,hit\n-3,1,a,1\n', 'out_of_range', 'trials.csv:2:latency_ms'],
+    ['latency_ms,scale,difficulty,hit\nNaN,1,a,1\n', 'not_a_number', 'trials.csv:2:latency_ms'],
+    ['latency_ms,scale,difficulty,hit\nInfinity,1,a,1\n', 'not_a_number', 'trials.csv:2:latency_ms'],
+    ['latency_ms,scale,difficulty,hit\n1e309,1,a,1\n', 'not_a_number', 'trials.csv:2:latency_ms'],
+    ['latency_ms,scale,difficulty,hit\n10,0,a,1\n', 'out_of_range', 'trials.csv:2:scale'],
+    ['latency_ms,scale,difficulty,hit\n10,1,a,2\n', 'out_of_range', 'trials.csv:2:hit'],
+    ['latency_ms,scale,difficulty,hits,attempts\n10,1,a,5,4\n', 'out_of_range', 'trials.csv:2:hits'],
+    ['latency_ms,scale,difficulty,hits,attempts\n10,1,a,0,0\n', 'out_of_range', 'trials.csv:2:attempts'],
+    ['latency_ms,scale,difficulty,hit\n10,1,a\n', 'wrong_field_count', 'trials.csv:2'],
+    ['latency_ms,scale,difficulty,hit\n10,1,a,"1\n', 'invalid_csv', 'trials.csv:2'],
+  ])('refuses %j with %s at %s', (text, code, location) => {
+    const issue = failure(text);
+    expect(issue?.code).toBe(code);
+    expect(issue?.location).toBe(location);
+  });
+
+  it('reports how many good rows it read before the bad one', () => {
+    expect(failure('latency_ms,scale,difficulty,hit\n10,1,a,1\n11,1,a,0\n12,x,a,1\n')?.message).toMatch(/stopped after 2 good rows/);
+  });
+
+  it('refuses a 50 MB line quickly', () => {
+    const started = performance.now();
+    const issue = failure(`latency_ms,scale,difficulty,hit\n10,1,${'a'.repeat(50 * 1024 * 1024)},1\n`);
+    expect(issue?.code).toBe('line_too_long');
+    expect(performance.now() - started).toBeLessThan(10_000);
+  });
+
+  it('agrees with the zod row grammar on generated rows (fast-check, 300 runs, seed 7)', () => {
+    const field = fc.oneof(
+      fc.constantFrom('', '0', '1', '2', '-1', '0.5', '1e3', 'NaN', 'Infinity', '1e309', 'x', '0x10', ' 3 '),
+      fc.double({ noNaN: true, min: -10, max: 2000 }).map(String),
+    );
+    fc.assert(
+      fc.property(field, field, field, fc.constantFrom('easy', '2', ''), (latency, scale, hit, difficulty) => {
+        const result = parseTrialsCsv(`latency_ms,scale,difficulty,hit\n${latency},${scale},${difficulty},${hit}\n`);
+        const asNumber = (text: string) => parseDecimal(text);
+        const row = { latency_ms: asNumber(latency), scale: asNumber(scale), hit: asNumber(hit), difficulty: difficulty === '' ? undefined : difficulty };
+        const zodOk = trialRowSchema.safeParse(row).success;
+        expect(result.ok).toBe(zodOk);
+      }),
+      { seed: 7, numRuns: 300 },
+    );
+  });
+});
+
+describe('detectDelimiter()', () => {
+  it('finds comma, semicolon and tab headers, ignoring quoted ones', () => {
+    expect(detectDelimiter('a,b,c')).toBe(',');
+    expect(detectDelimiter('a;b;c')).toBe(';');
+    expect(detectDelimiter('a\tb')).toBe('\t');
+    expect(detectDelimiter('"a;b",c')).toBe(',');
+  });
+});
