@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
-import Ajv2020 from 'ajv/dist/2020.js';
+import { Ajv2020 } from 'ajv/dist/2020.js';
 import { jsonSchemas } from '../../src/formats/json-schemas.js';
 import { MATCHES, ROOT, demoLobbyPaths, readJson } from '../helpers/demo.js';
 
