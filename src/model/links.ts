@@ -34,6 +34,8 @@ export interface Link {
   inverseComplement(linearPredictor: number): number;
   /** d mu / d(linear predictor) at the linear predictor. */
   derivative(linearPredictor: number): number;
+  /** d^2 mu / d(linear predictor)^2, for Newton steps with the observed information. */
+  secondDerivative(linearPredictor: number): number;
 }
 
 /** The names accepted by {@link linkFor}. */
@@ -56,6 +58,13 @@ const logit: Link = {
     const denominator = 1 + exponential;
     return exponential / (denominator * denominator);
   },
+  // mu (1 - mu) (1 - 2 mu), with 1 - 2 mu = (1 - mu) - mu.
+  secondDerivative: (linearPredictor) => {
+    const exponential = Math.exp(-Math.abs(linearPredictor));
+    const denominator = 1 + exponential;
+    const mu = logisticInverse(linearPredictor);
+    return (exponential / (denominator * denominator)) * (logisticInverse(-linearPredictor) - mu);
+  },
 };
 
 const probit: Link = {
@@ -64,6 +73,7 @@ const probit: Link = {
   inverse: (linearPredictor) => normalCdf(linearPredictor),
   inverseComplement: (linearPredictor) => normalUpperTail(linearPredictor),
   derivative: (linearPredictor) => normalDensity(linearPredictor),
+  secondDerivative: (linearPredictor) => -linearPredictor * normalDensity(linearPredictor),
 };
 
 const complementaryLogLog: Link = {
@@ -73,6 +83,8 @@ const complementaryLogLog: Link = {
   inverseComplement: (linearPredictor) => Math.exp(-Math.exp(linearPredictor)),
   // exp(x) exp(-exp(x)) = exp(x - exp(x)); tends to 0 at both ends without overflow.
   derivative: (linearPredictor) => Math.exp(linearPredictor - Math.exp(linearPredictor)),
+  secondDerivative: (linearPredictor) =>
+    Math.exp(linearPredictor - Math.exp(linearPredictor)) * -Math.expm1(linearPredictor),
 };
 
 const links: Readonly<Record<LinkName, Link>> = { logit, probit, cloglog: complementaryLogLog };

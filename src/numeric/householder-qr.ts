@@ -13,6 +13,12 @@
  * Keeping the order means that of two collinear columns the later one is the
  * one reported as aliased, as R reports it.
  *
+ * Each column is first scaled by a power of two so that its largest entry is
+ * in [1, 2). Power-of-two scaling is exact and Householder QR is equivariant
+ * under it, so results are bit-for-bit those of the unscaled matrix, except
+ * that columns of tiny (even subnormal) entries no longer lose their rank
+ * information to underflow.
+ *
  * Cost: O(rows * columns^2) for the factorisation, O(rows * columns) per
  * solve, O(columns^3) for the covariance.
  */
@@ -33,6 +39,8 @@ export interface QrDecomposition {
   readonly reflectors: readonly Float64Array[];
   /** 2 / (v'v) for each reflector (0 for a trivial one). */
   readonly reflectorScales: Float64Array;
+  /** Column j (original index) was multiplied by 2^columnExponents[j] before factorising. */
+  readonly columnExponents: Int32Array;
 }
 
 /** R's default `tol` for `qr()` / `lm.fit`: 1e-7 relative to each column's original norm. */
@@ -51,6 +59,15 @@ export function householderQr(
   tolerance: number = DEFAULT_RANK_TOLERANCE,
 ): QrDecomposition {
   const work = Float64Array.from(values);
+  const columnExponents = new Int32Array(columns);
+  for (let j = 0; j < columns; j += 1) {
+    let largest = 0;
+    for (let i = 0; i < rows; i += 1) largest = Math.max(largest, Math.abs(work[j * rows + i] as number));
+    if (largest === 0 || !Number.isFinite(largest)) continue;
+    const exponent = -Math.floor(Math.log2(largest));
+    columnExponents[j] = exponent;
+    for (let i = 0; i < rows; i += 1) work[j * rows + i] = scaleByPowerOfTwo(work[j * rows + i] as number, exponent);
+  }
   const pivot = Int32Array.from({ length: columns }, (_, j) => j);
   const originalNorms = new Float64Array(columns);
   for (let j = 0; j < columns; j += 1) {
@@ -92,7 +109,7 @@ export function householderQr(
     for (let q = p; q < columns; q += 1) upper[p * columns + q] = work[q * rows + p] as number;
   }
   const aliased = Array.from(pivot.subarray(rank)).sort((a, b) => a - b);
-  return { rows, columns, rank, pivot, aliased, upper, reflectors, reflectorScales };
+  return { rows, columns, rank, pivot, aliased, upper, reflectors, reflectorScales, columnExponents };
 }
 
 /** Least-squares solution of min ||X b - y||, with its residuals and fitted values. */
@@ -119,7 +136,10 @@ export function solveLeastSquares(qr: QrDecomposition, response: ArrayLike<numbe
     solution[p] = sum / (qr.upper[p * columns + p] as number);
   }
   const coefficients = new Float64Array(columns);
-  for (let p = 0; p < rank; p += 1) coefficients[qr.pivot[p] as number] = solution[p] as number;
+  for (let p = 0; p < rank; p += 1) {
+    const column = qr.pivot[p] as number;
+    coefficients[column] = scaleByPowerOfTwo(solution[p] as number, qr.columnExponents[column] as number);
+  }
   const residuals = effects;
   for (let p = 0; p < Math.min(rank, rows); p += 1) residuals[p] = 0;
   for (let p = qr.reflectors.length - 1; p >= 0; p -= 1) {
@@ -156,11 +176,30 @@ export function inverseCrossProduct(qr: QrDecomposition): Float64Array {
       for (let m = q; m < rank; m += 1) sum += (inverse[p * rank + m] as number) * (inverse[q * rank + m] as number);
       const row = qr.pivot[p] as number;
       const column = qr.pivot[q] as number;
-      result[row * columns + column] = sum;
-      result[column * columns + row] = sum;
+      const value = scaleByPowerOfTwo(
+        scaleByPowerOfTwo(sum, qr.columnExponents[row] as number),
+        qr.columnExponents[column] as number,
+      );
+      result[row * columns + column] = value;
+      result[column * columns + row] = value;
     }
   }
   return result;
+}
+
+/** value * 2^exponent, in steps that neither overflow nor underflow the factor itself. */
+function scaleByPowerOfTwo(value: number, exponent: number): number {
+  let result = value;
+  let remaining = exponent;
+  while (remaining > 1000) {
+    result *= 2 ** 1000;
+    remaining -= 1000;
+  }
+  while (remaining < -1000) {
+    result *= 2 ** -1000;
+    remaining += 1000;
+  }
+  return result * 2 ** remaining;
 }
 
 /** Euclidean norm of column j from row `from` on, scaled to avoid overflow. */

@@ -1,0 +1,862 @@
+/**
+ * Binomial generalised linear model (logit, probit or complementary log-log
+ * link) fitted by iteratively reweighted least squares (Fisher scoring).
+ *
+ * Method: McCullagh, P. and Nelder, J. A. (1989), *Generalized Linear
+ * Models*, 2nd ed., Chapman & Hall, §2.5 (IRLS) and §4.4 (binomial); every
+ * step is a weighted least-squares solve by Householder QR (Golub & Van Loan
+ * 2013, §5.3.3), never the normal equations. Conventions follow R's
+ * `glm.fit` (R Core Team, R 4.2.2, `stats` package): starting values
+ * mu = (w y + 0.5) / (w + 1), rows with weight 0 left out, rank tolerance
+ * 1e-7, step halving when the deviance is not finite. In addition a step that
+ * raises the deviance is halved (Marschner, I. C. (2011), glm2: fitting
+ * generalized linear models with convergence problems, *The R Journal* 3(2),
+ * 12-15), which R's `glm.fit` does only for non-finite deviance.
+ *
+ * Convergence: iterations stop when the largest coefficient step, measured in
+ * standard errors, is at most `tolerance` (default 1e-10); much tighter than
+ * R's default deviance criterion (1e-8). Fisher scoring converges only
+ * linearly for probit and cloglog, so once a step is below 0.01 SE those
+ * links take Newton-Raphson steps (observed information, solved by Cholesky
+ * on the k-by-k matrix) whenever these are positive definite and do not raise
+ * the deviance; the fixed point (score = 0) is the same, only reached faster.
+ *
+ * Covariance: the inverse of the expected (Fisher) information X'WX with
+ * W = n (dmu/deta)^2 / (mu (1 - mu)), evaluated AT the final estimate (R's
+ * `summary.glm` uses the weights of the last iteration, i.e. of the previous
+ * iterate). For the logit link expected and observed information coincide;
+ * for probit and cloglog this is R's / `sandwich`'s convention, not Stata's
+ * or statsmodels' observed information.
+ *
+ * Cluster-robust CR1 covariance (when `clusters` are given): bread = that
+ * inverse expected information, as R `sandwich` does for a glm; Liang & Zeger
+ * (1986), Cameron & Miller (2015); see `numeric/cluster-sandwich.ts`.
+ *
+ * Cost: O(iterations * n * k^2).
+ */
+import { LagparityInputError, error, show, type Issue } from '../issues.js';
+import { checkClusters, checkFinite, checkLength } from '../numeric/array-checks.js';
+import { choleskySolve } from '../numeric/cholesky.js';
+import { clusterSandwichCovariance, compactClusters } from '../numeric/cluster-sandwich.js';
+import { hasConstantColumn, multiply, selectRows, type DesignMatrix } from '../numeric/design-matrix.js';
+import { householderQr, inverseCrossProduct, solveLeastSquares } from '../numeric/householder-qr.js';
+import { normalQuantile, twoSidedNormalPValue } from '../stats/distributions.js';
+import { linkFor, LINK_NAMES, type Link, type LinkName } from './links.js';
+
+export interface BinomialData {
+  readonly design: DesignMatrix;
+  /** Successes per row, 0 <= successes <= trials. */
+  readonly successes: ArrayLike<number>;
+  /** Trials per row; rows with 0 trials are left out of the fit. */
+  readonly trials: ArrayLike<number>;
+  /** Prior weights per row (default 1); rows of weight 0 are left out. */
+  readonly priorWeights?: ArrayLike<number>;
+  /** Cluster index per row (0..G-1); when given, a CR1 block is reported. */
+  readonly clusters?: ArrayLike<number>;
+}
+
+/**
+ * How rows are read.
+ * - `grouped` (default, R's convention): each row is a binomial count; the
+ *   log-likelihood and AIC include the log binomial coefficients and the
+ *   deviance is against the saturated model of the rows; n for BIC and CR1 is
+ *   the number of rows.
+ * - `bernoulli`: rows are collapsed 0/1 trials (identical covariates counted
+ *   together); deviance = -2 log-likelihood of the Bernoulli data (no
+ *   binomial coefficients), null deviance likewise, and n for BIC, CR1 and
+ *   the residual degrees of freedom is the number of trials.
+ */
+export type BinomialLikelihood = 'grouped' | 'bernoulli';
+
+export interface BinomialFitOptions {
+  /** Default `logit`. */
+  readonly link?: LinkName;
+  /** Default 50. */
+  readonly maxIterations?: number;
+  /** Largest coefficient step, in standard errors, accepted as converged. Default 1e-10. */
+  readonly tolerance?: number;
+  /** Default `grouped`. */
+  readonly likelihood?: BinomialLikelihood;
+  /** Number of observations for BIC and the CR1 factor, overriding the default of `likelihood`. */
+  readonly observationCount?: number;
+  /** Report the CR1 block when `clusters` are given (default true). */
+  readonly robust?: boolean;
+}
+
+export type BinomialFitStatus = 'converged' | 'iteration_limit' | 'separation' | 'rank_deficient';
+
+interface BinomialFitBase {
+  readonly status: BinomialFitStatus;
+  /** Weighted least-squares solves performed. */
+  readonly iterations: number;
+  readonly link: LinkName;
+  readonly names: readonly string[];
+  /** Names of columns that are linear combinations of earlier columns. */
+  readonly aliased: readonly string[];
+  /** Human-readable notes (iteration limit, step halving, separation, non-integer counts). */
+  readonly warnings: readonly string[];
+}
+
+export interface BinomialRobust {
+  readonly kind: 'CR1';
+  readonly clusters: number;
+  /** k-by-k row-major. */
+  readonly covariance: Float64Array;
+  readonly standardErrors: Float64Array;
+  readonly zValues: Float64Array;
+  readonly pValues: Float64Array;
+}
+
+export interface ConfidenceIntervals {
+  readonly level: number;
+  readonly lower: Float64Array;
+  readonly upper: Float64Array;
+}
+
+/** A fit with estimates: converged, or stopped at the iteration limit (then the last iterate). */
+export interface BinomialFitEstimated extends BinomialFitBase {
+  readonly status: 'converged' | 'iteration_limit';
+  readonly coefficients: Float64Array;
+  readonly standardErrors: Float64Array;
+  /** Inverse expected information at the estimate, k-by-k row-major. */
+  readonly covariance: Float64Array;
+  readonly zValues: Float64Array;
+  /** Two-sided normal p-values. */
+  readonly pValues: Float64Array;
+  /** Wald 95% intervals, estimate +- qnorm(0.975) SE. */
+  readonly confidenceIntervals: ConfidenceIntervals;
+  readonly deviance: number;
+  readonly nullDeviance: number;
+  readonly dfResidual: number;
+  readonly dfNull: number;
+  readonly logLikelihood: number;
+  readonly aic: number;
+  readonly bic: number;
+  /** sum of squared Pearson residuals. */
+  readonly pearsonChiSquare: number;
+  /** 1 - logL / logL(null), Bernoulli-level log-likelihoods (same for grouped and expanded rows); null if undefined. */
+  readonly mcfaddenR2: number | null;
+  /** Mean fitted probability among successes minus among failures, trial-weighted; null without both. */
+  readonly tjurR2: number | null;
+  /** Mean squared error of the fitted probability per trial. */
+  readonly brierScore: number;
+  /** Fitted probability for every input row (also rows of weight 0). */
+  readonly fitted: Float64Array;
+  /** Number of observations used for BIC and CR1. */
+  readonly observationCount: number;
+  readonly robust: BinomialRobust | null;
+}
+
+/** Complete or quasi-complete separation: the MLE does not exist. */
+export interface BinomialFitSeparated extends BinomialFitBase {
+  readonly status: 'separation';
+  /** Coefficients that kept growing. */
+  readonly divergingCoefficients: readonly string[];
+  /** Rows whose fitted probability is within 1e-10 of 0 or 1. */
+  readonly boundaryRows: number;
+}
+
+/** The design's columns are linearly dependent (over the rows with weight). */
+export interface BinomialFitRankDeficient extends BinomialFitBase {
+  readonly status: 'rank_deficient';
+  readonly rank: number;
+}
+
+export type BinomialFit = BinomialFitEstimated | BinomialFitSeparated | BinomialFitRankDeficient;
+
+/** Fitted probabilities closer than this to 0 or 1 mark a row as on the boundary. */
+const BOUNDARY = 1e-10;
+/** A step that changes a boundary row's linear predictor by more than this means it is still diverging. */
+const DIVERGING_STEP = 1e-6;
+const MAX_HALVINGS = 60;
+/** Switch to Newton steps once a Fisher step is smaller than this many standard errors. */
+const NEWTON_SWITCH = 1e-2;
+
+/**
+ * Fit a binomial GLM by IRLS.
+ *
+ * Throws `LagparityInputError` for malformed input; separation, rank
+ * deficiency and the iteration limit are results (`status`), not exceptions.
+ * Every returned number is finite.
+ *
+ * @example
+ * const fit = fitBinomial({ design, successes: killed, trials: exposed }, { link: 'probit' });
+ * if (fit.status === 'converged') fit.coefficients;
+ */
+export function fitBinomial(data: BinomialData, options: BinomialFitOptions = {}): BinomialFit {
+  const linkName = options.link ?? 'logit';
+  const maxIterations = options.maxIterations ?? 50;
+  const tolerance = options.tolerance ?? 1e-10;
+  const likelihood = options.likelihood ?? 'grouped';
+  checkInput(data, { linkName, maxIterations, tolerance, likelihood, observationCount: options.observationCount });
+  const link = linkFor(linkName);
+  const { design } = data;
+  const columns = design.columns;
+  const warnings: string[] = [];
+
+  // Rows that carry weight, and the GLM quantities on them.
+  const keep = Array.from(
+    { length: design.rows },
+    (_, i) => (data.trials[i] as number) * (data.priorWeights?.[i] ?? 1) > 0,
+  );
+  const kept = selectRows(design, keep);
+  const n = kept.rows;
+  const successes = new Float64Array(n);
+  const trials = new Float64Array(n);
+  const priorWeights = new Float64Array(n);
+  for (let i = 0, r = 0; i < design.rows; i += 1) {
+    if (!keep[i]) continue;
+    successes[r] = data.successes[i] as number;
+    trials[r] = data.trials[i] as number;
+    priorWeights[r] = data.priorWeights?.[i] ?? 1;
+    r += 1;
+  }
+  const rows: GlmRows = {
+    proportions: successes.map((value, i) => value / (trials[i] as number)),
+    weights: trials.map((value, i) => value * (priorWeights[i] as number)),
+  };
+  const base = { link: linkName, names: design.names };
+
+  const structural = householderQr(kept.values, n, columns);
+  if (structural.rank < columns) {
+    const aliased = structural.aliased.map((j) => design.names[j] as string);
+    return {
+      ...base,
+      status: 'rank_deficient',
+      iterations: 0,
+      rank: structural.rank,
+      aliased,
+      warnings: [
+        `design is rank deficient over the rows with weight: ${aliased.map((name) => `\`${name}\``).join(', ')} ` +
+          'aliased with earlier columns (for example a column that is constant, like the intercept)',
+      ],
+    };
+  }
+
+  const iteration = iterate(kept, rows, link, maxIterations, tolerance);
+  warnings.push(...iteration.warnings);
+  const { coefficients } = iteration;
+  const linearPredictor = multiply(kept, coefficients);
+  const state = linkState(link, linearPredictor, rows);
+  let boundaryRows = 0;
+  let stillMoving = false;
+  for (let i = 0; i < n; i += 1) {
+    if ((state.mu[i] as number) < BOUNDARY || (state.complement[i] as number) < BOUNDARY) {
+      boundaryRows += 1;
+      const change = Math.abs(iteration.lastLinearPredictorChange[i] as number);
+      if (change > DIVERGING_STEP * Math.max(1, Math.abs(linearPredictor[i] as number))) stillMoving = true;
+    }
+  }
+  const information = householderQr(weightedDesign(kept, state.rootWeights), n, columns);
+  const weightedRankLost = iteration.weightsCollapsed || information.rank < columns;
+  if (weightedRankLost && boundaryRows === 0) {
+    // Numerically dependent columns that only show once weighted (e.g. tiny or subnormal entries).
+    const aliased = (information.rank < columns ? information : iteration.collapsedAliased).aliased.map(
+      (j) => design.names[j] as string,
+    );
+    return {
+      ...base,
+      status: 'rank_deficient',
+      iterations: iteration.iterations,
+      rank: Math.min(information.rank, columns - aliased.length),
+      aliased,
+      warnings: [
+        ...warnings,
+        `weighted design is numerically rank deficient: ${aliased.map((name) => `\`${name}\``).join(', ')} ` +
+          'aliased with earlier columns under the IRLS weights',
+      ],
+    };
+  }
+  if (weightedRankLost || (boundaryRows > 0 && stillMoving)) {
+    const diverging = divergingNames(iteration.lastStep, design.names);
+    return {
+      ...base,
+      status: 'separation',
+      iterations: iteration.iterations,
+      aliased: [],
+      divergingCoefficients: diverging,
+      boundaryRows,
+      warnings: [
+        ...warnings,
+        `complete or quasi-complete separation: ${diverging.map((name) => `\`${name}\``).join(', ')} kept growing ` +
+          `and ${boundaryRows} row(s) have fitted probabilities numerically 0 or 1; the maximum-likelihood estimate does not exist`,
+      ],
+    };
+  }
+  if (boundaryRows > 0) warnings.push(`fitted probabilities numerically 0 or 1 occurred in ${boundaryRows} row(s)`);
+  const status = iteration.converged ? 'converged' : 'iteration_limit';
+  if (!iteration.converged) {
+    warnings.push(`\`maxIterations\` ${maxIterations} reached before convergence; estimates are the last iterate`);
+  }
+
+  // Inverse expected information at the estimate.
+  const covariance = inverseCrossProduct(information);
+  const standardErrors = diagonalRoots(covariance, columns);
+  const unbounded = design.names.filter(
+    (_, j) => !Number.isFinite(standardErrors[j] as number) || !Number.isFinite(coefficients[j] as number),
+  );
+  if (unbounded.length > 0 || !covariance.every(Number.isFinite)) {
+    // The information matrix is singular in floating point (its inverse overflows).
+    return {
+      ...base,
+      status: 'rank_deficient',
+      iterations: iteration.iterations,
+      rank: columns - unbounded.length,
+      aliased: unbounded,
+      warnings: [
+        ...warnings,
+        `information matrix is numerically singular: the variance of ${unbounded.map((name) => `\`${name}\``).join(', ')} ` +
+          'overflows (a column with entries too small to carry information)',
+      ],
+    };
+  }
+  const zValues = coefficients.map((value, j) => value / (standardErrors[j] as number));
+  const pValues = zValues.map(twoSidedNormalPValue);
+  const critical = normalQuantile(0.975);
+  const confidenceIntervals: ConfidenceIntervals = {
+    level: 0.95,
+    lower: coefficients.map((value, j) => value - critical * (standardErrors[j] as number)),
+    upper: coefficients.map((value, j) => value + critical * (standardErrors[j] as number)),
+  };
+
+  // Likelihood summaries.
+  const hasIntercept = hasConstantColumn(kept);
+  let totalWeight = 0;
+  let totalSuccessWeight = 0;
+  let totalTrials = 0;
+  for (let i = 0; i < n; i += 1) {
+    totalWeight += rows.weights[i] as number;
+    totalSuccessWeight += (rows.weights[i] as number) * (rows.proportions[i] as number);
+    totalTrials += trials[i] as number;
+  }
+  const nullMu = hasIntercept ? totalSuccessWeight / totalWeight : link.inverse(0);
+  const nullComplement = hasIntercept ? (totalWeight - totalSuccessWeight) / totalWeight : link.inverseComplement(0);
+  const bernoulliLogLikelihood = bernoulliLogLikelihoodOf(rows, state.mu, state.complement);
+  const nullBernoulliLogLikelihood = bernoulliLogLikelihoodOf(
+    rows,
+    new Float64Array(n).fill(nullMu),
+    new Float64Array(n).fill(nullComplement),
+  );
+  const parameterCount = columns;
+  let deviance: number;
+  let nullDeviance: number;
+  let logLikelihood: number;
+  let defaultObservations: number;
+  let residualBase: number;
+  if (likelihood === 'grouped') {
+    deviance = groupedDeviance(rows, state.mu, state.complement);
+    nullDeviance = groupedDeviance(rows, new Float64Array(n).fill(nullMu), new Float64Array(n).fill(nullComplement));
+    const { total, nonInteger } = logBinomialCoefficients(successes, trials, priorWeights);
+    if (nonInteger) warnings.push('non-integer successes or trials: log binomial coefficients use rounded counts, as R does');
+    logLikelihood = bernoulliLogLikelihood + total;
+    defaultObservations = n;
+    residualBase = n;
+  } else {
+    deviance = -2 * bernoulliLogLikelihood;
+    nullDeviance = -2 * nullBernoulliLogLikelihood;
+    logLikelihood = bernoulliLogLikelihood;
+    defaultObservations = totalTrials;
+    residualBase = options.observationCount ?? totalTrials;
+  }
+  const observationCount = options.observationCount ?? defaultObservations;
+  const aic = -2 * logLikelihood + 2 * parameterCount;
+  const bic = -2 * logLikelihood + Math.log(observationCount) * parameterCount;
+  const mcfaddenR2 = nullBernoulliLogLikelihood < 0 ? 1 - bernoulliLogLikelihood / nullBernoulliLogLikelihood : null;
+
+  let pearsonChiSquare = 0;
+  let brierSum = 0;
+  let fittedAmongSuccesses = 0;
+  let successWeight = 0;
+  let fittedAmongFailures = 0;
+  let failureWeight = 0;
+  for (let i = 0; i < n; i += 1) {
+    const mu = state.mu[i] as number;
+    const complement = state.complement[i] as number;
+    const prior = priorWeights[i] as number;
+    const successCount = successes[i] as number;
+    const failureCount = (trials[i] as number) - successCount;
+    const variance = mu * complement;
+    const residual = residualOf(rows.proportions[i] as number, mu, complement);
+    if (variance > 0) pearsonChiSquare += ((rows.weights[i] as number) * residual * residual) / variance;
+    brierSum += prior * (successCount * complement * complement + failureCount * mu * mu);
+    fittedAmongSuccesses += prior * successCount * mu;
+    successWeight += prior * successCount;
+    fittedAmongFailures += prior * failureCount * mu;
+    failureWeight += prior * failureCount;
+  }
+  const tjurR2 =
+    successWeight > 0 && failureWeight > 0 ? fittedAmongSuccesses / successWeight - fittedAmongFailures / failureWeight : null;
+  let priorTrials = 0;
+  for (let i = 0; i < n; i += 1) priorTrials += (priorWeights[i] as number) * (trials[i] as number);
+  const brierScore = brierSum / priorTrials;
+
+  const fullLinearPredictor = multiply(design, coefficients);
+  const fitted = fullLinearPredictor.map((value) => link.inverse(value));
+
+  let robust: BinomialRobust | null = null;
+  if (data.clusters !== undefined && options.robust !== false) {
+    const { indices, count } = compactClusters(data.clusters, keep);
+    const scores = new Float64Array(n * columns);
+    for (let i = 0; i < n; i += 1) {
+      const variance = (state.mu[i] as number) * (state.complement[i] as number);
+      if (!(variance > 0)) continue;
+      const factor =
+        ((rows.weights[i] as number) *
+          residualOf(rows.proportions[i] as number, state.mu[i] as number, state.complement[i] as number) *
+          (state.derivative[i] as number)) /
+        variance;
+      for (let j = 0; j < columns; j += 1) scores[i * columns + j] = (kept.values[j * n + i] as number) * factor;
+    }
+    const robustCovariance = clusterSandwichCovariance({
+      bread: covariance,
+      scores,
+      clusters: indices,
+      clusterCount: count,
+      observationCount,
+      parameterCount,
+    });
+    if (robustCovariance === null) {
+      warnings.push(
+        `cluster-robust covariance requires at least 2 clusters and more observations than coefficients, got ${count} cluster(s)`,
+      );
+    } else {
+      const robustErrors = diagonalRoots(robustCovariance, columns);
+      const robustZ = coefficients.map((value, j) => value / (robustErrors[j] as number));
+      robust = {
+        kind: 'CR1',
+        clusters: count,
+        covariance: robustCovariance,
+        standardErrors: robustErrors,
+        zValues: robustZ,
+        pValues: robustZ.map(twoSidedNormalPValue),
+      };
+    }
+  }
+
+  return {
+    ...base,
+    status,
+    iterations: iteration.iterations,
+    aliased: [],
+    warnings,
+    coefficients,
+    standardErrors,
+    covariance,
+    zValues,
+    pValues,
+    confidenceIntervals,
+    deviance,
+    nullDeviance,
+    dfResidual: residualBase - parameterCount,
+    dfNull: residualBase - (hasIntercept ? 1 : 0),
+    logLikelihood,
+    aic,
+    bic,
+    pearsonChiSquare,
+    mcfaddenR2,
+    tjurR2,
+    brierScore,
+    fitted,
+    observationCount,
+    robust,
+  };
+}
+
+/**
+ * The score (gradient of the log-likelihood) at `coefficients`:
+ * X' [w (y - mu) (dmu/deta) / (mu (1 - mu))], one entry per column.
+ * Zero at the MLE; a diagnostic for callers and tests.
+ */
+export function binomialScore(data: BinomialData, coefficients: ArrayLike<number>, linkName: LinkName = 'logit'): Float64Array {
+  const link = linkFor(linkName);
+  const { design } = data;
+  const linearPredictor = multiply(design, coefficients);
+  const score = new Float64Array(design.columns);
+  for (let i = 0; i < design.rows; i += 1) {
+    const trials = data.trials[i] as number;
+    const weight = trials * (data.priorWeights?.[i] ?? 1);
+    if (!(weight > 0)) continue;
+    const value = linearPredictor[i] as number;
+    const mu = link.inverse(value);
+    const complement = link.inverseComplement(value);
+    const variance = mu * complement;
+    if (!(variance > 0)) continue;
+    const residual = residualOf((data.successes[i] as number) / trials, mu, complement);
+    const factor = (weight * residual * link.derivative(value)) / variance;
+    for (let j = 0; j < design.columns; j += 1) {
+      score[j] = (score[j] as number) + (design.values[j * design.rows + i] as number) * factor;
+    }
+  }
+  return score;
+}
+
+interface GlmRows {
+  /** y = successes / trials. */
+  readonly proportions: Float64Array;
+  /** GLM weight = prior weight * trials. */
+  readonly weights: Float64Array;
+}
+
+interface LinkState {
+  readonly mu: Float64Array;
+  readonly complement: Float64Array;
+  readonly derivative: Float64Array;
+  /** sqrt of the IRLS weight w n (dmu/deta)^2 / (mu (1 - mu)); 0 where it underflows. */
+  readonly rootWeights: Float64Array;
+}
+
+function linkState(link: Link, linearPredictor: Float64Array, rows: GlmRows): LinkState {
+  const n = linearPredictor.length;
+  const mu = new Float64Array(n);
+  const complement = new Float64Array(n);
+  const derivative = new Float64Array(n);
+  const rootWeights = new Float64Array(n);
+  for (let i = 0; i < n; i += 1) {
+    const value = linearPredictor[i] as number;
+    mu[i] = link.inverse(value);
+    complement[i] = link.inverseComplement(value);
+    derivative[i] = link.derivative(value);
+    const variance = (mu[i] as number) * (complement[i] as number);
+    const weight = ((rows.weights[i] as number) * (derivative[i] as number) * (derivative[i] as number)) / variance;
+    // Like R's glm.fit `good` rows: a row whose dmu/deta or variance underflows carries no information.
+    rootWeights[i] = variance > 0 && Number.isFinite(weight) ? Math.sqrt(weight) : 0;
+  }
+  return { mu, complement, derivative, rootWeights };
+}
+
+function weightedDesign(design: DesignMatrix, rootWeights: Float64Array): Float64Array {
+  const n = design.rows;
+  const scaled = new Float64Array(design.values.length);
+  for (let j = 0; j < design.columns; j += 1) {
+    for (let i = 0; i < n; i += 1) scaled[j * n + i] = (design.values[j * n + i] as number) * (rootWeights[i] as number);
+  }
+  return scaled;
+}
+
+interface IterationResult {
+  readonly coefficients: Float64Array;
+  readonly iterations: number;
+  readonly converged: boolean;
+  /** The weighted design lost rank: weights vanished (a sign of separation). */
+  readonly weightsCollapsed: boolean;
+  /** Original indices aliased in the weighted design when it lost rank. */
+  readonly collapsedAliased: { readonly aliased: readonly number[] };
+  readonly lastStep: Float64Array;
+  readonly lastLinearPredictorChange: Float64Array;
+  readonly warnings: string[];
+}
+
+/** Fisher scoring / IRLS (McCullagh & Nelder 1989, §2.5), R's starting values and step control. */
+function iterate(
+  design: DesignMatrix,
+  rows: GlmRows,
+  link: Link,
+  maxIterations: number,
+  tolerance: number,
+): IterationResult {
+  const n = design.rows;
+  const columns = design.columns;
+  const warnings: string[] = [];
+  // R binomial()$initialize: mustart = (weights * y + 0.5) / (weights + 1).
+  let linearPredictor: Float64Array = new Float64Array(n);
+  for (let i = 0; i < n; i += 1) {
+    const weight = rows.weights[i] as number;
+    linearPredictor[i] = link.link((weight * (rows.proportions[i] as number) + 0.5) / (weight + 1));
+  }
+  let previousDeviance = devianceAt(link, linearPredictor, rows);
+  let coefficients: Float64Array | null = null;
+  let lastStep: Float64Array = new Float64Array(columns);
+  let lastLinearPredictorChange: Float64Array = new Float64Array(n);
+  let converged = false;
+  let weightsCollapsed = false;
+  let collapsedAliased: { readonly aliased: readonly number[] } = { aliased: [] };
+  let halvingWarned = false;
+  let previousStepInStandardErrors = Infinity;
+  let iterations = 0;
+  while (iterations < maxIterations) {
+    iterations += 1;
+    const state = linkState(link, linearPredictor, rows);
+    const workingResponse = new Float64Array(n);
+    for (let i = 0; i < n; i += 1) {
+      const rootWeight = state.rootWeights[i] as number;
+      if (rootWeight === 0) continue;
+      // z = eta + (y - mu) / (dmu/deta), scaled by sqrt(w).
+      const working =
+        (linearPredictor[i] as number) +
+        residualOf(rows.proportions[i] as number, state.mu[i] as number, state.complement[i] as number) /
+          (state.derivative[i] as number);
+      workingResponse[i] = working * rootWeight;
+    }
+    const qr = householderQr(weightedDesign(design, state.rootWeights), n, columns);
+    if (qr.rank < columns) {
+      weightsCollapsed = true;
+      collapsedAliased = { aliased: qr.aliased };
+      break;
+    }
+    let candidate = solveLeastSquares(qr, workingResponse).coefficients;
+    let candidatePredictor = multiply(design, candidate);
+    let deviance = devianceAt(link, candidatePredictor, rows);
+    // Near the optimum, a non-canonical link switches to Newton-Raphson steps
+    // (observed information), which converge quadratically where Fisher
+    // scoring converges only linearly. Kept only if it does not raise the deviance.
+    if (coefficients !== null && link.name !== 'logit' && previousStepInStandardErrors < NEWTON_SWITCH) {
+      const newton = newtonCandidate(design, rows, link, state, coefficients);
+      if (newton !== null) {
+        const newtonPredictor = multiply(design, newton);
+        const newtonDeviance = devianceAt(link, newtonPredictor, rows);
+        if (Number.isFinite(newtonDeviance) && newtonDeviance <= previousDeviance * (1 + 1e-12) + 1e-12) {
+          candidate = newton;
+          candidatePredictor = newtonPredictor;
+          deviance = newtonDeviance;
+        }
+      }
+    }
+    const anchor = coefficients ?? new Float64Array(columns);
+    let halvings = 0;
+    while (
+      (!Number.isFinite(deviance) || (coefficients !== null && deviance > previousDeviance * (1 + 1e-12) + 1e-12)) &&
+      halvings < MAX_HALVINGS
+    ) {
+      candidate = candidate.map((value, j) => (value + (anchor[j] as number)) / 2);
+      candidatePredictor = multiply(design, candidate);
+      deviance = devianceAt(link, candidatePredictor, rows);
+      halvings += 1;
+    }
+    if (halvings > 0 && !halvingWarned) {
+      warnings.push('step size halved: a Fisher-scoring step raised the deviance or made it non-finite');
+      halvingWarned = true;
+    }
+    if (!Number.isFinite(deviance)) {
+      warnings.push('step halving could not find coefficients with a finite deviance');
+      break;
+    }
+    const unscaled = inverseCrossProduct(qr);
+    let stepInStandardErrors = Infinity;
+    if (coefficients !== null) {
+      stepInStandardErrors = 0;
+      for (let j = 0; j < columns; j += 1) {
+        const step = (candidate[j] as number) - (coefficients[j] as number);
+        lastStep[j] = step;
+        const standardError = Math.sqrt(unscaled[j * columns + j] as number);
+        stepInStandardErrors = Math.max(stepInStandardErrors, Math.abs(step) / standardError);
+      }
+    } else {
+      lastStep = Float64Array.from(candidate);
+    }
+    lastLinearPredictorChange = candidatePredictor.map((value, i) => value - (linearPredictor[i] as number));
+    const firstStep = coefficients === null;
+    coefficients = candidate;
+    linearPredictor = candidatePredictor;
+    previousDeviance = deviance;
+    if (firstStep) continue;
+    // Converged: the step is negligible against the standard errors, or it
+    // is tiny and stopped shrinking (the rounding floor of an ill-conditioned fit).
+    const atRoundingFloor = stepInStandardErrors <= 1e-6 && stepInStandardErrors >= previousStepInStandardErrors;
+    previousStepInStandardErrors = stepInStandardErrors;
+    if (stepInStandardErrors <= tolerance || atRoundingFloor) {
+      converged = true;
+      break;
+    }
+    if (halvings >= MAX_HALVINGS) {
+      warnings.push('step halving could not reduce the deviance further');
+      break;
+    }
+  }
+  return {
+    coefficients: coefficients ?? new Float64Array(columns),
+    iterations,
+    converged,
+    weightsCollapsed,
+    collapsedAliased,
+    lastStep,
+    lastLinearPredictorChange,
+    warnings,
+  };
+}
+
+/**
+ * One Newton-Raphson step from `coefficients`: solve H d = U with the observed
+ * information H = X' diag(o) X, o = w [mu' a - (y - mu) a'], a = mu' / V,
+ * V = mu (1 - mu), and the score U = X' [w (y - mu) a] (McCullagh & Nelder
+ * 1989, §2.5 and §4.4). Null when H is not positive definite.
+ */
+function newtonCandidate(
+  design: DesignMatrix,
+  rows: GlmRows,
+  link: Link,
+  state: LinkState,
+  coefficients: Float64Array,
+): Float64Array | null {
+  const n = design.rows;
+  const columns = design.columns;
+  const hessian = new Float64Array(columns * columns);
+  const score = new Float64Array(columns);
+  const linearPredictor = multiply(design, coefficients);
+  for (let i = 0; i < n; i += 1) {
+    if ((state.rootWeights[i] as number) === 0) continue;
+    const mu = state.mu[i] as number;
+    const complement = state.complement[i] as number;
+    const variance = mu * complement;
+    const first = state.derivative[i] as number;
+    const second = link.secondDerivative(linearPredictor[i] as number);
+    const ratio = first / variance;
+    const ratioDerivative = (second * variance - first * first * (complement - mu)) / (variance * variance);
+    const residual = residualOf(rows.proportions[i] as number, mu, complement);
+    const weight = rows.weights[i] as number;
+    const observedWeight = weight * (first * ratio - residual * ratioDerivative);
+    const scoreFactor = weight * residual * ratio;
+    if (!Number.isFinite(observedWeight) || !Number.isFinite(scoreFactor)) return null;
+    for (let a = 0; a < columns; a += 1) {
+      const left = design.values[a * n + i] as number;
+      score[a] = (score[a] as number) + left * scoreFactor;
+      for (let b = 0; b <= a; b += 1) {
+        hessian[a * columns + b] = (hessian[a * columns + b] as number) + left * observedWeight * (design.values[b * n + i] as number);
+      }
+    }
+  }
+  const step = choleskySolve(hessian, score);
+  if (step === null || !step.every(Number.isFinite)) return null;
+  return coefficients.map((value, j) => value + (step[j] as number));
+}
+
+/** Grouped (saturated-model) deviance at a linear predictor; drives step halving. */
+function devianceAt(link: Link, linearPredictor: Float64Array, rows: GlmRows): number {
+  const n = linearPredictor.length;
+  const mu = new Float64Array(n);
+  const complement = new Float64Array(n);
+  for (let i = 0; i < n; i += 1) {
+    mu[i] = link.inverse(linearPredictor[i] as number);
+    complement[i] = link.inverseComplement(linearPredictor[i] as number);
+  }
+  return groupedDeviance(rows, mu, complement);
+}
+
+/** R's binomial deviance: 2 sum w [y log(y/mu) + (1-y) log((1-y)/(1-mu))], 0 log 0 = 0. */
+function groupedDeviance(rows: GlmRows, mu: Float64Array, complement: Float64Array): number {
+  let sum = 0;
+  for (let i = 0; i < mu.length; i += 1) {
+    const proportion = rows.proportions[i] as number;
+    let term = 0;
+    if (proportion > 0) term += proportion * Math.log(proportion / (mu[i] as number));
+    if (proportion < 1) term += (1 - proportion) * Math.log((1 - proportion) / (complement[i] as number));
+    sum += 2 * (rows.weights[i] as number) * term;
+  }
+  return sum;
+}
+
+/** sum w [y log mu + (1 - y) log(1 - mu)]: the log-likelihood without binomial coefficients. */
+function bernoulliLogLikelihoodOf(rows: GlmRows, mu: Float64Array, complement: Float64Array): number {
+  let sum = 0;
+  for (let i = 0; i < mu.length; i += 1) {
+    const proportion = rows.proportions[i] as number;
+    const weight = rows.weights[i] as number;
+    if (proportion > 0) sum += weight * proportion * Math.log(mu[i] as number);
+    if (proportion < 1) sum += weight * (1 - proportion) * Math.log(complement[i] as number);
+  }
+  return sum;
+}
+
+/**
+ * sum prior * log C(trials, successes), on counts rounded as R's `binomial()$aic`
+ * does, as an exact product sum_{j=1}^{r} log((t - r + j) / j), r = min(s, t - s),
+ * accumulated with Neumaier's compensated summation.
+ */
+function logBinomialCoefficients(
+  successes: Float64Array,
+  trials: Float64Array,
+  priorWeights: Float64Array,
+): { total: number; nonInteger: boolean } {
+  let total = 0;
+  let nonInteger = false;
+  for (let i = 0; i < successes.length; i += 1) {
+    const successCount = Math.round(successes[i] as number);
+    const trialCount = Math.round(trials[i] as number);
+    if (successCount !== successes[i] || trialCount !== trials[i]) nonInteger = true;
+    const smaller = Math.min(successCount, trialCount - successCount);
+    let sum = 0;
+    let compensation = 0;
+    for (let j = 1; j <= smaller; j += 1) {
+      const term = Math.log((trialCount - smaller + j) / j);
+      const next = sum + term;
+      compensation += Math.abs(sum) >= Math.abs(term) ? sum - next + term : term - next + sum;
+      sum = next;
+    }
+    total += (priorWeights[i] as number) * (sum + compensation);
+  }
+  return { total, nonInteger };
+}
+
+/**
+ * y - mu without cancellation: for y >= 1/2 it is (1 - mu) - (1 - y), with
+ * 1 - mu from the link's accurate complement, so a fitted probability that
+ * rounds to 1 still leaves its true residual.
+ */
+function residualOf(proportion: number, mu: number, complement: number): number {
+  return proportion >= 0.5 ? complement - (1 - proportion) : proportion - mu;
+}
+
+function divergingNames(lastStep: Float64Array, names: readonly string[]): string[] {
+  let largest = 0;
+  for (const step of lastStep) largest = Math.max(largest, Math.abs(step));
+  if (!(largest > 0)) return [...names];
+  return names.filter((_, j) => Math.abs(lastStep[j] as number) >= 1e-3 * largest);
+}
+
+function diagonalRoots(matrix: Float64Array, size: number): Float64Array {
+  return Float64Array.from({ length: size }, (_, j) => Math.sqrt(Math.max(0, matrix[j * size + j] as number)));
+}
+
+function checkInput(
+  data: BinomialData,
+  settings: {
+    linkName: LinkName;
+    maxIterations: number;
+    tolerance: number;
+    likelihood: BinomialLikelihood;
+    observationCount: number | undefined;
+  },
+): void {
+  const rows = data.design.rows;
+  const issues: Issue[] = [
+    ...checkFinite('design', data.design.values),
+    ...checkLength('successes', data.successes, rows),
+    ...checkLength('trials', data.trials, rows),
+  ];
+  if (data.priorWeights !== undefined) {
+    issues.push(...checkLength('priorWeights', data.priorWeights, rows), ...checkFinite('priorWeights', data.priorWeights, true));
+  }
+  if (data.clusters !== undefined) issues.push(...checkClusters(data.clusters, rows));
+  if (issues.length === 0) {
+    issues.push(...checkFinite('successes', data.successes, true), ...checkFinite('trials', data.trials, true));
+  }
+  if (issues.length === 0) {
+    for (let i = 0; i < rows; i += 1) {
+      if ((data.successes[i] as number) > (data.trials[i] as number)) {
+        issues.push(
+          error('successes_exceed_trials', `successes[${i}]`, `\`successes\` requires at most \`trials\` (${show(data.trials[i])}), got ${show(data.successes[i])}`),
+        );
+        break;
+      }
+    }
+    let weighted = 0;
+    for (let i = 0; i < rows; i += 1) if ((data.trials[i] as number) * (data.priorWeights?.[i] ?? 1) > 0) weighted += 1;
+    if (weighted === 0) issues.push(error('no_data', 'trials', '`fitBinomial` requires at least one row with trials and weight > 0, got none'));
+  }
+  if (!LINK_NAMES.includes(settings.linkName)) {
+    issues.push(error('invalid_option', 'link', `\`link\` requires one of ${LINK_NAMES.join(', ')}, got ${show(settings.linkName)}`));
+  }
+  if (!Number.isInteger(settings.maxIterations) || settings.maxIterations < 1) {
+    issues.push(error('invalid_option', 'maxIterations', `\`maxIterations\` requires an integer >= 1, got ${show(settings.maxIterations)}`));
+  }
+  if (!(settings.tolerance > 0) || !Number.isFinite(settings.tolerance)) {
+    issues.push(error('invalid_option', 'tolerance', `\`tolerance\` requires a finite number > 0, got ${show(settings.tolerance)}`));
+  }
+  if (settings.likelihood !== 'grouped' && settings.likelihood !== 'bernoulli') {
+    issues.push(error('invalid_option', 'likelihood', `\`likelihood\` requires 'grouped' or 'bernoulli', got ${show(settings.likelihood)}`));
+  }
+  const count = settings.observationCount;
+  if (count !== undefined && (!Number.isFinite(count) || count <= 0)) {
+    issues.push(error('invalid_option', 'observationCount', `\`observationCount\` requires a number > 0, got ${show(count)}`));
+  }
+  if (issues.length > 0) throw new LagparityInputError(issues);
+}
