@@ -12,7 +12,7 @@ export default tseslint.config(
     },
   },
   {
-    files: ['src/cli/**', 'bench/**', 'scripts/**', 'test/**'],
+    files: ['src/cli/**', 'tools/**', 'test/**'],
     rules: { 'no-console': 'off' },
   },
 );
