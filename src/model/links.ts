@@ -83,8 +83,11 @@ const complementaryLogLog: Link = {
   inverseComplement: (linearPredictor) => Math.exp(-Math.exp(linearPredictor)),
   // exp(x) exp(-exp(x)) = exp(x - exp(x)); tends to 0 at both ends without overflow.
   derivative: (linearPredictor) => Math.exp(linearPredictor - Math.exp(linearPredictor)),
-  secondDerivative: (linearPredictor) =>
-    Math.exp(linearPredictor - Math.exp(linearPredictor)) * -Math.expm1(linearPredictor),
+  // exp(x - exp(x)) (1 - exp(x)); the first factor underflows to 0 before the second overflows.
+  secondDerivative: (linearPredictor) => {
+    const first = Math.exp(linearPredictor - Math.exp(linearPredictor));
+    return first === 0 ? 0 : first * -Math.expm1(linearPredictor);
+  },
 };
 
 const links: Readonly<Record<LinkName, Link>> = { logit, probit, cloglog: complementaryLogLog };
