@@ -67,16 +67,16 @@ function expectMatchesR(
     worstEstimate = Math.max(worstEstimate, relativeError(fit.coefficients[j] as number, estimate));
     worstStandardError = Math.max(worstStandardError, relativeError(fit.standardErrors[j] as number, standardError));
   });
-  expect(worstEstimate).toBeLessThan(1e-9);
-  expect(worstStandardError).toBeLessThan(1e-8);
+  expect(worstEstimate).toBeLessThan(1e-9); // R 4.2.2 glm estimates at the MLE, `model` row of `file`
+  expect(worstStandardError).toBeLessThan(1e-8); // R 4.2.2 glm SEs (expected information at the MLE), `model` row of `file`
   const deviance = referenceValue(file, dataset, model, 'deviance'); // R 4.2.2 glm deviance
   const nullDeviance = referenceValue(file, dataset, model, 'null_deviance'); // R 4.2.2 glm null.deviance
   const logLikelihood = referenceValue(file, dataset, model, 'loglik'); // R 4.2.2 logLik(glm)
   const aic = referenceValue(file, dataset, model, 'aic'); // R 4.2.2 AIC(glm)
-  expect(relativeError(fit.deviance, deviance)).toBeLessThan(1e-10);
-  expect(relativeError(fit.nullDeviance, nullDeviance)).toBeLessThan(1e-10);
-  expect(relativeError(fit.logLikelihood, logLikelihood)).toBeLessThan(1e-10);
-  expect(relativeError(fit.aic, aic)).toBeLessThan(1e-10);
+  expect(relativeError(fit.deviance, deviance)).toBeLessThan(1e-10); // R 4.2.2 glm deviance, `model` row of `file`
+  expect(relativeError(fit.nullDeviance, nullDeviance)).toBeLessThan(1e-10); // R 4.2.2 glm null.deviance, `model` row of `file`
+  expect(relativeError(fit.logLikelihood, logLikelihood)).toBeLessThan(1e-10); // R 4.2.2 logLik(glm), `model` row of `file`
+  expect(relativeError(fit.aic, aic)).toBeLessThan(1e-10); // R 4.2.2 AIC(glm), `model` row of `file`
   expect(fit.dfResidual).toBe(referenceValue(file, dataset, model, 'df_residual')); // R 4.2.2 glm df.residual
   expect(fit.dfNull).toBe(referenceValue(file, dataset, model, 'df_null')); // R 4.2.2 glm df.null
   return { estimate: worstEstimate, standardError: worstStandardError };
@@ -94,13 +94,13 @@ describe('fitBinomial()', () => {
       fit.names.forEach((row, a) => {
         fit.names.forEach((column, b) => {
           const value = referenceValue('beetle_glm_r.csv', 'beetle', `${link}_mle`, 'vcov', `${row}:${column}`); // R 4.2.2 vcov(glm), *_mle row, beetle_glm_r.csv
-          expect(relativeError(fit.covariance[a * 2 + b] as number, value)).toBeLessThan(1e-8);
+          expect(relativeError(fit.covariance[a * 2 + b] as number, value)).toBeLessThan(1e-8); // R 4.2.2 vcov(glm), *_mle row, beetle_glm_r.csv
         });
         const z = referenceValue('beetle_glm_r.csv', 'beetle', `${link}_mle`, 'z_value', row); // R 4.2.2 summary.glm z, *_mle row
-        expect(relativeError(fit.zValues[a] as number, z)).toBeLessThan(1e-8);
+        expect(relativeError(fit.zValues[a] as number, z)).toBeLessThan(1e-8); // R 4.2.2 summary.glm z value, *_mle row, beetle_glm_r.csv
       });
       const pearson = referenceValue('beetle_glm_r.csv', 'beetle', `${link}_mle`, 'pearson_chi2'); // R 4.2.2 sum(residuals(fit, "pearson")^2)
-      expect(relativeError(fit.pearsonChiSquare, pearson)).toBeLessThan(1e-9);
+      expect(relativeError(fit.pearsonChiSquare, pearson)).toBeLessThan(1e-9); // R 4.2.2 Pearson X², *_mle row, beetle_glm_r.csv
     });
 
     it('matches the R fitted probabilities to 10 digits', () => {
@@ -145,7 +145,7 @@ describe('fitBinomial()', () => {
     const fit = estimated(fitBinomial(data));
     expectMatchesR(fit, 'binary_glm_r.csv', 'oring_montgomery_runger', 'logit_failure~temp');
     const likelihoodRatio = referenceValue('binary_glm_r.csv', 'oring_montgomery_runger', 'logit_failure~temp', 'G_lr_statistic'); // R 4.2.2 null - residual deviance
-    expect(relativeError(fit.nullDeviance - fit.deviance, likelihoodRatio)).toBeLessThan(1e-9);
+    expect(relativeError(fit.nullDeviance - fit.deviance, likelihoodRatio)).toBeLessThan(1e-9); // R 4.2.2 G = null - residual deviance, binary_glm_r.csv
     expect(fit.coefficients[0]).toBeCloseTo(10.875, 3); // Montgomery & Runger S11-9, Minitab constant
     expect(fit.coefficients[1]).toBeCloseTo(-0.17132, 5); // Montgomery & Runger S11-9, Minitab temperature
     expect(fit.standardErrors[0]).toBeCloseTo(5.703, 3); // Montgomery & Runger S11-9, Minitab SE constant
@@ -176,7 +176,7 @@ describe('fitBinomial()', () => {
     );
     const fit = estimated(fitBinomial(data));
     const stata = [-13.0213483201, 2.82611297201, 0.0951576702557, 2.37868772835]; // Stata 11 via statsmodels results_discrete.py class Spector
-    stata.forEach((value, j) => expect(relativeError(fit.coefficients[j] as number, value)).toBeLessThan(1e-6));
+    stata.forEach((value, j) => expect(relativeError(fit.coefficients[j] as number, value)).toBeLessThan(1e-6)); // Stata 11 Spector logit (statsmodels results_discrete.py), to Stata precision
   });
 
   describe('O-ring counts, grouped versus expanded rows', () => {
@@ -213,6 +213,15 @@ describe('fitBinomial()', () => {
     it('matches R on the grouped counts (deviance 16.91 on 21 df)', () => {
       const fit = estimated(fitBinomial(grouped));
       expectMatchesR(fit, 'binary_glm_r.csv', 'oring_counts', 'logit_binomial_counts', 'std_error_expected_info_at_estimate');
+    });
+
+    it('gives the same estimates and SEs from grouped and expanded rows', () => {
+      const groupedFit = estimated(fitBinomial(grouped));
+      const expandedFit = estimated(fitBinomial(expanded));
+      for (let j = 0; j < 2; j += 1) {
+        expect(relativeError(groupedFit.coefficients[j] as number, expandedFit.coefficients[j] as number)).toBeLessThan(1e-12); // same likelihood kernel (reference README §3c: R agrees to 5e-15)
+        expect(relativeError(groupedFit.standardErrors[j] as number, expandedFit.standardErrors[j] as number)).toBeLessThan(1e-12); // same information matrix
+      }
     });
 
     it('matches R on the 138 expanded 0/1 rows, with either likelihood', () => {
@@ -291,12 +300,12 @@ describe('fitBinomial()', () => {
         const estimate = referenceValue('clustered_robust_r.csv', 'clustered', model, 'estimate', term); // R 4.2.2 glm, clustered_robust_r.csv
         const modelSe = referenceValue('clustered_robust_r.csv', 'clustered', model, 'se_model_based', term); // R 4.2.2 glm expected information, clustered_robust_r.csv
         const robustSe = referenceValue('clustered_robust_r.csv', 'clustered', model, 'se_CR1_G_and_n_adjust', term); // R sandwich 3.0-2 vcovCL(type = "HC1", cadjust = TRUE)
-        expect(relativeError(fit.coefficients[j] as number, estimate)).toBeLessThan(1e-9);
-        expect(relativeError(fit.standardErrors[j] as number, modelSe)).toBeLessThan(1e-8);
-        expect(relativeError(robust.standardErrors[j] as number, robustSe)).toBeLessThan(1e-8);
+        expect(relativeError(fit.coefficients[j] as number, estimate)).toBeLessThan(1e-9); // R 4.2.2 glm estimate, clustered_robust_r.csv
+        expect(relativeError(fit.standardErrors[j] as number, modelSe)).toBeLessThan(1e-8); // R 4.2.2 glm model-based SE, clustered_robust_r.csv
+        expect(relativeError(robust.standardErrors[j] as number, robustSe)).toBeLessThan(1e-8); // R sandwich 3.0-2 vcovCL HC1 (CR1), clustered_robust_r.csv
         fit.names.forEach((other, b) => {
           const value = referenceValue('clustered_robust_r.csv', 'clustered', model, 'vcov_CR1_G_and_n_adjust', `${term}:${other}`); // R sandwich 3.0-2 vcovCL HC1, clustered_robust_r.csv
-          expect(Math.abs((robust.covariance[j * 3 + b] as number) - value)).toBeLessThan(1e-8 * Math.abs(value) + 1e-15);
+          expect(Math.abs((robust.covariance[j * 3 + b] as number) - value)).toBeLessThan(1e-8 * Math.abs(value) + 1e-15); // R sandwich 3.0-2 vcovCL HC1 (CR1) covariance, clustered_robust_r.csv
         });
       });
     });

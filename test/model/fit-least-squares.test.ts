@@ -29,8 +29,8 @@ describe('fitLeastSquares()', () => {
     for (let j = 0; j < 7; j += 1) {
       const estimate = certifiedValue('longley', 'estimate', `B${j}`); // NIST StRD certified, Longley.dat (nist_certified.csv)
       const standardError = certifiedValue('longley', 'std_error', `B${j}`); // NIST StRD certified, Longley.dat (nist_certified.csv)
-      expect(relativeError(fit.coefficients[j] as number, estimate)).toBeLessThan(1e-9);
-      expect(relativeError(fit.standardErrors?.[j] as number, standardError)).toBeLessThan(1e-9);
+      expect(relativeError(fit.coefficients[j] as number, estimate)).toBeLessThan(1e-9); // NIST StRD certified Longley estimate, nist_certified.csv
+      expect(relativeError(fit.standardErrors?.[j] as number, standardError)).toBeLessThan(1e-9); // NIST StRD certified Longley SD of estimate, nist_certified.csv
     }
   });
 
@@ -38,8 +38,8 @@ describe('fitLeastSquares()', () => {
     const fit = nistFit('longley.csv', ['x1', 'x2', 'x3', 'x4', 'x5', 'x6']);
     const residualSd = certifiedValue('longley', 'residual_sd'); // NIST StRD certified, Longley.dat (nist_certified.csv)
     const rSquared = certifiedValue('longley', 'r_squared'); // NIST StRD certified, Longley.dat (nist_certified.csv)
-    expect(relativeError(fit.residualStandardDeviation as number, residualSd)).toBeLessThan(1e-9);
-    expect(relativeError(fit.rSquared as number, rSquared)).toBeLessThan(1e-9);
+    expect(relativeError(fit.residualStandardDeviation as number, residualSd)).toBeLessThan(1e-9); // NIST StRD certified Longley residual SD, nist_certified.csv
+    expect(relativeError(fit.rSquared as number, rSquared)).toBeLessThan(1e-9); // NIST StRD certified Longley R², nist_certified.csv
     expect(fit.dfResidual).toBe(9); // NIST StRD certified residual df, Longley.dat
   });
 
@@ -48,13 +48,13 @@ describe('fitLeastSquares()', () => {
     for (let j = 0; j < 2; j += 1) {
       const estimate = certifiedValue('norris', 'estimate', `B${j}`); // NIST StRD certified, Norris.dat (nist_certified.csv)
       const standardError = certifiedValue('norris', 'std_error', `B${j}`); // NIST StRD certified, Norris.dat (nist_certified.csv)
-      expect(relativeError(fit.coefficients[j] as number, estimate)).toBeLessThan(1e-12);
-      expect(relativeError(fit.standardErrors?.[j] as number, standardError)).toBeLessThan(1e-10);
+      expect(relativeError(fit.coefficients[j] as number, estimate)).toBeLessThan(1e-12); // NIST StRD certified Norris estimate, nist_certified.csv
+      expect(relativeError(fit.standardErrors?.[j] as number, standardError)).toBeLessThan(1e-10); // NIST StRD certified Norris SD of estimate, nist_certified.csv
     }
     const residualSd = certifiedValue('norris', 'residual_sd'); // NIST StRD certified, Norris.dat (nist_certified.csv)
     const rSquared = certifiedValue('norris', 'r_squared'); // NIST StRD certified, Norris.dat (nist_certified.csv)
-    expect(relativeError(fit.residualStandardDeviation as number, residualSd)).toBeLessThan(1e-10);
-    expect(relativeError(fit.rSquared as number, rSquared)).toBeLessThan(1e-12);
+    expect(relativeError(fit.residualStandardDeviation as number, residualSd)).toBeLessThan(1e-10); // NIST StRD certified Norris residual SD, nist_certified.csv
+    expect(relativeError(fit.rSquared as number, rSquared)).toBeLessThan(1e-12); // NIST StRD certified Norris R², nist_certified.csv
   });
 
   it('matches R sandwich CR1 standard errors on the clustered data to 1e-8', () => {
@@ -73,15 +73,15 @@ describe('fitLeastSquares()', () => {
       const estimate = referenceValue('clustered_robust_r.csv', 'clustered', model, 'estimate', term); // R 4.2.2 lm, clustered_robust_r.csv
       const modelSe = referenceValue('clustered_robust_r.csv', 'clustered', model, 'se_model_based', term); // R 4.2.2 lm, clustered_robust_r.csv
       const robustSe = referenceValue('clustered_robust_r.csv', 'clustered', model, 'se_CR1_G_and_n_adjust', term); // R sandwich 3.0-2 vcovCL HC1, clustered_robust_r.csv
-      expect(relativeError(fit.coefficients[j] as number, estimate)).toBeLessThan(1e-12);
-      expect(relativeError(fit.standardErrors?.[j] as number, modelSe)).toBeLessThan(1e-10);
-      expect(relativeError(fit.robust?.standardErrors[j] as number, robustSe)).toBeLessThan(1e-8);
+      expect(relativeError(fit.coefficients[j] as number, estimate)).toBeLessThan(1e-12); // R 4.2.2 lm estimate, clustered_robust_r.csv
+      expect(relativeError(fit.standardErrors?.[j] as number, modelSe)).toBeLessThan(1e-10); // R 4.2.2 lm model-based SE, clustered_robust_r.csv
+      expect(relativeError(fit.robust?.standardErrors[j] as number, robustSe)).toBeLessThan(1e-8); // R sandwich 3.0-2 vcovCL HC1 (CR1), clustered_robust_r.csv
     });
     expect(fit.robust?.clusters).toBe(12); // reference README §3e: G = 12
     terms.forEach((row, a) =>
       terms.forEach((column, b) => {
         const value = referenceValue('clustered_robust_r.csv', 'clustered', model, 'vcov_CR1_G_and_n_adjust', `${row}:${column}`); // R sandwich 3.0-2 vcovCL HC1, clustered_robust_r.csv
-        expect(Math.abs((fit.robust?.covariance[a * 3 + b] as number) - value)).toBeLessThan(1e-8 * Math.abs(value) + 1e-15);
+        expect(Math.abs((fit.robust?.covariance[a * 3 + b] as number) - value)).toBeLessThan(1e-8 * Math.abs(value) + 1e-15); // R sandwich 3.0-2 vcovCL HC1 (CR1) covariance, clustered_robust_r.csv
       }),
     );
   });

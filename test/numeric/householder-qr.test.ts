@@ -31,7 +31,7 @@ describe('householderQr()', () => {
     const solution = solveLeastSquares(householderQr(line, 3, 2), [2, 5, 8]);
     expect(solution.coefficients[0]).toBeCloseTo(2, 14); // y = 2 + 3x by construction
     expect(solution.coefficients[1]).toBeCloseTo(3, 14); // y = 2 + 3x by construction
-    solution.residuals.forEach((value) => expect(Math.abs(value)).toBeLessThan(1e-14));
+    solution.residuals.forEach((value) => expect(Math.abs(value)).toBeLessThan(1e-14)); // consistent system: exact residual 0
   });
 
   it('gives the textbook least-squares line through (0,1), (1,1), (2,4)', () => {
