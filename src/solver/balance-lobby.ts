@@ -1,5 +1,5 @@
 /**
- * `balanceLobby(lobby, model, rules)`: per-player scales for one match.
+ * `balanceLobby(lobby, model, rules, options?)`: per-player scales for one match.
  *
  * Pure and synchronous. The model and rules are compiled once
  * (`compileModel`, `compileRules`); the lobby is a value of the lobby format
@@ -7,17 +7,21 @@
  * tagged with `status`:
  * - `balanced`: every eligible player within the accepted gap of the target;
  * - `capped`: some player is held below the target by more than the accepted gap;
- * - `rejected`: the lobby cannot be solved with this model (issues say why).
+ * - `rejected`: the lobby cannot be solved with this model and rules (issues say why).
+ *
+ * The views (duel, exploit, uncertainty) are for reports and are off by
+ * default: a matchmaker's hot path solves the scales and the summary only.
  */
-import { type Issue, error, show, warning } from '../issues.js';
+import { type Issue, show, warning } from '../issues.js';
 import type { LobbyFile } from '../formats/lobby-file.js';
-import type { CompiledModel, PredictorLine } from '../model/compile.js';
-import { scaleTermValue } from '../model/terms.js';
+import type { CompiledModel } from '../model/compile.js';
 import { jainIndex } from '../stats/jain-index.js';
-import { quantileSorted } from '../stats/quantile.js';
 import type { CompiledRules } from './rules.js';
-import { type PlayerCurve, expectedAtTerm, playerCurve, smallestSlope } from './player-curve.js';
-import { type Binding, type ScaleSolution, solveScales } from './solve-scales.js';
+import { type LobbySolve, solveLobby } from './solve-lobby.js';
+import { BINDINGS, type Binding, type ScaleForm, termOf } from './solve-scales.js';
+import { type DuelView, duelView } from './views/duel-view.js';
+import { type ExploitView, exploitView } from './views/exploit-view.js';
+import { type UncertaintyOptions, type UncertaintyView, uncertaintyView } from './views/uncertainty-view.js';
 
 export interface PlayerBalance {
   readonly id: string;
@@ -50,12 +54,30 @@ export interface LobbySummary {
   /** Jain's fairness index of the eligible players' expected hit probabilities (1 = all equal). */
   readonly jain_before: number;
   readonly jain_after: number;
+  /** Per team (eligible players with a team), by team name. */
   readonly teams: readonly TeamFigures[];
   /** Largest minus smallest team mean of expected hit probability; null with fewer than two teams. */
   readonly team_gap_before: number | null;
   readonly team_gap_after: number | null;
   readonly assistance: number;
   readonly eligible_players: number;
+}
+
+/** The report views, present when asked for in `BalanceOptions.views`. */
+export interface LobbyViews {
+  readonly duel?: DuelView;
+  readonly exploit?: ExploitView;
+  readonly uncertainty?: UncertaintyView;
+}
+
+export interface BalanceOptions {
+  /** Report views; all off by default (the matchmaker's hot path). */
+  readonly views?: {
+    readonly duel?: boolean;
+    readonly exploit?: boolean;
+    /** `true` for 200 draws with the fixed default seed, or the draws and seed. */
+    readonly uncertainty?: boolean | UncertaintyOptions;
+  };
 }
 
 export type BalanceResult =
@@ -68,168 +90,153 @@ export type BalanceResult =
       readonly level: number;
       readonly players: readonly PlayerBalance[];
       readonly summary: LobbySummary;
+      readonly views?: LobbyViews;
       readonly warnings: readonly Issue[];
     }
   | { readonly status: 'rejected'; readonly match_id: string; readonly issues: readonly Issue[]; readonly warnings: readonly Issue[] };
 
-/** A player reduced to what the solver needs. */
-export interface PreparedPlayer {
-  readonly id: string;
-  readonly team: string | null;
-  readonly latencyEstimate: number;
-  readonly eligible: boolean;
-  readonly curve: PlayerCurve;
+/** Sum of a small array in ascending order, so that it does not depend on the players' order. */
+function orderedSum(values: Float64Array): number {
+  values.sort();
+  let sum = 0;
+  for (let index = 0; index < values.length; index += 1) sum += values[index] as number;
+  return sum;
 }
 
-/** The latency the estimator takes from one or more samples, and the latencies the curve averages over. */
-export function estimateLatency(latency: number | readonly number[], rules: CompiledRules): { estimate: number; points: ArrayLike<number> } {
-  if (typeof latency === 'number') return { estimate: latency, points: [latency] };
-  const estimator = rules.latency_estimator;
-  if (estimator === 'all_samples') {
-    let sum = 0;
-    for (const value of latency) sum += value;
-    return { estimate: sum / latency.length, points: latency };
+function teamFigures(players: readonly PlayerBalance[]): TeamFigures[] {
+  let names: string[] | null = null;
+  for (const player of players) {
+    if (player.eligible && player.team !== null && (names === null || !names.includes(player.team))) (names ??= []).push(player.team);
   }
-  const sorted = Float64Array.from(latency).sort();
-  const value = quantileSorted(sorted, estimator === 'median' ? 0.5 : estimator.percentile / 100, 7);
-  return { estimate: value, points: [value] };
-}
-
-/** Prepare the players of a lobby at a predictor line. Pure; shared with the exploit and uncertainty views. */
-export function preparePlayers(lobby: LobbyFile, line: PredictorLine, rules: CompiledRules): PreparedPlayer[] {
-  return lobby.players.map((player) => {
-    const { estimate, points } = estimateLatency(player.latency_ms, rules);
-    const eligible = rules.latency_limit_ms === null || estimate <= rules.latency_limit_ms;
-    return { id: player.id, team: player.team ?? null, latencyEstimate: estimate, eligible, curve: playerCurve(line, points) };
-  });
-}
-
-function targetOf(prepared: readonly PreparedPlayer[], model: CompiledModel, line: PredictorLine, rules: CompiledRules): number {
-  const unitTerm = scaleTermValue(model.scaleForm, 1);
-  const spec = rules.target;
-  if (spec.kind === 'fixed') return spec.probability;
-  if (spec.kind === 'reference_latency') return expectedAtTerm(playerCurve(line, [spec.latency_ms]), model.link, unitTerm);
-  let best = -Infinity;
-  for (const player of prepared) if (player.eligible) best = Math.max(best, expectedAtTerm(player.curve, model.link, unitTerm));
-  return best;
-}
-
-/** Eligible players from best-connected to worst: highest unscaled performance first, ties by id. */
-function performanceOrder(curves: readonly PlayerCurve[], ids: readonly string[], before: (curve: PlayerCurve) => number): number[] {
-  const values = curves.map(before);
-  return curves
-    .map((_, index) => index)
-    .sort((left, right) => (values[right] ?? 0) - (values[left] ?? 0) || ((ids[left] ?? '') < (ids[right] ?? '') ? -1 : (ids[left] ?? '') > (ids[right] ?? '') ? 1 : 0));
-}
-
-/** Solve prepared players; returns the solution over the eligible players, or issues. */
-export function solvePrepared(
-  prepared: readonly PreparedPlayer[],
-  model: CompiledModel,
-  line: PredictorLine,
-  rules: CompiledRules,
-): { solution: ScaleSolution; eligibleIndex: number[] } | { issues: Issue[] } {
-  if (model.scaleForm === 'none') {
-    return { issues: [error('no_scale_term', 'model.terms', 'compensation requires a model with a scale term (scale or log_scale), got none')] };
-  }
-  const eligibleIndex: number[] = [];
-  prepared.forEach((player, index) => {
-    if (player.eligible) eligibleIndex.push(index);
-  });
-  if (eligibleIndex.length === 0) {
-    return { issues: [error('no_eligible_player', 'players', `a lobby requires at least one player within the latency limit (${rules.latency_limit_ms} ms), got none`)] };
-  }
-  const issues: Issue[] = [];
-  for (const index of eligibleIndex) {
-    const player = prepared[index] as PreparedPlayer;
-    if (!(smallestSlope(player.curve) > 0)) {
-      issues.push(error('scale_not_increasing', `players[${index}]`, `compensation requires hit probability to increase with the scale, but under this model it does not for player ${show(player.id)} at ${player.latencyEstimate.toFixed(1)} ms (the scale term's coefficient there is ${smallestSlope(player.curve).toPrecision(3)})`));
+  if (names === null) return [];
+  names.sort();
+  return names.map((team) => {
+    let count = 0;
+    for (const player of players) if (player.eligible && player.team === team) count += 1;
+    const before = new Float64Array(count);
+    const after = new Float64Array(count);
+    let position = 0;
+    for (const player of players) {
+      if (!player.eligible || player.team !== team) continue;
+      before[position] = player.expected_before;
+      after[position] = player.expected_after;
+      position += 1;
     }
+    return { team, players: count, mean_before: orderedSum(before) / count, mean_after: orderedSum(after) / count };
+  });
+}
+
+function spread(values: readonly TeamFigures[], pick: (team: TeamFigures) => number): number {
+  let smallest = Infinity;
+  let largest = -Infinity;
+  for (const value of values) {
+    const figure = pick(value);
+    if (figure < smallest) smallest = figure;
+    if (figure > largest) largest = figure;
   }
-  if (issues.length > 0) return { issues };
-  const form = model.scaleForm;
-  const curves = eligibleIndex.map((index) => (prepared[index] as PreparedPlayer).curve);
-  const ids = eligibleIndex.map((index) => (prepared[index] as PreparedPlayer).id);
-  const target = targetOf(prepared, model, line, rules);
-  const unitTerm = scaleTermValue(form, 1);
-  const order = performanceOrder(curves, ids, (curve) => expectedAtTerm(curve, model.link, unitTerm));
-  return { solution: solveScales(curves, target, order, model.link, form, rules), eligibleIndex };
+  return largest - smallest;
 }
 
-function spread(values: readonly number[]): number {
-  return values.length === 0 ? 0 : Math.max(...values) - Math.min(...values);
-}
-
-function trainingWarnings(prepared: readonly PreparedPlayer[], model: CompiledModel, scales: readonly number[]): Issue[] {
-  const warnings: Issue[] = [];
+function trainingWarnings(players: readonly PlayerBalance[], model: CompiledModel): Issue[] {
+  let warnings: Issue[] | null = null;
   const { latency_ms: latencyRange, scale: scaleRange } = model.training;
-  prepared.forEach((player, index) => {
+  players.forEach((player, index) => {
     if (!player.eligible) return;
-    if (player.latencyEstimate < latencyRange.min || player.latencyEstimate > latencyRange.max) {
-      warnings.push(warning('outside_training_range', `players[${index}].latency_ms`, `player ${show(player.id)} at ${player.latencyEstimate.toFixed(1)} ms is outside the model's training latencies ${latencyRange.min}-${latencyRange.max} ms: the prediction is an extrapolation`));
+    if (player.latency_estimate_ms < latencyRange.min || player.latency_estimate_ms > latencyRange.max) {
+      (warnings ??= []).push(warning('outside_training_range', `players[${index}].latency_ms`, `player ${show(player.id)} at ${player.latency_estimate_ms.toFixed(1)} ms is outside the model's training latencies ${latencyRange.min}-${latencyRange.max} ms: the prediction is an extrapolation`));
     }
-    const scale = scales[index] ?? 1;
-    if (scale > scaleRange.max + 1e-12 || scale < scaleRange.min - 1e-12) {
-      warnings.push(warning('outside_training_range', `players[${index}].scale`, `the scale ${scale.toFixed(3)} for player ${show(player.id)} is outside the model's training scales ${scaleRange.min}-${scaleRange.max}: the prediction is an extrapolation`));
+    if (player.scale > scaleRange.max + 1e-12 || player.scale < scaleRange.min - 1e-12) {
+      (warnings ??= []).push(warning('outside_training_range', `players[${index}].scale`, `the scale ${player.scale.toFixed(3)} for player ${show(player.id)} is outside the model's training scales ${scaleRange.min}-${scaleRange.max}: the prediction is an extrapolation`));
     }
   });
-  return warnings;
+  return warnings ?? [];
 }
 
-/** Balance one lobby. See the module comment for the result's meaning. */
-export function balanceLobby(lobby: LobbyFile, model: CompiledModel, rules: CompiledRules): BalanceResult {
+function playersOf(lobby: LobbyFile, model: CompiledModel, solved: LobbySolve): PlayerBalance[] {
+  const { solution, slots, estimates } = solved;
+  const target = solution.target;
+  const players: PlayerBalance[] = new Array<PlayerBalance>(lobby.players.length);
+  for (let index = 0; index < players.length; index += 1) {
+    const player = lobby.players[index] as LobbyFile['players'][number];
+    const slot = slots[index] as number;
+    if (slot < 0) {
+      // Ineligible: reported at scale 1, with the prediction averaged over all their samples.
+      const samples = typeof player.latency_ms === 'number' ? [player.latency_ms] : player.latency_ms;
+      let sum = 0;
+      const { base, basePerMs, scaleSlope, scaleSlopePerMs } = solved.line;
+      const unitTerm = termOf(model.scaleForm as ScaleForm, 1);
+      for (const value of samples) sum += model.link.inverse(base + basePerMs * value + (scaleSlope + scaleSlopePerMs * value) * unitTerm);
+      const before = sum / samples.length;
+      players[index] = { id: player.id, team: player.team ?? null, eligible: false, latency_estimate_ms: estimates[index] as number, scale: 1, expected_before: before, expected_after: before, gap_to_target: target - before, binding: 'ineligible' };
+      continue;
+    }
+    const after = solution.after[slot] as number;
+    players[index] = {
+      id: player.id,
+      team: player.team ?? null,
+      eligible: true,
+      latency_estimate_ms: estimates[index] as number,
+      scale: solution.scales[slot] as number,
+      expected_before: solution.before[slot] as number,
+      expected_after: after,
+      gap_to_target: target - after,
+      binding: BINDINGS[solution.binding[slot] as number] as Binding,
+    };
+  }
+  return players;
+}
+
+/**
+ * Balance one lobby. See the module comment for the result's meaning.
+ *
+ * Cost without views: O(players x samples) (a closed form per player for
+ * point latencies or a robust estimator; a safeguarded Newton solve per
+ * player for `all_samples`), times about 50 with a binding budget, plus a
+ * sort of the players when rounding, a soft cap, a budget or sampled curves
+ * need the best-connected order. Views: duel O(players^2), exploit
+ * O(players^2 x samples), uncertainty O(draws x players x samples).
+ *
+ * @example
+ *   const result = balanceLobby(lobby, model, rules);
+ *   if (result.status !== 'rejected') for (const player of result.players) engine.setScale(player.id, player.scale);
+ */
+export function balanceLobby(lobby: LobbyFile, model: CompiledModel, rules: CompiledRules, options: BalanceOptions = {}): BalanceResult {
   const lineResult = model.lineAt(lobby.difficulty);
   if (!lineResult.ok) return { status: 'rejected', match_id: lobby.match_id, issues: lineResult.issues, warnings: [] };
-  const line = lineResult.value;
-  const prepared = preparePlayers(lobby, line, rules);
-  const solved = solvePrepared(prepared, model, line, rules);
-  if ('issues' in solved) return { status: 'rejected', match_id: lobby.match_id, issues: solved.issues, warnings: [] };
-  const { solution, eligibleIndex } = solved;
-  const position = new Map<number, number>();
-  eligibleIndex.forEach((playerIndex, slot) => position.set(playerIndex, slot));
-  const unitTerm = scaleTermValue(model.scaleForm, 1);
-  const players: PlayerBalance[] = prepared.map((player, index) => {
-    const slot = position.get(index);
-    if (slot === undefined) {
-      const before = expectedAtTerm(player.curve, model.link, unitTerm);
-      return { id: player.id, team: player.team, eligible: false, latency_estimate_ms: player.latencyEstimate, scale: 1, expected_before: before, expected_after: before, gap_to_target: solution.target - before, binding: 'ineligible' };
-    }
-    const after = solution.after[slot] ?? 0;
-    return {
-      id: player.id,
-      team: player.team,
-      eligible: true,
-      latency_estimate_ms: player.latencyEstimate,
-      scale: solution.scales[slot] ?? 1,
-      expected_before: solution.before[slot] ?? 0,
-      expected_after: after,
-      gap_to_target: solution.target - after,
-      binding: solution.binding[slot] ?? 'none',
-    };
-  });
-  const eligible = players.filter((player) => player.eligible);
-  const beforeValues = eligible.map((player) => player.expected_before);
-  const afterValues = eligible.map((player) => player.expected_after);
-  const teamNames = [...new Set(eligible.map((player) => player.team).filter((team): team is string => team !== null))].sort();
-  const teams: TeamFigures[] = teamNames.map((team) => {
-    const members = eligible.filter((player) => player.team === team);
-    const mean = (values: number[]) => values.reduce((sum, value) => sum + value, 0) / values.length;
-    return { team, players: members.length, mean_before: mean(members.map((player) => player.expected_before)), mean_after: mean(members.map((player) => player.expected_after)) };
-  });
+  const solvedResult = solveLobby(lobby, model, lineResult.value, rules);
+  if (!solvedResult.ok) return { status: 'rejected', match_id: lobby.match_id, issues: solvedResult.issues, warnings: [] };
+  const solved = solvedResult.value;
+  const { solution } = solved;
+  const players = playersOf(lobby, model, solved);
+  const count = solution.before.length;
+  let worstGap = -Infinity;
+  let lowestBefore = Infinity;
+  let highestBefore = -Infinity;
+  let lowestAfter = Infinity;
+  let highestAfter = -Infinity;
+  for (let slot = 0; slot < count; slot += 1) {
+    const before = solution.before[slot] as number;
+    const after = solution.after[slot] as number;
+    if (before < lowestBefore) lowestBefore = before;
+    if (before > highestBefore) highestBefore = before;
+    if (after < lowestAfter) lowestAfter = after;
+    if (after > highestAfter) highestAfter = after;
+    if (solution.target - after > worstGap) worstGap = solution.target - after;
+  }
+  const teams = teamFigures(players);
   const summary: LobbySummary = {
-    largest_gap_before: spread(beforeValues),
-    largest_gap_after: spread(afterValues),
-    jain_before: jainIndex(beforeValues),
-    jain_after: jainIndex(afterValues),
+    largest_gap_before: highestBefore - lowestBefore,
+    largest_gap_after: highestAfter - lowestAfter,
+    jain_before: jainIndex(Float64Array.from(solution.before).sort()),
+    jain_after: jainIndex(Float64Array.from(solution.after).sort()),
     teams,
-    team_gap_before: teams.length < 2 ? null : spread(teams.map((team) => team.mean_before)),
-    team_gap_after: teams.length < 2 ? null : spread(teams.map((team) => team.mean_after)),
+    team_gap_before: teams.length < 2 ? null : spread(teams, (team) => team.mean_before),
+    team_gap_after: teams.length < 2 ? null : spread(teams, (team) => team.mean_after),
     assistance: solution.assistance,
-    eligible_players: eligible.length,
+    eligible_players: count,
   };
-  const worstGap = Math.max(...eligible.map((player) => player.gap_to_target));
-  return {
-    status: worstGap > rules.accepted_gap ? 'capped' : 'balanced',
+  const result = {
+    status: worstGap > rules.accepted_gap ? ('capped' as const) : ('balanced' as const),
     match_id: lobby.match_id,
     attribute: lobby.attribute,
     difficulty: lobby.difficulty,
@@ -237,6 +244,13 @@ export function balanceLobby(lobby: LobbyFile, model: CompiledModel, rules: Comp
     level: solution.level,
     players,
     summary,
-    warnings: trainingWarnings(prepared, model, players.map((player) => player.scale)),
+    warnings: trainingWarnings(players, model),
   };
+  const asked = options.views;
+  if (asked === undefined || !(asked.duel || asked.exploit || asked.uncertainty)) return result;
+  const views: { duel?: DuelView; exploit?: ExploitView; uncertainty?: UncertaintyView } = {};
+  if (asked.duel) views.duel = duelView(players, rules);
+  if (asked.exploit) views.exploit = exploitView(lobby, model, rules, solved);
+  if (asked.uncertainty) views.uncertainty = uncertaintyView(lobby, model, rules, solved, asked.uncertainty === true ? {} : asked.uncertainty);
+  return { ...result, views };
 }

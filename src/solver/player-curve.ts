@@ -1,22 +1,29 @@
 /**
- * A player's expected performance as a function of their scale:
+ * Players' expected performance as a function of their scale, for a whole
+ * lobby at once:
  *
- *     E(s) = mean over latency samples j of  g^-1( alpha_j + beta_j h(s) )
+ *     E_i(s) = mean over latency samples j of player i of  g^-1( alpha_j + beta_j h(s) )
  *
- * where g is the link, h(s) the scale term (log s or s) and alpha_j, beta_j the
- * model's predictor line at sample j's latency. E is strictly increasing in s
- * exactly when every beta_j > 0 (each summand is then increasing); the solver
- * refuses a model for which that fails.
+ * where g is the link, h(s) the scale term (log s or s) and alpha_j, beta_j
+ * the model's predictor line at sample j's latency. E_i is strictly increasing
+ * in s exactly when every beta_j > 0 (each summand is then increasing); the
+ * solver refuses a model for which that fails.
+ *
+ * The players' samples are held in one flat pair of arrays (`CurveSet`), so a
+ * lobby costs two allocations, not two per player.
  *
  * The inverse has a closed form for one latency value,
  * h(s) = (g(T) - alpha) / beta; for several samples it is found by a
- * safeguarded Newton iteration inside a bracket (Press et al., Numerical
- * Recipes, 3rd ed., section 9.4, "rtsafe"), to 1e-12 in probability.
+ * safeguarded Newton iteration inside a bracket (Press, W. H. et al. (2007),
+ * Numerical Recipes, 3rd ed., section 9.4, `rtsafe`), to 1e-12 in probability.
  */
 import type { Link } from '../model/links.js';
 import type { PredictorLine } from '../model/compile.js';
 
-export interface PlayerCurve {
+/** The predictor lines of every sample of every player; player i owns samples offsets[i] .. offsets[i + 1] - 1. */
+export interface CurveSet {
+  readonly count: number;
+  readonly offsets: Int32Array;
   readonly alphas: Float64Array;
   readonly betas: Float64Array;
 }
@@ -24,73 +31,115 @@ export interface PlayerCurve {
 /** Tolerance on probability for the iterative inverse. */
 export const PROBABILITY_TOLERANCE = 1e-12;
 
-export function playerCurve(line: PredictorLine, latencies: ArrayLike<number>): PlayerCurve {
+const MAXIMUM_ITERATIONS = 200;
+
+/**
+ * Build the curves of players from their latencies (one array of latencies per
+ * player, each non-empty) at a predictor line.
+ *
+ * Cost: O(total samples); three typed-array allocations.
+ */
+export function curveSet(line: PredictorLine, latencies: readonly ArrayLike<number>[]): CurveSet {
   const count = latencies.length;
-  const alphas = new Float64Array(count);
-  const betas = new Float64Array(count);
-  for (let index = 0; index < count; index += 1) {
-    const latency = latencies[index] ?? 0;
-    alphas[index] = line.base + line.basePerMs * latency;
-    betas[index] = line.scaleSlope + line.scaleSlopePerMs * latency;
+  const offsets = new Int32Array(count + 1);
+  let total = 0;
+  for (let player = 0; player < count; player += 1) {
+    total += (latencies[player] as ArrayLike<number>).length;
+    offsets[player + 1] = total;
   }
-  return { alphas, betas };
+  const alphas = new Float64Array(total);
+  const betas = new Float64Array(total);
+  let position = 0;
+  for (let player = 0; player < count; player += 1) {
+    const samples = latencies[player] as ArrayLike<number>;
+    for (let index = 0; index < samples.length; index += 1) {
+      const latency = samples[index] as number;
+      alphas[position] = line.base + line.basePerMs * latency;
+      betas[position] = line.scaleSlope + line.scaleSlopePerMs * latency;
+      position += 1;
+    }
+  }
+  return { count, offsets, alphas, betas };
 }
 
-/** The smallest scale-term coefficient over the samples; E is increasing iff this is > 0. */
-export function smallestSlope(curve: PlayerCurve): number {
+/** The smallest scale-term coefficient over a player's samples; E is increasing in s iff this is > 0. */
+export function smallestSlope(curves: CurveSet, player: number): number {
+  const end = curves.offsets[player + 1] as number;
   let smallest = Infinity;
-  for (const beta of curve.betas) smallest = Math.min(smallest, beta);
+  for (let index = curves.offsets[player] as number; index < end; index += 1) {
+    const beta = curves.betas[index] as number;
+    if (beta < smallest) smallest = beta;
+  }
   return smallest;
 }
 
-/** E at a scale-term value (h(s)). */
-export function expectedAtTerm(curve: PlayerCurve, link: Link, term: number): number {
-  const { alphas, betas } = curve;
-  const count = alphas.length;
+/** E_i at a scale-term value h(s). Cost: one inverse link per sample. */
+export function expectedAtTerm(curves: CurveSet, player: number, link: Link, term: number): number {
+  const start = curves.offsets[player] as number;
+  const end = curves.offsets[player + 1] as number;
+  const { alphas, betas } = curves;
+  if (end - start === 1) return link.inverse((alphas[start] as number) + (betas[start] as number) * term);
   let sum = 0;
-  for (let index = 0; index < count; index += 1) sum += link.inverse((alphas[index] ?? 0) + (betas[index] ?? 0) * term);
-  return sum / count;
-}
-
-function expectedAndSlope(curve: PlayerCurve, link: Link, term: number): { value: number; slope: number } {
-  const { alphas, betas } = curve;
-  const count = alphas.length;
-  let value = 0;
-  let slope = 0;
-  for (let index = 0; index < count; index += 1) {
-    const beta = betas[index] ?? 0;
-    const predictor = (alphas[index] ?? 0) + beta * term;
-    value += link.inverse(predictor);
-    slope += beta * link.derivative(predictor);
-  }
-  return { value: value / count, slope: slope / count };
+  for (let index = start; index < end; index += 1) sum += link.inverse((alphas[index] as number) + (betas[index] as number) * term);
+  return sum / (end - start);
 }
 
 /**
- * The scale-term value at which E reaches `target`, searched in [low, high].
- * Returns `low` if E(low) >= target and `high` if E(high) < target.
+ * The scale-term value at which player `player`'s E reaches `target`, searched
+ * in [low, high]: `low` if E(low) >= target, `high` if E(high) < target.
+ * `linkedTarget` is `link.link(target)`, passed in so that a lobby computes it
+ * once per level rather than once per player.
+ *
+ * One sample: closed form. Several: Newton steps kept inside a shrinking
+ * bracket, bisecting whenever a step would leave it, until E is within
+ * `PROBABILITY_TOLERANCE` of the target or the bracket is a few ulps wide.
  */
-export function inverseTerm(curve: PlayerCurve, link: Link, target: number, low: number, high: number): number {
-  if (curve.alphas.length === 1) {
-    const alpha = curve.alphas[0] ?? 0;
-    const beta = curve.betas[0] ?? 1;
-    const term = (link.link(target) - alpha) / beta;
+export function inverseTerm(
+  curves: CurveSet,
+  player: number,
+  link: Link,
+  target: number,
+  linkedTarget: number,
+  low: number,
+  high: number,
+): number {
+  const start = curves.offsets[player] as number;
+  const end = curves.offsets[player + 1] as number;
+  const { alphas, betas } = curves;
+  if (end - start === 1) {
+    const term = (linkedTarget - (alphas[start] as number)) / (betas[start] as number);
     if (!(term > low)) return low;
     if (!(term < high)) return high;
     return term;
   }
-  if (expectedAtTerm(curve, link, low) >= target) return low;
-  if (expectedAtTerm(curve, link, high) < target) return high;
+  if (expectedAtTerm(curves, player, link, low) >= target) return low;
+  if (expectedAtTerm(curves, player, link, high) < target) return high;
+  // Start from the closed form of the average line, kept inside the bracket.
+  let alphaSum = 0;
+  let betaSum = 0;
+  for (let index = start; index < end; index += 1) {
+    alphaSum += alphas[index] as number;
+    betaSum += betas[index] as number;
+  }
   let lower = low;
   let upper = high;
-  let term = 0.5 * (low + high);
-  for (let iteration = 0; iteration < 200; iteration += 1) {
-    const { value, slope } = expectedAndSlope(curve, link, term);
-    const difference = value - target;
+  let term = (linkedTarget - alphaSum / (end - start)) / (betaSum / (end - start));
+  if (!(term > lower && term < upper)) term = 0.5 * (lower + upper);
+  const count = end - start;
+  for (let iteration = 0; iteration < MAXIMUM_ITERATIONS; iteration += 1) {
+    let value = 0;
+    let slope = 0;
+    for (let index = start; index < end; index += 1) {
+      const beta = betas[index] as number;
+      const predictor = (alphas[index] as number) + beta * term;
+      value += link.inverse(predictor);
+      slope += beta * link.derivative(predictor);
+    }
+    const difference = value / count - target;
     if (Math.abs(difference) <= PROBABILITY_TOLERANCE) return term;
     if (difference < 0) lower = term;
     else upper = term;
-    const newton = slope > 0 ? term - difference / slope : Number.NaN;
+    const newton = slope > 0 ? term - (difference * count) / slope : Number.NaN;
     term = newton > lower && newton < upper ? newton : 0.5 * (lower + upper);
     if (upper - lower <= 4 * Number.EPSILON * Math.max(1, Math.abs(term))) return term;
   }

@@ -1,27 +1,58 @@
 /**
  * The core of the lobby solver: given each eligible player's performance
- * curve, find scales that bring everyone to the target where the rules allow,
- * and otherwise maximise the lowest expected performance, then the next
- * lowest, and so on (leximin).
+ * curve and the target T, find scales that bring everyone to T where the rules
+ * allow, and otherwise maximise the lowest expected performance, then the
+ * next lowest, and so on (leximin), with performance counted up to T.
  *
- * Method. For a common level L <= T, each player's desired scale is the
- * inverse of their curve at L, kept in [floor, search limit]; the soft cap maps
- * it to a granted scale (never above the hard cap); the ratio limit lowers
- * every granted scale to at most ratio x the smallest one. Every step is
- * non-decreasing in L, so the assistance used, sum of (scale - 1)+, is too:
- * with a budget, bisection finds the largest L whose assistance fits
- * (water-filling). Players a cap holds below L stay at their largest allowed
- * scale, which is what leximin asks. Quantisation then rounds down to the grid,
- * walking from the best-connected player to the worst so that expected
- * performance stays non-increasing along that order (no over-compensation)
- * and scales stay non-decreasing (no reward for a worse measured latency).
+ * Method, for a common level L <= T:
+ * 1. desired: each player's inverse of their curve at L, kept in
+ *    [floor, search limit] (the search limit is the desired scale from which
+ *    the soft cap grants the hard cap);
+ * 2. granted: the soft cap maps a desired scale d above its threshold a to
+ *    a + fraction (d - a), and nothing exceeds the hard cap;
+ * 3. ratio: no granted scale may exceed `max_scale_ratio` times the smallest
+ *    one. The cheapest way to honour that without taking anything from the
+ *    worst-off is to lift the smallest scales to (largest granted) / ratio:
+ *    lifting only raises someone already at or above L, so it never lowers
+ *    the minimum (holding the largest scales down would). Lifted players are
+ *    labelled `ratio`;
+ * 4. budget: every step above is non-decreasing in L, so the assistance used,
+ *    sum over players of (scale - 1)+, is non-decreasing too, and bisection
+ *    finds the largest L whose assistance fits the budget (water-filling).
+ *    Players a cap holds below L keep their largest allowed scale, which is
+ *    what leximin asks;
+ * 5. quantisation rounds every scale down to the grid (so caps and the
+ *    budget still hold), then holds the largest scales to the grid point at
+ *    or below ratio x the smallest rounded one;
+ * 6. order: walking from the best-connected player to the worst (the caller's
+ *    `order`), a player's scale is lowered, never below the previous player's
+ *    scale (nor below largest / ratio), until their expected performance does
+ *    not exceed the previous player's. After rounding this is what keeps
+ *    "no over-compensation" true; without rounding it matters only for the
+ *    soft cap and for sampled latencies, whose curves can cross.
+ *
+ * Every step only lowers scales that an earlier step set, except the ratio
+ * lift, whose cost the budget bisection already counts; so the floor, the
+ * hard cap, the ratio and the budget hold for the final scales.
  */
+import { type Result, error, fail, ok } from '../issues.js';
 import type { Link } from '../model/links.js';
-import { scaleFromTermValue, scaleTermValue } from '../model/terms.js';
 import type { CompiledRules } from './rules.js';
-import { type PlayerCurve, expectedAtTerm, inverseTerm } from './player-curve.js';
+import { type CurveSet, expectedAtTerm, inverseTerm } from './player-curve.js';
 
-export type Binding = 'none' | 'floor' | 'cap' | 'soft_cap' | 'ratio' | 'budget' | 'quantisation' | 'ineligible';
+/** Why a player's scale is what it is: the constraint that holds it, or `none`. */
+export const BINDINGS = ['none', 'floor', 'cap', 'soft_cap', 'ratio', 'budget', 'quantisation', 'ineligible'] as const;
+export type Binding = (typeof BINDINGS)[number];
+
+const NONE = 0;
+const FLOOR = 1;
+const CAP = 2;
+const SOFT_CAP = 3;
+const RATIO = 4;
+const BUDGET = 5;
+const QUANTISATION = 6;
+/** Index of `ineligible` in BINDINGS. */
+export const INELIGIBLE = 7;
 
 export interface ScaleSolution {
   readonly target: number;
@@ -30,165 +61,262 @@ export interface ScaleSolution {
   readonly scales: Float64Array;
   readonly before: Float64Array;
   readonly after: Float64Array;
-  readonly binding: Binding[];
+  /** Index into `BINDINGS`, per player. */
+  readonly binding: Uint8Array;
   /** Assistance used: sum over players of (scale - 1) for scales above 1. */
   readonly assistance: number;
 }
 
 /** Probability tolerance under which a player counts as at the target. */
 export const AT_TARGET_TOLERANCE = 1e-9;
+/** Relative tolerance for comparing scales with a limit. */
+const SCALE_TOLERANCE = 1e-12;
 
-interface Stage {
-  desired: Float64Array;
-  granted: Float64Array;
-  limited: Float64Array;
+export type ScaleForm = 'log' | 'raw';
+
+export function termOf(form: ScaleForm, scale: number): number {
+  return form === 'log' ? Math.log(scale) : scale;
 }
 
-function softCapped(desired: number, rules: CompiledRules): number {
-  const soft = rules.soft_cap;
-  const granted = soft !== null && desired > soft.above ? soft.above + soft.fraction * (desired - soft.above) : desired;
-  return Math.min(granted, rules.scale_cap);
+export function scaleOf(form: ScaleForm, term: number): number {
+  return form === 'log' ? Math.exp(term) : term;
 }
 
-/** The largest desired scale worth searching for: beyond it the granted scale is the hard cap anyway. */
-function searchLimit(rules: CompiledRules): number {
+/** The largest desired scale worth searching for: from it on the granted scale is the hard cap. */
+export function searchLimit(rules: CompiledRules): number {
   const soft = rules.soft_cap;
   return soft === null ? rules.scale_cap : soft.above + (rules.scale_cap - soft.above) / soft.fraction;
 }
 
-function stagesAt(level: number, curves: readonly PlayerCurve[], link: Link, form: 'log' | 'raw', rules: CompiledRules): Stage {
-  const count = curves.length;
-  const lowTerm = scaleTermValue(form, rules.scale_floor);
-  const highTerm = scaleTermValue(form, searchLimit(rules));
-  const desired = new Float64Array(count);
-  const granted = new Float64Array(count);
-  const limited = new Float64Array(count);
-  let smallest = Infinity;
-  for (let index = 0; index < count; index += 1) {
-    const curve = curves[index] as PlayerCurve;
-    const scale = scaleFromTermValue(form, inverseTerm(curve, link, level, lowTerm, highTerm));
-    const kept = Math.min(Math.max(scale, rules.scale_floor), searchLimit(rules));
-    desired[index] = kept;
-    granted[index] = softCapped(kept, rules);
-    smallest = Math.min(smallest, granted[index] ?? Infinity);
-  }
-  const ratioBound = rules.max_scale_ratio === null ? Infinity : rules.max_scale_ratio * smallest;
-  for (let index = 0; index < count; index += 1) limited[index] = Math.min(granted[index] ?? 0, ratioBound);
-  return { desired, granted, limited };
+/** The granted scale for a desired one: the soft cap, then the hard cap. */
+export function softCapped(desired: number, rules: CompiledRules): number {
+  const soft = rules.soft_cap;
+  const granted = soft !== null && desired > soft.above ? soft.above + soft.fraction * (desired - soft.above) : desired;
+  return granted < rules.scale_cap ? granted : rules.scale_cap;
 }
 
-function assistanceOf(scales: ArrayLike<number>): number {
-  let sum = 0;
-  for (let index = 0; index < scales.length; index += 1) sum += Math.max(0, (scales[index] ?? 1) - 1);
-  return sum;
+/** The largest multiple of `step` at or below `value` (a value within 1e-9 steps below a multiple counts as on it, and is kept). */
+export function gridDown(value: number, step: number): number {
+  const rounded = Math.floor(value / step + 1e-9) * step;
+  return rounded < value ? rounded : value;
 }
 
-/** Round down to the grid, keeping performance non-increasing and scales non-decreasing along `order`. */
-function quantise(
-  scales: Float64Array,
-  curves: readonly PlayerCurve[],
-  order: readonly number[],
-  link: Link,
-  form: 'log' | 'raw',
-  rules: CompiledRules,
-  step: number,
-): Float64Array {
-  const toGrid = (value: number) => Math.floor(value / step + 1e-9) * step;
-  const rounded = new Float64Array(scales.length);
-  let smallest = Infinity;
-  for (let index = 0; index < scales.length; index += 1) {
-    rounded[index] = Math.max(toGrid(scales[index] ?? 0), toGrid(rules.scale_floor + 1e-12));
-    smallest = Math.min(smallest, rounded[index] ?? Infinity);
+/** True when the solver needs the players' order (best-connected first): rounding, a soft cap, a budget, or sampled curves. */
+export function needsOrder(curves: CurveSet, rules: CompiledRules): boolean {
+  return rules.quantisation_step !== null || rules.soft_cap !== null || rules.assistance_budget !== null || (curves.offsets[curves.count] as number) !== curves.count;
+}
+
+/** E_i at scale 1 for every player: the performance before compensation. */
+export function expectedBefore(curves: CurveSet, link: Link, form: ScaleForm, out: Float64Array): Float64Array {
+  const unitTerm = termOf(form, 1);
+  for (let player = 0; player < curves.count; player += 1) out[player] = expectedAtTerm(curves, player, link, unitTerm);
+  return out;
+}
+
+interface Work {
+  readonly curves: CurveSet;
+  readonly link: Link;
+  readonly form: ScaleForm;
+  readonly rules: CompiledRules;
+  readonly order: Int32Array | null;
+  readonly lowTerm: number;
+  readonly highTerm: number;
+  readonly limit: number;
+  readonly desired: Float64Array;
+  readonly granted: Float64Array;
+  readonly scales: Float64Array;
+}
+
+/** Steps 1-3 at a level; returns the assistance used, summed in `order` when given (so it is independent of the players' input order). */
+function allocate(work: Work, level: number): number {
+  const { curves, link, form, rules, lowTerm, highTerm, limit, desired, granted, scales, order } = work;
+  const count = curves.count;
+  const floor = rules.scale_floor;
+  const linked = link.link(level);
+  let largest = -Infinity;
+  for (let player = 0; player < count; player += 1) {
+    const term = inverseTerm(curves, player, link, level, linked, lowTerm, highTerm);
+    let wanted = term <= lowTerm ? floor : term >= highTerm ? limit : scaleOf(form, term);
+    if (wanted < floor) wanted = floor;
+    else if (wanted > limit) wanted = limit;
+    desired[player] = wanted;
+    const given = softCapped(wanted, rules);
+    granted[player] = given;
+    if (given > largest) largest = given;
   }
-  // The ratio limit on the rounded smallest scale.
-  if (rules.max_scale_ratio !== null) {
-    const bound = toGrid(rules.max_scale_ratio * smallest);
-    for (let index = 0; index < rounded.length; index += 1) rounded[index] = Math.min(rounded[index] ?? 0, bound);
+  const ratio = rules.max_scale_ratio;
+  const lift = ratio === null ? -Infinity : Math.max(floor, largest / ratio);
+  for (let player = 0; player < count; player += 1) {
+    const given = granted[player] as number;
+    scales[player] = given > lift ? given : lift;
   }
-  let previousScale = -Infinity;
-  let previousPerformance = Infinity;
-  for (const index of order) {
-    const curve = curves[index] as PlayerCurve;
-    let scale = Math.max(rounded[index] ?? 0, previousScale);
-    let performance = expectedAtTerm(curve, link, scaleTermValue(form, scale));
-    while (performance > previousPerformance && scale - step >= previousScale - 1e-12 && scale - step >= rules.scale_floor - 1e-12) {
-      scale -= step;
-      performance = expectedAtTerm(curve, link, scaleTermValue(form, scale));
-    }
-    rounded[index] = scale;
-    previousScale = scale;
-    previousPerformance = Math.min(previousPerformance, performance);
+  let assistance = 0;
+  for (let position = 0; position < count; position += 1) {
+    const player = order === null ? position : (order[position] as number);
+    const excess = (scales[player] as number) - 1;
+    if (excess > 0) assistance += excess;
   }
-  return rounded;
+  return assistance;
 }
 
 /**
- * Solve the scales of the eligible players, given their curves and the
- * target. `order` lists player indices from best-connected to worst (highest
- * unscaled performance first), used only by quantisation.
+ * Solve the scales of the eligible players.
+ *
+ * @param curves the eligible players' curves.
+ * @param before E_i(1) per player (`expectedBefore`).
+ * @param target T.
+ * @param order player indices from best-connected to worst (highest `before`
+ *   first, ties broken by something independent of input order, e.g. the
+ *   player id). Required when `needsOrder` says so; otherwise may be null.
+ * @returns the solution, or an issue when the rules contradict themselves for
+ *   this lobby (a budget smaller than the floor alone costs).
+ *
+ * Cost: O(players x samples) per level; with a binding budget about 50 levels
+ * (bisection to 1e-15 in probability).
  */
 export function solveScales(
-  curves: readonly PlayerCurve[],
+  curves: CurveSet,
+  before: Float64Array,
   target: number,
-  order: readonly number[],
   link: Link,
-  form: 'log' | 'raw',
+  form: ScaleForm,
   rules: CompiledRules,
-): ScaleSolution {
-  const count = curves.length;
-  const floorTerm = scaleTermValue(form, rules.scale_floor);
-  const unitTerm = scaleTermValue(form, 1);
-  const before = new Float64Array(count);
-  let lowestAtFloor = Infinity;
-  for (let index = 0; index < count; index += 1) {
-    const curve = curves[index] as PlayerCurve;
-    before[index] = expectedAtTerm(curve, link, unitTerm);
-    lowestAtFloor = Math.min(lowestAtFloor, expectedAtTerm(curve, link, floorTerm));
-  }
+  order: Int32Array | null,
+): Result<ScaleSolution> {
+  const count = curves.count;
+  if (order === null && needsOrder(curves, rules)) order = fallbackOrder(before);
+  const floor = rules.scale_floor;
+  const cap = rules.scale_cap;
+  const limit = searchLimit(rules);
+  const work: Work = {
+    curves,
+    link,
+    form,
+    rules,
+    order,
+    lowTerm: termOf(form, floor),
+    highTerm: termOf(form, limit),
+    limit,
+    desired: new Float64Array(count),
+    granted: new Float64Array(count),
+    scales: new Float64Array(count),
+  };
   let level = target;
-  const atTarget = stagesAt(target, curves, link, form, rules);
-  let stage = atTarget;
+  let assistance = allocate(work, target);
   const budget = rules.assistance_budget;
-  if (budget !== null && assistanceOf(atTarget.limited) > budget) {
-    let low = Math.min(lowestAtFloor, target);
+  if (budget !== null && assistance > budget) {
+    let low = Infinity;
+    for (let player = 0; player < count; player += 1) low = Math.min(low, expectedAtTerm(curves, player, link, work.lowTerm));
+    low = Math.min(low, target);
+    if (allocate(work, low) > budget) {
+      return fail([
+        error('budget_below_floor', 'rules.assistance_budget', `\`assistance_budget\` requires at least what the floor alone costs in this lobby, ${count} x (${floor} - 1) = ${count * Math.max(0, floor - 1)}, got ${budget}`),
+      ]);
+    }
     let high = target;
-    stage = stagesAt(low, curves, link, form, rules);
-    if (assistanceOf(stage.limited) <= budget) {
-      for (let iteration = 0; iteration < 200 && high - low > 1e-14; iteration += 1) {
-        const middle = 0.5 * (low + high);
-        const candidate = stagesAt(middle, curves, link, form, rules);
-        if (assistanceOf(candidate.limited) <= budget) {
-          low = middle;
-          stage = candidate;
-        } else high = middle;
-      }
+    for (let iteration = 0; iteration < 200 && high - low > 1e-15; iteration += 1) {
+      const middle = 0.5 * (low + high);
+      if (middle <= low || middle >= high) break;
+      if (allocate(work, middle) <= budget) low = middle;
+      else high = middle;
     }
     level = low;
+    assistance = allocate(work, level);
   }
-  const continuous = stage.limited;
-  const scales = rules.quantisation_step === null ? continuous : quantise(continuous, curves, order, link, form, rules, rules.quantisation_step);
-  const after = new Float64Array(count);
-  const binding: Binding[] = new Array<Binding>(count);
-  for (let index = 0; index < count; index += 1) {
-    const curve = curves[index] as PlayerCurve;
-    const scale = scales[index] ?? 1;
-    after[index] = expectedAtTerm(curve, link, scaleTermValue(form, scale));
-    const performance = after[index] ?? 0;
-    const wanted = atTarget.desired[index] ?? 1;
-    if (performance >= target - AT_TARGET_TOLERANCE) {
-      binding[index] = performance > target + AT_TARGET_TOLERANCE && scale <= rules.scale_floor + 1e-12 ? 'floor' : 'none';
-    } else if ((atTarget.granted[index] ?? 0) < wanted - 1e-12) {
-      binding[index] = (atTarget.granted[index] ?? 0) >= rules.scale_cap - 1e-12 && (rules.soft_cap === null || wanted >= searchLimit(rules) - 1e-12) ? 'cap' : rules.soft_cap === null ? 'cap' : 'soft_cap';
-    } else if ((atTarget.limited[index] ?? 0) < (atTarget.granted[index] ?? 0) - 1e-12) {
-      binding[index] = 'ratio';
-    } else if (level < target && (continuous[index] ?? 0) < (atTarget.limited[index] ?? 0) - 1e-12) {
-      binding[index] = 'budget';
-    } else if (scale < (continuous[index] ?? 0) - 1e-12) {
-      binding[index] = 'quantisation';
-    } else {
-      // Within the search limits but short of the target: the floor of the search bracket or the cap.
-      binding[index] = scale >= rules.scale_cap - 1e-12 ? 'cap' : 'none';
+  const continuous = work.scales;
+  const scales = Float64Array.from(continuous);
+  const step = rules.quantisation_step;
+  const ratio = rules.max_scale_ratio;
+  if (step !== null) {
+    let smallest = Infinity;
+    for (let player = 0; player < count; player += 1) {
+      const rounded = Math.max(floor, gridDown(continuous[player] as number, step));
+      scales[player] = rounded;
+      if (rounded < smallest) smallest = rounded;
+    }
+    if (ratio !== null) {
+      const bound = Math.max(smallest, gridDown(ratio * smallest, step));
+      for (let player = 0; player < count; player += 1) if ((scales[player] as number) > bound) scales[player] = bound;
     }
   }
-  return { target, level, scales, before, after, binding, assistance: assistanceOf(scales) };
+  const loweredBy = order === null ? null : orderWalk(work, scales, order, step);
+  const after = new Float64Array(count);
+  for (let player = 0; player < count; player += 1) after[player] = expectedAtTerm(curves, player, link, termOf(form, scales[player] as number));
+
+  // Labels, in order when a walk ran (a player the walk lowered takes the label of the player who bounds them).
+  const binding = new Uint8Array(count);
+  const tolerance = AT_TARGET_TOLERANCE;
+  for (let position = 0; position < count; position += 1) {
+    const player = order === null ? position : (order[position] as number);
+    const performance = after[player] as number;
+    const scale = scales[player] as number;
+    const unrounded = continuous[player] as number;
+    let label = NONE;
+    if (performance >= target - tolerance) {
+      if (performance <= target + tolerance) label = NONE;
+      else if (unrounded > (work.granted[player] as number) * (1 + SCALE_TOLERANCE)) label = RATIO;
+      else if (scale <= floor * (1 + SCALE_TOLERANCE)) label = FLOOR;
+    } else if (unrounded >= cap * (1 - SCALE_TOLERANCE)) label = CAP;
+    else if ((work.granted[player] as number) < (work.desired[player] as number) * (1 - SCALE_TOLERANCE)) label = SOFT_CAP;
+    else if (level < target - tolerance && expectedAtTerm(curves, player, link, termOf(form, unrounded)) < target - tolerance) label = BUDGET;
+    else if (scale < unrounded * (1 - SCALE_TOLERANCE)) label = QUANTISATION;
+    else if (loweredBy !== null && (loweredBy[player] as number) >= 0) label = binding[loweredBy[player] as number] as number;
+    binding[player] = label;
+  }
+  if (step !== null || loweredBy !== null) {
+    assistance = 0;
+    for (let position = 0; position < count; position += 1) {
+      const excess = (scales[order === null ? position : (order[position] as number)] as number) - 1;
+      if (excess > 0) assistance += excess;
+    }
+  }
+  return ok({ target, level, scales, before, after, binding, assistance });
+}
+
+/** Step 6 (see the module comment). Returns, per player, the index of the player whose performance bounded them, or -1. */
+function orderWalk(work: Work, scales: Float64Array, order: Int32Array, step: number | null): Int32Array {
+  const { curves, link, form, rules } = work;
+  const count = curves.count;
+  let largest = -Infinity;
+  for (let player = 0; player < count; player += 1) largest = Math.max(largest, scales[player] as number);
+  const ratio = rules.max_scale_ratio;
+  const lowest = ratio === null ? rules.scale_floor : Math.max(rules.scale_floor, largest / ratio);
+  const loweredBy = new Int32Array(count).fill(-1);
+  let previousScale = -Infinity;
+  let previousPerformance = Infinity;
+  let bounding = -1;
+  for (let position = 0; position < count; position += 1) {
+    const player = order[position] as number;
+    let scale = scales[player] as number;
+    let performance = expectedAtTerm(curves, player, link, termOf(form, scale));
+    if (performance > previousPerformance) {
+      const bottom = scale >= previousScale ? Math.max(previousScale, lowest) : lowest;
+      const start = scale;
+      if (step !== null) {
+        while (performance > previousPerformance && scale - step >= bottom * (1 - SCALE_TOLERANCE)) {
+          scale = Math.max(scale - step, rules.scale_floor);
+          performance = expectedAtTerm(curves, player, link, termOf(form, scale));
+        }
+      } else if (bottom < scale) {
+        const term = inverseTerm(curves, player, link, previousPerformance, link.link(previousPerformance), termOf(form, bottom), termOf(form, scale));
+        scale = Math.min(start, Math.max(bottom, scaleOf(form, term)));
+        performance = expectedAtTerm(curves, player, link, termOf(form, scale));
+      }
+      if (scale < start) loweredBy[player] = bounding;
+      scales[player] = scale;
+    }
+    previousScale = scale;
+    if (performance <= previousPerformance) {
+      previousPerformance = performance;
+      bounding = player;
+    }
+  }
+  return loweredBy;
+}
+
+/** Highest `before` first, ties by index: used only when a caller passes no order. */
+function fallbackOrder(before: Float64Array): Int32Array {
+  const order = new Int32Array(before.length);
+  for (let index = 0; index < order.length; index += 1) order[index] = index;
+  return order.sort((left, right) => (before[right] as number) - (before[left] as number) || left - right);
 }

@@ -1,0 +1,148 @@
+/**
+ * One lobby from players to scales, without the report around it: the
+ * latency estimate of each player, eligibility, the curves, the target and
+ * the scale solution. `balanceLobby` builds its result from this; the
+ * exploit and uncertainty views call it again with changed samples or
+ * coefficients.
+ */
+import { type Issue, type Result, error, fail, ok, show } from '../issues.js';
+import type { LobbyFile } from '../formats/lobby-file.js';
+import type { CompiledModel, PredictorLine } from '../model/compile.js';
+import { quantileSorted } from '../stats/quantile.js';
+import type { CompiledRules } from './rules.js';
+import { type CurveSet, smallestSlope } from './player-curve.js';
+import { type ScaleForm, type ScaleSolution, expectedBefore, needsOrder, solveScales, termOf } from './solve-scales.js';
+
+export interface LobbySolve {
+  readonly line: PredictorLine;
+  /** Per lobby player: the latency the rules' estimator takes (for `all_samples`: the mean). */
+  readonly estimates: Float64Array;
+  /** Per lobby player: their slot among the eligible players, or -1. */
+  readonly slots: Int32Array;
+  /** Per eligible slot: the lobby player's index. */
+  readonly eligible: Int32Array;
+  readonly curves: CurveSet;
+  readonly order: Int32Array | null;
+  readonly solution: ScaleSolution;
+}
+
+/** The latency the estimator takes from one value or from samples. */
+export function latencyEstimate(latency: number | readonly number[], rules: CompiledRules): number {
+  if (typeof latency === 'number') return latency;
+  if (latency.length === 1) return latency[0] as number;
+  const estimator = rules.latency_estimator;
+  if (estimator === 'all_samples') {
+    let sum = 0;
+    for (const value of latency) sum += value;
+    return sum / latency.length;
+  }
+  const sorted = Float64Array.from(latency).sort();
+  return quantileSorted(sorted, estimator === 'median' ? 0.5 : estimator.percentile / 100, 7);
+}
+
+/** The prediction (hit probability) at one latency and scale 1 under a line. */
+export function unscaledPrediction(model: CompiledModel, line: PredictorLine, latency: number): number {
+  const term = termOf(model.scaleForm as ScaleForm, 1);
+  return model.link.inverse(line.base + line.basePerMs * latency + (line.scaleSlope + line.scaleSlopePerMs * latency) * term);
+}
+
+/**
+ * Solve a lobby at a predictor line. Pure. Returns issues when the model has
+ * no scale term, no player is eligible, the model's hit probability does not
+ * increase with the scale for some eligible player, or the rules contradict
+ * themselves for this lobby.
+ */
+export function solveLobby(lobby: LobbyFile, model: CompiledModel, line: PredictorLine, rules: CompiledRules): Result<LobbySolve> {
+  if (model.scaleForm === 'none') {
+    return fail([error('no_scale_term', 'model.terms', 'compensation requires a model with a scale term (scale or log_scale), got none')]);
+  }
+  const form: ScaleForm = model.scaleForm;
+  const players = lobby.players;
+  const total = players.length;
+  const estimates = new Float64Array(total);
+  const slots = new Int32Array(total);
+  const limit = rules.latency_limit_ms;
+  const pooled = rules.latency_estimator === 'all_samples';
+  let eligibleCount = 0;
+  let sampleCount = 0;
+  for (let index = 0; index < total; index += 1) {
+    const latency = (players[index] as LobbyFile['players'][number]).latency_ms;
+    const estimate = latencyEstimate(latency, rules);
+    estimates[index] = estimate;
+    if (limit === null || estimate <= limit) {
+      slots[index] = eligibleCount;
+      eligibleCount += 1;
+      sampleCount += pooled && typeof latency !== 'number' ? latency.length : 1;
+    } else slots[index] = -1;
+  }
+  if (eligibleCount === 0) {
+    return fail([error('no_eligible_player', 'players', `a lobby requires at least one player within the latency limit (${String(limit)} ms), got none`)]);
+  }
+  const eligible = new Int32Array(eligibleCount);
+  const offsets = new Int32Array(eligibleCount + 1);
+  const alphas = new Float64Array(sampleCount);
+  const betas = new Float64Array(sampleCount);
+  const { base, basePerMs, scaleSlope, scaleSlopePerMs } = line;
+  let position = 0;
+  for (let index = 0; index < total; index += 1) {
+    const slot = slots[index] as number;
+    if (slot < 0) continue;
+    eligible[slot] = index;
+    const latency = (players[index] as LobbyFile['players'][number]).latency_ms;
+    if (pooled && typeof latency !== 'number') {
+      for (const value of latency) {
+        alphas[position] = base + basePerMs * value;
+        betas[position] = scaleSlope + scaleSlopePerMs * value;
+        position += 1;
+      }
+    } else {
+      const value = estimates[index] as number;
+      alphas[position] = base + basePerMs * value;
+      betas[position] = scaleSlope + scaleSlopePerMs * value;
+      position += 1;
+    }
+    offsets[slot + 1] = position;
+  }
+  const curves: CurveSet = { count: eligibleCount, offsets, alphas, betas };
+  let issues: Issue[] | null = null;
+  for (let slot = 0; slot < eligibleCount; slot += 1) {
+    const slope = smallestSlope(curves, slot);
+    if (!(slope > 0)) {
+      const index = eligible[slot] as number;
+      (issues ??= []).push(
+        error('scale_not_increasing', `players[${index}]`, `compensation requires hit probability to increase with the scale, but under this model it does not for player ${show((players[index] as LobbyFile['players'][number]).id)} at ${(estimates[index] as number).toFixed(1)} ms (the scale term's coefficient there is ${slope.toPrecision(3)})`),
+      );
+    }
+  }
+  if (issues !== null) return fail(issues);
+  const before = expectedBefore(curves, model.link, form, new Float64Array(eligibleCount));
+  const spec = rules.target;
+  let target: number;
+  if (spec.kind === 'fixed') target = spec.probability;
+  else if (spec.kind === 'reference_latency') target = unscaledPrediction(model, line, spec.latency_ms);
+  else {
+    target = -Infinity;
+    for (let slot = 0; slot < eligibleCount; slot += 1) if ((before[slot] as number) > target) target = before[slot] as number;
+  }
+  const order = needsOrder(curves, rules) ? bestConnectedOrder(before, estimates, eligible, lobby) : null;
+  const solved = solveScales(curves, before, target, model.link, form, rules, order);
+  if (!solved.ok) return fail(solved.issues);
+  return ok({ line, estimates, slots, eligible, curves, order, solution: solved.value });
+}
+
+/** Eligible slots from best-connected to worst: highest unscaled performance first, then lowest latency estimate, then id. */
+function bestConnectedOrder(before: Float64Array, estimates: Float64Array, eligible: Int32Array, lobby: LobbyFile): Int32Array {
+  const order = new Int32Array(before.length);
+  for (let slot = 0; slot < order.length; slot += 1) order[slot] = slot;
+  return order.sort((left, right) => {
+    const byPerformance = (before[right] as number) - (before[left] as number);
+    if (byPerformance !== 0) return byPerformance;
+    const leftIndex = eligible[left] as number;
+    const rightIndex = eligible[right] as number;
+    const byLatency = (estimates[leftIndex] as number) - (estimates[rightIndex] as number);
+    if (byLatency !== 0) return byLatency;
+    const leftId = (lobby.players[leftIndex] as LobbyFile['players'][number]).id;
+    const rightId = (lobby.players[rightIndex] as LobbyFile['players'][number]).id;
+    return leftId < rightId ? -1 : leftId > rightId ? 1 : 0;
+  });
+}
