@@ -2,6 +2,7 @@
 /** The `lagparity` command line. Library modules never import this file. */
 import { Command, CommanderError } from 'commander';
 import { registerBalance } from './balance-command.js';
+import { registerSummarize } from './summarize-command.js';
 import { EXIT_BAD_INPUT } from './output.js';
 
 const program = new Command();
@@ -14,6 +15,7 @@ program
   .addHelpText('after', '\nExit codes: 0 success; 1 a check failed (audit); 2 bad input.');
 
 registerBalance(program);
+registerSummarize(program);
 
 try {
   await program.parseAsync(process.argv);

@@ -154,7 +154,7 @@ export function groupNumeric(values: Float64Array, spec: BinSpec, name: string, 
     }
     return ok({
       method: 'levels',
-      description: `${name}: one group per value (${levels.length} distinct values)`,
+      description: `${name}: one group per value (${levels.length} distinct value${levels.length === 1 ? '' : 's'})`,
       groups: levels.map((level, index) => ({ label: String(level), value: level, lower: null, upper: null, includes_upper: false, rows: rows[index] ?? 0 })),
       codes,
     });
@@ -227,7 +227,7 @@ export function groupLevels(levels: readonly string[], rowCodes: Int32Array, nam
   present.forEach((level, index) => (renumber[level] = index));
   return {
     method: 'levels',
-    description: `${name}: one group per level, in the order the file first names them (${present.length} levels)`,
+    description: `${name}: one group per level, in the order the file first names them (${present.length} level${present.length === 1 ? '' : 's'})`,
     groups: present.map((level) => ({ label: levels[level] as string, value: levels[level] as string, lower: null, upper: null, includes_upper: false, rows: rows[level] ?? 0 })),
     codes: rowCodes.map((code) => renumber[code] as number),
   };
