@@ -13,6 +13,7 @@ interface BalanceOptions {
   model: string;
   rules?: string;
   json?: boolean;
+  strict?: boolean;
 }
 
 export async function runBalance(paths: string[], options: BalanceOptions): Promise<number> {
@@ -23,11 +24,19 @@ export async function runBalance(paths: string[], options: BalanceOptions): Prom
     return EXIT_BAD_INPUT;
   }
   const results: BalanceResult[] = lobbies.value.map(({ lobby }) => balanceLobby(lobby, model.value, rules.value));
+  let extrapolated = false;
   results.forEach((result, index) => {
     const file = lobbies.value[index]?.path ?? '';
     const name = file === '-' ? 'stdin' : basename(file);
-    reportIssues(result.warnings.map((issue) => ({ ...issue, location: at(name, issue.location) })));
-    if (result.status === 'rejected') reportIssues(result.issues.map((issue) => ({ ...issue, location: at(name, issue.location) })));
+    const warnings = result.warnings.map((issue) => ({ ...issue, location: at(name, issue.location) }));
+    // Under --strict, a prediction outside the model's training range is an error, not a warning.
+    const strictErrors = options.strict ? warnings.filter((issue) => issue.code === 'outside_training_range').map((issue) => ({ ...issue, severity: 'error' as const })) : [];
+    if (strictErrors.length > 0) extrapolated = true;
+    reportIssues([...strictErrors, ...warnings.filter((issue) => !strictErrors.some((strict) => strict.location === issue.location && strict.message === issue.message))]);
+    // A solver issue located at `model.<field>` is about the model file; the others name a place in the lobby.
+    const modelName = basename(options.model);
+    const place = (location: string) => (location.startsWith('model.') ? at(modelName, location.slice('model.'.length)) : at(name, location));
+    if (result.status === 'rejected') reportIssues(result.issues.map((issue) => ({ ...issue, location: place(issue.location) })));
   });
   if (options.json) {
     writeOut(JSON.stringify({ format: BALANCE_FORMAT, lobbies: results }, null, 2));
@@ -35,7 +44,7 @@ export async function runBalance(paths: string[], options: BalanceOptions): Prom
     writeOut(results.map(renderBalance).join('\n\n'));
     process.stderr.write(`\n${CAUTION}\n`);
   }
-  return results.some((result) => result.status === 'rejected') ? EXIT_BAD_INPUT : EXIT_OK;
+  return extrapolated || results.some((result) => result.status === 'rejected') ? EXIT_BAD_INPUT : EXIT_OK;
 }
 
 export function registerBalance(program: Command): void {
@@ -46,13 +55,14 @@ export function registerBalance(program: Command): void {
     .requiredOption('--model <file>', 'model file (lagparity/model@1), as written by `lagparity fit`')
     .option('--rules <file>', 'rules file (lagparity/rules@1); default: floor 1, cap 1.5, no other limit')
     .option('--json', 'write one JSON document (lagparity/balance-result@1) to stdout instead of tables')
+    .option('--strict', 'treat a latency or scale outside the model\'s training range as an error (exit 2) instead of a warning')
     .addHelpText(
       'after',
       `
 Example:
   lagparity balance matches --model matches/model.json --rules matches/league-rules.json
 
-Exit codes: 0 every lobby solved; 2 bad input or a lobby the model cannot solve.`,
+Exit codes: 0 every lobby solved; 2 bad input, a lobby the model cannot solve, or (with --strict) an extrapolation.`,
     )
     .action(async (paths: string[], options: BalanceOptions) => {
       process.exitCode = await runBalance(paths, options);

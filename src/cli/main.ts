@@ -3,6 +3,7 @@
 import { Command, CommanderError } from 'commander';
 import { registerBalance } from './balance-command.js';
 import { registerSummarize } from './summarize-command.js';
+import { registerValidate } from './validate-command.js';
 import { EXIT_BAD_INPUT } from './output.js';
 
 const program = new Command();
@@ -16,6 +17,7 @@ program
 
 registerBalance(program);
 registerSummarize(program);
+registerValidate(program);
 
 try {
   await program.parseAsync(process.argv);

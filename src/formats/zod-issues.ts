@@ -12,10 +12,10 @@ function valueAt(input: unknown, path: readonly PropertyKey[]): unknown {
   return current;
 }
 
-function codeFor(issue: z.core.$ZodIssue): string {
+function codeFor(issue: z.core.$ZodIssue, got: unknown): string {
   switch (issue.code) {
     case 'invalid_type':
-      return issue.input === undefined ? 'missing_field' : 'wrong_type';
+      return got === undefined ? 'missing_field' : 'wrong_type';
     case 'too_small':
     case 'too_big':
       return 'out_of_range';
@@ -55,16 +55,31 @@ function describeExpected(issue: z.core.$ZodIssue): string {
 /** zod's own wording starts with these; messages written in this project do not. */
 const ZOD_DEFAULT_WORDING = /^(Invalid|Too (small|big)|Unrecognized|Expected)/;
 
+/**
+ * A union whose value has the type of exactly one branch (a list where "a
+ * number or a list" is allowed) is reported by that branch's own issues,
+ * which say what is wrong inside it (e.g. too many samples).
+ */
+function expandUnions(issues: readonly z.core.$ZodIssue[]): z.core.$ZodIssue[] {
+  return issues.flatMap((issue) => {
+    if (issue.code !== 'invalid_union' || !Array.isArray(issue.errors)) return [issue];
+    const typed = issue.errors.filter((branch) => !branch.some((inner) => inner.code === 'invalid_type' && inner.path.length === 0));
+    const [branch] = typed;
+    if (typed.length !== 1 || branch === undefined) return [issue];
+    return expandUnions(branch.map((inner) => ({ ...inner, path: [...issue.path, ...inner.path] }) as z.core.$ZodIssue));
+  });
+}
+
 /** Map zod issues on `input` (parsed from `file`) to project issues. */
 export function fromZodIssues(issues: readonly z.core.$ZodIssue[], input: unknown, file: string | undefined): Issue[] {
-  return issues.map((issue) => {
+  return expandUnions(issues).map((issue) => {
     const path = formatPath(issue.path);
     const field = path === '' ? 'the document' : `\`${path}\``;
     if (issue.code === 'unrecognized_keys') {
-      return error('unknown_field', at(file, path), `${field} allows only its documented fields, got ${issue.keys.map((key) => show(key)).join(', ')}`);
+      return error('unknown_field', at(file, path), `${field} requires only its documented fields, got ${issue.keys.map((key) => show(key)).join(', ')}`);
     }
     const expected = ZOD_DEFAULT_WORDING.test(issue.message) ? describeExpected(issue) : issue.message;
     const got = valueAt(input, issue.path);
-    return error(codeFor(issue), at(file, path), `${field} requires ${expected}, got ${show(got)}`);
+    return error(codeFor(issue, got), at(file, path), `${field} requires ${expected}, got ${show(got)}`);
   });
 }
