@@ -124,7 +124,8 @@ export function inverseTerm(
   let lower = low;
   let upper = high;
   let term = (linkedTarget - alphaSum / (end - start)) / (betaSum / (end - start));
-  if (!(term > lower && term < upper)) term = 0.5 * (lower + upper);
+  if (!(term >= lower)) term = lower;
+  else if (!(term <= upper)) term = upper;
   const count = end - start;
   for (let iteration = 0; iteration < MAXIMUM_ITERATIONS; iteration += 1) {
     let value = 0;
@@ -140,7 +141,11 @@ export function inverseTerm(
     if (difference < 0) lower = term;
     else upper = term;
     const newton = slope > 0 ? term - (difference * count) / slope : Number.NaN;
-    term = newton > lower && newton < upper ? newton : 0.5 * (lower + upper);
+    // A Newton step that leaves the bracket is replaced by bisection; across a very wide bracket (a raw scale with an
+    // enormous cap, where the derivative underflows far from the root) by a step of sqrt(width), which shrinks the
+    // width's exponent by half each time instead of by one bit.
+    const width = upper - lower;
+    term = newton > lower && newton < upper ? newton : width > 1e4 ? (difference < 0 ? lower + Math.sqrt(width) : upper - Math.sqrt(width)) : lower + 0.5 * width;
     if (upper - lower <= 4 * Number.EPSILON * Math.max(1, Math.abs(term))) return term;
   }
   return term;

@@ -137,7 +137,8 @@ function allocate(work: Work, level: number): number {
   for (let player = 0; player < count; player += 1) {
     const term = inverseTerm(curves, player, link, level, linked, lowTerm, highTerm);
     let wanted = term <= lowTerm ? floor : term >= highTerm ? limit : scaleOf(form, term);
-    if (wanted < floor) wanted = floor;
+    // Within rounding of the floor counts as the floor, so that a player who needs nothing costs nothing.
+    if (wanted < floor * (1 + SCALE_TOLERANCE)) wanted = floor;
     else if (wanted > limit) wanted = limit;
     desired[player] = wanted;
     const given = softCapped(wanted, rules);
@@ -208,20 +209,28 @@ export function solveScales(
     let low = Infinity;
     for (let player = 0; player < count; player += 1) low = Math.min(low, expectedAtTerm(curves, player, link, work.lowTerm));
     low = Math.min(low, target);
-    if (allocate(work, low) > budget) {
+    const floorCost = count * Math.max(0, floor - 1);
+    if (floorCost > budget) {
       return fail([
-        error('budget_below_floor', 'rules.assistance_budget', `\`assistance_budget\` requires at least what the floor alone costs in this lobby, ${count} x (${floor} - 1) = ${count * Math.max(0, floor - 1)}, got ${budget}`),
+        error('budget_below_floor', 'rules.assistance_budget', `\`assistance_budget\` requires at least what the floor alone costs in this lobby, ${count} x (${floor} - 1) = ${floorCost}, got ${budget}`),
       ]);
     }
-    let high = target;
-    for (let iteration = 0; iteration < 200 && high - low > 1e-15; iteration += 1) {
-      const middle = 0.5 * (low + high);
-      if (middle <= low || middle >= high) break;
-      if (allocate(work, middle) <= budget) low = middle;
-      else high = middle;
+    if (allocate(work, low) > budget) {
+      // Only rounding in the inverse (a target near probability 1) can make the lowest level cost more than the floor:
+      // then everyone stays at the floor.
+      work.scales.fill(floor);
+      assistance = floorCost;
+    } else {
+      let high = target;
+      for (let iteration = 0; iteration < 200 && high - low > 1e-15; iteration += 1) {
+        const middle = 0.5 * (low + high);
+        if (middle <= low || middle >= high) break;
+        if (allocate(work, middle) <= budget) low = middle;
+        else high = middle;
+      }
+      assistance = allocate(work, low);
     }
     level = low;
-    assistance = allocate(work, level);
   }
   const continuous = work.scales;
   const scales = Float64Array.from(continuous);
