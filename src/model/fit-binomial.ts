@@ -39,7 +39,8 @@ import { checkClusters, checkFinite, checkLength } from '../numeric/array-checks
 import { choleskySolve } from '../numeric/cholesky.js';
 import { clusterSandwichCovariance, compactClusters } from '../numeric/cluster-sandwich.js';
 import { hasConstantColumn, multiply, selectRows, type DesignMatrix } from '../numeric/design-matrix.js';
-import { householderQr, inverseCrossProduct, solveLeastSquares } from '../numeric/householder-qr.js';
+import { inverseCrossProduct, solveLeastSquares } from '../numeric/householder-qr.js';
+import { columnExponents, reduceWeightedRows } from '../numeric/row-reduction.js';
 import { normalQuantile, twoSidedNormalPValue } from '../stats/distributions.js';
 import { linkFor, LINK_NAMES, type Link, type LinkName } from './links.js';
 
@@ -81,6 +82,8 @@ export interface BinomialFitOptions {
   readonly observationCount?: number;
   /** Report the CR1 block when `clusters` are given (default true). */
   readonly robust?: boolean;
+  /** Starting coefficients (default: R's starting values mu = (w y + 0.5) / (w + 1)); e.g. a related fit's estimate. */
+  readonly start?: ArrayLike<number>;
 }
 
 export type BinomialFitStatus = 'converged' | 'iteration_limit' | 'separation' | 'rank_deficient';
@@ -195,11 +198,14 @@ export function fitBinomial(data: BinomialData, options: BinomialFitOptions = {}
   const warnings: string[] = [];
 
   // Rows that carry weight, and the GLM quantities on them.
-  const keep = Array.from(
-    { length: design.rows },
-    (_, i) => (data.trials[i] as number) * (data.priorWeights?.[i] ?? 1) > 0,
-  );
-  const kept = selectRows(design, keep);
+  const keep = new Array<boolean>(design.rows);
+  let keptCount = 0;
+  for (let i = 0; i < design.rows; i += 1) {
+    keep[i] = (data.trials[i] as number) * (data.priorWeights?.[i] ?? 1) > 0;
+    if (keep[i]) keptCount += 1;
+  }
+  // Large data sets usually keep every row: then the design is used as it is, not copied.
+  const kept = keptCount === design.rows ? design : selectRows(design, keep);
   const n = kept.rows;
   const successes = new Float64Array(n);
   const trials = new Float64Array(n);
@@ -211,13 +217,17 @@ export function fitBinomial(data: BinomialData, options: BinomialFitOptions = {}
     priorWeights[r] = data.priorWeights?.[i] ?? 1;
     r += 1;
   }
-  const rows: GlmRows = {
-    proportions: successes.map((value, i) => value / (trials[i] as number)),
-    weights: trials.map((value, i) => value * (priorWeights[i] as number)),
-  };
+  const proportions = new Float64Array(n);
+  const glmWeights = new Float64Array(n);
+  for (let i = 0; i < n; i += 1) {
+    proportions[i] = (successes[i] as number) / (trials[i] as number);
+    glmWeights[i] = (trials[i] as number) * (priorWeights[i] as number);
+  }
+  const rows: GlmRows = { proportions, weights: glmWeights };
   const base = { link: linkName, names: design.names };
+  const exponents = columnExponents(kept);
 
-  const structural = householderQr(kept.values, n, columns);
+  const structural = reduceWeightedRows(kept, null, null, exponents).qr;
   if (structural.rank < columns) {
     const aliased = structural.aliased.map((j) => design.names[j] as string);
     return {
@@ -233,7 +243,7 @@ export function fitBinomial(data: BinomialData, options: BinomialFitOptions = {}
     };
   }
 
-  const iteration = iterate(kept, rows, link, maxIterations, tolerance);
+  const iteration = iterate(kept, rows, link, maxIterations, tolerance, exponents, options.start);
   warnings.push(...iteration.warnings);
   const { coefficients } = iteration;
   const linearPredictor = multiply(kept, coefficients);
@@ -247,7 +257,7 @@ export function fitBinomial(data: BinomialData, options: BinomialFitOptions = {}
       if (change > DIVERGING_STEP * Math.max(1, Math.abs(linearPredictor[i] as number))) stillMoving = true;
     }
   }
-  const information = householderQr(weightedDesign(kept, state.rootWeights), n, columns);
+  const information = reduceWeightedRows(kept, squares(state.rootWeights), null, exponents).qr;
   const weightedRankLost = iteration.weightsCollapsed || information.rank < columns;
   if (weightedRankLost && boundaryRows === 0) {
     // Numerically dependent columns that only show once weighted (e.g. tiny or subnormal entries).
@@ -524,13 +534,10 @@ function linkState(link: Link, linearPredictor: Float64Array, rows: GlmRows): Li
   return { mu, complement, derivative, rootWeights };
 }
 
-function weightedDesign(design: DesignMatrix, rootWeights: Float64Array): Float64Array {
-  const n = design.rows;
-  const scaled = new Float64Array(design.values.length);
-  for (let j = 0; j < design.columns; j += 1) {
-    for (let i = 0; i < n; i += 1) scaled[j * n + i] = (design.values[j * n + i] as number) * (rootWeights[i] as number);
-  }
-  return scaled;
+function squares(rootWeights: Float64Array): Float64Array {
+  const weights = new Float64Array(rootWeights.length);
+  for (let i = 0; i < rootWeights.length; i += 1) weights[i] = (rootWeights[i] as number) * (rootWeights[i] as number);
+  return weights;
 }
 
 interface IterationResult {
@@ -553,15 +560,21 @@ function iterate(
   link: Link,
   maxIterations: number,
   tolerance: number,
+  exponents: Int32Array,
+  start: ArrayLike<number> | undefined,
 ): IterationResult {
   const n = design.rows;
   const columns = design.columns;
   const warnings: string[] = [];
   // R binomial()$initialize: mustart = (weights * y + 0.5) / (weights + 1).
   let linearPredictor: Float64Array = new Float64Array(n);
-  for (let i = 0; i < n; i += 1) {
-    const weight = rows.weights[i] as number;
-    linearPredictor[i] = link.link((weight * (rows.proportions[i] as number) + 0.5) / (weight + 1));
+  if (start !== undefined) {
+    linearPredictor = multiply(design, start);
+  } else {
+    for (let i = 0; i < n; i += 1) {
+      const weight = rows.weights[i] as number;
+      linearPredictor[i] = link.link((weight * (rows.proportions[i] as number) + 0.5) / (weight + 1));
+    }
   }
   let previousDeviance = devianceAt(link, linearPredictor, rows);
   let coefficients: Float64Array | null = null;
@@ -577,23 +590,25 @@ function iterate(
     iterations += 1;
     const state = linkState(link, linearPredictor, rows);
     const workingResponse = new Float64Array(n);
+    const workingWeights = new Float64Array(n);
     for (let i = 0; i < n; i += 1) {
       const rootWeight = state.rootWeights[i] as number;
       if (rootWeight === 0) continue;
-      // z = eta + (y - mu) / (dmu/deta), scaled by sqrt(w).
-      const working =
+      // z = eta + (y - mu) / (dmu/deta), weight w = n (dmu/deta)^2 / V.
+      workingResponse[i] =
         (linearPredictor[i] as number) +
         residualOf(rows.proportions[i] as number, state.mu[i] as number, state.complement[i] as number) /
           (state.derivative[i] as number);
-      workingResponse[i] = working * rootWeight;
+      workingWeights[i] = rootWeight * rootWeight;
     }
-    const qr = householderQr(weightedDesign(design, state.rootWeights), n, columns);
+    const reduced = reduceWeightedRows(design, workingWeights, workingResponse, exponents);
+    const qr = reduced.qr;
     if (qr.rank < columns) {
       weightsCollapsed = true;
       collapsedAliased = { aliased: qr.aliased };
       break;
     }
-    let candidate = solveLeastSquares(qr, workingResponse).coefficients;
+    let candidate = solveLeastSquares(qr, reduced.effects).coefficients;
     let candidatePredictor = multiply(design, candidate);
     let deviance = devianceAt(link, candidatePredictor, rows);
     // Near the optimum, a non-canonical link switches to Newton-Raphson steps
