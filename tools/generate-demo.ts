@@ -100,6 +100,16 @@ writeJson('ineligible-player.lobby.json', {
   difficulty: 'elite',
   players: [...team(TEAMS[0], [20, 28, 34, 51, 66]), ...team(TEAMS[3], [23, 30, 39, 58, 262])],
 });
+writeJson('sampled-3v3.lobby.json', {
+  format: 'lagparity/lobby@1',
+  match_id: 'harbourline-cup-r1-foxes-owls',
+  attribute: 'timing_window',
+  difficulty: 'standard',
+  players: [
+    ...[14, 25, 38].map((base) => ({ id: nextHandle(), team: TEAMS[1], latency_ms: samples(base, 5, 0.15) })),
+    ...[18, 30, 52].map((base) => ({ id: nextHandle(), team: TEAMS[2], latency_ms: samples(base, 5, 0.15) })),
+  ],
+});
 writeJson('league-rules.json', {
   format: 'lagparity/rules@1',
   scale_floor: 1,
@@ -108,7 +118,11 @@ writeJson('league-rules.json', {
   latency_limit_ms: 220,
   accepted_gap: 0.02,
   quantisation_step: null,
+  soft_cap: { above: 1.35, fraction: 0.5 },
   latency_estimator: { percentile: 10 },
+  accepted_duel_deviation: 0.05,
+  accepted_team_gap: 0.02,
+  accepted_exploit_gain: 0.01,
 });
 // The ground truth as a model file, labelled so: what a perfect fit would give.
 const names = ['intercept', 'latency', 'log_scale', 'difficulty[veteran]', 'difficulty[elite]', 'latency_x_log_scale'];

@@ -1,7 +1,10 @@
 #!/usr/bin/env node
 /** The `lagparity` command line. Library modules never import this file. */
 import { Command, CommanderError } from 'commander';
+import { registerAudit } from './audit-command.js';
 import { registerBalance } from './balance-command.js';
+import { registerFit } from './fit-command.js';
+import { registerReport } from './report-command.js';
 import { registerSummarize } from './summarize-command.js';
 import { registerValidate } from './validate-command.js';
 import { EXIT_BAD_INPUT } from './output.js';
@@ -16,7 +19,10 @@ program
   .addHelpText('after', '\nExit codes: 0 success; 1 a check failed (audit); 2 bad input.');
 
 registerBalance(program);
+registerFit(program);
+registerAudit(program);
 registerSummarize(program);
+registerReport(program);
 registerValidate(program);
 
 try {

@@ -16,7 +16,7 @@ export const rulesFileSchema = z
     scale_cap: positive.default(1.5).describe('Largest scale a player may get.'),
     max_scale_ratio: positive.nullable().default(null).describe('Largest allowed ratio between the largest and smallest scale in a lobby; null: no limit.'),
     latency_limit_ms: positive.nullable().default(null).describe('Players whose latency estimate is above this are ineligible (reported, never scaled); null: no limit.'),
-    accepted_gap: z.number({ error: 'a finite number' }).min(0, { error: 'a number >= 0' }).default(0.02).describe('Largest residual gap in hit probability to the target an organiser accepts.'),
+    accepted_gap: z.number({ error: 'a finite number' }).gt(0, { error: 'a probability above 0 (0 would fail every lobby on rounding alone)' }).max(1).default(0.02).describe('Largest residual gap in hit probability to the target an organiser accepts.'),
     quantisation_step: positive.nullable().default(null).describe('Scales are rounded to multiples of this step (for engines with discrete scales); null: continuous.'),
     soft_cap: z
       .object({
@@ -47,6 +47,9 @@ export const rulesFileSchema = z
       })
       .strict()
       .default({ hits_to_win: 3, volleys: 'simultaneous' }),
+    accepted_duel_deviation: z.number().gt(0, { error: 'a probability above 0 (0 would fail every lobby on rounding alone)' }).max(0.5).default(0.05).describe('Largest accepted deviation from even odds (1/2) of a duel between opposing players of equal skill, after compensation.'),
+    accepted_team_gap: z.number().gt(0, { error: 'a probability above 0 (0 would fail every lobby on rounding alone)' }).max(1).default(0.02).describe('Largest accepted gap between team means of expected hit probability, after compensation.'),
+    accepted_exploit_gain: z.number().gt(0, { error: 'a probability above 0 (0 would fail every lobby on rounding alone)' }).max(1).default(0.01).describe('Largest accepted gain in expected hit probability a player could get from latency spikes (the exploit view).'),
     spike_fraction: z.number().gt(0, { error: 'a fraction in (0, 1]' }).max(1, { error: 'a fraction in (0, 1]' }).default(0.25).describe('Share of a player\'s samples the exploit view makes read at the latency limit.'),
   })
   .strict()

@@ -1,0 +1,190 @@
+/**
+ * The organiser's audit: judge a rule set against lobbies before a match.
+ *
+ * Each lobby is balanced with the duel and exploit views on, then judged
+ * against the rules' accepted limits; the verdict is `pass`, or `fail` with
+ * every rule that broke and the number that broke it. The summary counts the
+ * passes, lists the lobbies worst first and says which constraint binds most.
+ */
+import type { Issue } from '../issues.js';
+import { show } from '../issues.js';
+import type { LobbyFile } from '../formats/lobby-file.js';
+import type { CompiledModel } from '../model/compile.js';
+import type { CompiledRules } from '../solver/rules.js';
+import { balanceLobby } from '../solver/balance-lobby.js';
+import {
+  AUDIT_FORMAT,
+  AUDIT_RULES,
+  BINDINGS,
+  type AuditPlayer,
+  type AuditReason,
+  type AuditReport,
+  type AuditRule,
+  type AuditSummary,
+  type LobbyAudit,
+} from './audit-schema.js';
+
+type Binding = (typeof BINDINGS)[number];
+
+/** The caution every audit carries. */
+export const AUDIT_CAUTION =
+  'Compensation changes competitive outcomes: disclose it to the players; the league\'s own rules and officials decide.';
+
+const three = (value: number) => value.toFixed(3);
+
+function describeBinding(binding: Binding, rules: CompiledRules): string {
+  switch (binding) {
+    case 'cap':
+      return `held by the cap ${rules.scale_cap.toFixed(2)}`;
+    case 'soft_cap':
+      return `held by the soft cap above ${rules.soft_cap?.above.toFixed(2) ?? '?'} (fraction ${rules.soft_cap?.fraction ?? '?'})`;
+    case 'ratio':
+      return `held by the scale ratio limit ${rules.max_scale_ratio ?? '?'}`;
+    case 'budget':
+      return `held by the assistance budget ${rules.assistance_budget ?? '?'}`;
+    case 'quantisation':
+      return `held by the quantisation step ${rules.quantisation_step ?? '?'}`;
+    default:
+      return `binding: ${binding}`;
+  }
+}
+
+function reason(rule: AuditRule, value: number | null, limit: number | null, player: string | null, binding: Binding | null, message: string): AuditReason {
+  return { rule, value, limit, player, binding, message };
+}
+
+/** Audit one lobby. `source` names the file it came from. Pure. */
+export function auditLobby(lobby: LobbyFile, model: CompiledModel, rules: CompiledRules, source = ''): LobbyAudit {
+  const result = balanceLobby(lobby, model, rules, { views: { duel: true, exploit: true } });
+  if (result.status === 'rejected') {
+    return {
+      match_id: lobby.match_id,
+      source,
+      verdict: 'fail',
+      reasons: result.issues.map((issue: Issue) => reason('solvable', null, null, null, null, `the lobby cannot be solved: ${issue.message}`)),
+      target: null,
+      players: [],
+      figures: null,
+      warnings: [...result.warnings, ...result.issues],
+    };
+  }
+  const reasons: AuditReason[] = [];
+  const exploit = result.views?.exploit;
+  const duel = result.views?.duel;
+  // Spikes need samples: a single latency value cannot be partly spiked (its manipulation is the
+  // uniform shift, reported as `worst_shift_gain` and bounded only by server-side measurement).
+  const sampled = new Set(lobby.players.filter((player) => Array.isArray(player.latency_ms)).map((player) => player.id));
+  const spikeGain = new Map<string, number | null>();
+  for (const entry of exploit?.players ?? []) spikeGain.set(entry.id, sampled.has(entry.id) ? entry.spike_gain : null);
+  // Duels among eligible players only: an ineligible player is not scaled and fails the lobby on eligibility.
+  const eligibleIds = new Set(result.players.filter((player) => player.eligible).map((player) => player.id));
+  const duelPairs = (duel?.pairs ?? []).filter((pair) => eligibleIds.has(pair.a) && eligibleIds.has(pair.b));
+  const deviation = (value: number) => Math.abs(value - 0.5);
+  let worstPair = duelPairs[0];
+  let worstBefore = 0;
+  for (const pair of duelPairs) {
+    worstBefore = Math.max(worstBefore, deviation(pair.a_wins_before));
+    if (worstPair === undefined || deviation(pair.a_wins_after) > deviation(worstPair.a_wins_after)) worstPair = pair;
+  }
+  const worstDuel = worstPair === undefined ? 0 : deviation(worstPair.a_wins_after);
+
+  for (const player of result.players) {
+    if (!player.eligible) {
+      reasons.push(reason('latency_limit_ms', player.latency_estimate_ms, rules.latency_limit_ms, player.id, 'ineligible', `player ${show(player.id)} at ${player.latency_estimate_ms.toFixed(1)} ms is above the eligibility limit ${rules.latency_limit_ms ?? '?'} ms`));
+    }
+  }
+  for (const player of result.players) {
+    if (player.eligible && player.gap_to_target > rules.accepted_gap) {
+      reasons.push(reason('accepted_gap', player.gap_to_target, rules.accepted_gap, player.id, player.binding, `residual gap ${three(player.gap_to_target)} above the accepted ${three(rules.accepted_gap)} for player ${show(player.id)}, ${describeBinding(player.binding, rules)}`));
+    }
+  }
+  if (duel !== undefined && worstPair !== undefined && worstDuel > rules.accepted_duel_deviation) {
+    reasons.push(reason('accepted_duel_deviation', worstDuel, rules.accepted_duel_deviation, worstPair.a, null, `an equal-skill duel of ${show(worstPair.a)} against ${show(worstPair.b)} (first to ${duel.hits_to_win} hits, ${duel.volleys} volleys) is won ${three(worstPair.a_wins_after)} of the time: ${three(worstDuel)} from even odds, above the accepted ${three(rules.accepted_duel_deviation)}`));
+  }
+  const summary = result.summary;
+  if (summary.team_gap_after !== null && summary.team_gap_after > rules.accepted_team_gap) {
+    const ordered = [...summary.teams].sort((left, right) => right.mean_after - left.mean_after);
+    reasons.push(reason('accepted_team_gap', summary.team_gap_after, rules.accepted_team_gap, null, null, `team gap ${three(summary.team_gap_after)} between ${show(ordered[0]?.team)} and ${show(ordered[ordered.length - 1]?.team)} above the accepted ${three(rules.accepted_team_gap)}`));
+  }
+  for (const entry of exploit?.players ?? []) {
+    if (entry.spike_gain !== null && sampled.has(entry.id) && entry.spike_gain > rules.accepted_exploit_gain) {
+      reasons.push(reason('accepted_exploit_gain', entry.spike_gain, rules.accepted_exploit_gain, entry.id, null, `player ${show(entry.id)} could gain ${three(entry.spike_gain)} in hit probability by spiking ${entry.spiked_samples} sample(s) to ${exploit?.read_at_ms ?? '?'} ms under the ${exploit?.estimator ?? '?'} estimator, above the accepted ${three(rules.accepted_exploit_gain)}`));
+    }
+  }
+  const players: AuditPlayer[] = result.players.map((player) => ({
+    id: player.id,
+    team: player.team,
+    eligible: player.eligible,
+    latency_estimate_ms: player.latency_estimate_ms,
+    scale: player.scale,
+    expected_before: player.expected_before,
+    expected_after: player.expected_after,
+    gap_to_target: player.gap_to_target,
+    binding: player.binding,
+    spike_gain: spikeGain.get(player.id) ?? null,
+  }));
+  return {
+    match_id: lobby.match_id,
+    source,
+    verdict: reasons.length === 0 ? 'pass' : 'fail',
+    reasons,
+    target: result.target,
+    players,
+    figures: {
+      largest_gap_before: summary.largest_gap_before,
+      largest_gap_after: summary.largest_gap_after,
+      jain_before: summary.jain_before,
+      jain_after: summary.jain_after,
+      team_gap_before: summary.team_gap_before,
+      team_gap_after: summary.team_gap_after,
+      worst_duel_deviation_before: worstBefore,
+      worst_duel_deviation_after: worstDuel,
+      worst_spike_gain: Math.max(0, ...[...spikeGain.values()].map((gain) => gain ?? 0)),
+      worst_shift_gain: exploit?.worst_shift_gain ?? 0,
+    },
+    warnings: [...result.warnings],
+  };
+}
+
+/** The largest residual gap among a lobby's eligible players; null if it was not solved. */
+export function worstGap(audit: LobbyAudit): number | null {
+  if (audit.figures === null) return null;
+  let worst = 0;
+  for (const player of audit.players) if (player.eligible) worst = Math.max(worst, player.gap_to_target);
+  return worst;
+}
+
+function summarise(audits: readonly LobbyAudit[]): AuditSummary {
+  const bindingCounts = Object.fromEntries(BINDINGS.map((binding) => [binding, 0])) as Record<Binding, number>;
+  const failingRules = Object.fromEntries(AUDIT_RULES.map((rule) => [rule, 0])) as Record<AuditRule, number>;
+  for (const audit of audits) {
+    for (const player of audit.players) bindingCounts[player.binding] += 1;
+    for (const rule of new Set(audit.reasons.map((entry) => entry.rule))) failingRules[rule] += 1;
+  }
+  let mostBinding: Binding | null = null;
+  for (const binding of BINDINGS) {
+    if (binding === 'none') continue;
+    if (bindingCounts[binding] > 0 && (mostBinding === null || bindingCounts[binding] > bindingCounts[mostBinding])) mostBinding = binding;
+  }
+  const ranked = audits
+    .map((audit) => ({ match_id: audit.match_id, verdict: audit.verdict, worst_gap: worstGap(audit), reasons: audit.reasons.length }))
+    .sort((left, right) => {
+      if (left.verdict !== right.verdict) return left.verdict === 'fail' ? -1 : 1;
+      const gap = (right.worst_gap ?? Infinity) - (left.worst_gap ?? Infinity);
+      if (gap !== 0 && !Number.isNaN(gap)) return gap;
+      return left.match_id < right.match_id ? -1 : left.match_id > right.match_id ? 1 : 0;
+    });
+  const passed = audits.filter((audit) => audit.verdict === 'pass').length;
+  return { lobbies: audits.length, passed, failed: audits.length - passed, worst_first: ranked, binding_counts: bindingCounts, failing_rules: failingRules, most_binding: mostBinding };
+}
+
+export interface AuditEntry {
+  readonly lobby: LobbyFile;
+  readonly source: string;
+}
+
+/** Audit lobbies under one model and rule set. Pure. */
+export function auditLobbies(entries: readonly AuditEntry[], model: CompiledModel, rules: CompiledRules): AuditReport {
+  const lobbies = entries.map(({ lobby, source }) => auditLobby(lobby, model, rules, source));
+  return { format: AUDIT_FORMAT, caution: AUDIT_CAUTION, lobbies, summary: summarise(lobbies) };
+}

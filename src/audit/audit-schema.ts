@@ -1,0 +1,116 @@
+/**
+ * The shape of an audit (`lagparity/audit-result@1`), as zod schemas: the
+ * TypeScript types derive from them and docs/schemas/audit-result.schema.json
+ * is generated from them, so a script in any language can rely on it.
+ */
+import { z } from 'zod';
+
+export const AUDIT_FORMAT = 'lagparity/audit-result@1';
+
+export const BINDINGS = ['none', 'floor', 'cap', 'soft_cap', 'ratio', 'budget', 'quantisation', 'ineligible'] as const;
+export const AUDIT_RULES = ['solvable', 'latency_limit_ms', 'accepted_gap', 'accepted_duel_deviation', 'accepted_team_gap', 'accepted_exploit_gain'] as const;
+
+const probability = z.number().min(0).max(1);
+
+export const auditReasonSchema = z
+  .object({
+    rule: z.enum(AUDIT_RULES).describe('The rule that broke (`solvable`: the model cannot solve the lobby).'),
+    value: z.number().nullable().describe('The number that broke it.'),
+    limit: z.number().nullable().describe('What the rules accept.'),
+    player: z.string().nullable(),
+    binding: z.enum(BINDINGS).nullable().describe('The constraint that holds the player back, when that is why.'),
+    message: z.string(),
+  })
+  .strict();
+
+export const auditPlayerSchema = z
+  .object({
+    id: z.string(),
+    team: z.string().nullable(),
+    eligible: z.boolean(),
+    latency_estimate_ms: z.number(),
+    scale: z.number().describe('1 for an ineligible player (reported, never scaled).'),
+    expected_before: probability,
+    expected_after: probability,
+    gap_to_target: z.number(),
+    binding: z.enum(BINDINGS),
+    spike_gain: z.number().nullable().describe('Expected hit probability the player could gain from latency spikes; null when not computed.'),
+  })
+  .strict();
+
+export const lobbyAuditSchema = z
+  .object({
+    match_id: z.string(),
+    source: z.string().describe('The file the lobby came from (`stdin` for standard input).'),
+    verdict: z.enum(['pass', 'fail']),
+    reasons: z.array(auditReasonSchema).describe('Every rule that broke; empty on a pass.'),
+    target: probability.nullable(),
+    players: z.array(auditPlayerSchema),
+    figures: z
+      .object({
+        largest_gap_before: z.number(),
+        largest_gap_after: z.number(),
+        jain_before: z.number(),
+        jain_after: z.number(),
+        team_gap_before: z.number().nullable(),
+        team_gap_after: z.number().nullable(),
+        worst_duel_deviation_before: z.number(),
+        worst_duel_deviation_after: z.number(),
+        worst_spike_gain: z.number(),
+        worst_shift_gain: z.number(),
+      })
+      .strict()
+      .nullable()
+      .describe('null when the lobby could not be solved.'),
+    warnings: z.array(z.object({ code: z.string(), severity: z.enum(['error', 'warning']), location: z.string(), message: z.string() }).strict()),
+  })
+  .strict();
+
+export const auditSummarySchema = z
+  .object({
+    lobbies: z.number().int(),
+    passed: z.number().int(),
+    failed: z.number().int(),
+    worst_first: z.array(z.object({ match_id: z.string(), verdict: z.enum(['pass', 'fail']), worst_gap: z.number().nullable(), reasons: z.number().int() }).strict()),
+    binding_counts: z.record(z.enum(BINDINGS), z.number().int()).describe('How many players each constraint binds, over all lobbies.'),
+    failing_rules: z.record(z.enum(AUDIT_RULES), z.number().int()).describe('How many lobbies each rule fails.'),
+    most_binding: z.enum(BINDINGS).nullable().describe('The constraint (other than none) that binds most often; null if none binds.'),
+  })
+  .strict();
+
+export const auditReportSchema = z
+  .object({
+    format: z.literal(AUDIT_FORMAT),
+    caution: z.string(),
+    lobbies: z.array(lobbyAuditSchema),
+    summary: auditSummarySchema,
+  })
+  .strict();
+
+export const sweepReportSchema = z
+  .object({
+    format: z.literal('lagparity/audit-sweep@1'),
+    rule: z.string(),
+    rows: z.array(
+      z
+        .object({
+          value: z.number(),
+          valid: z.boolean().describe('false when the rules with this value contradict themselves'),
+          issues: z.array(z.string()),
+          lobbies: z.number().int(),
+          passed: z.number().int(),
+          share_passing: z.number().min(0).max(1).nullable(),
+          worst_gap: z.number().nullable(),
+        })
+        .strict(),
+    ),
+  })
+  .strict();
+
+export type AuditReason = z.infer<typeof auditReasonSchema>;
+export type AuditPlayer = z.infer<typeof auditPlayerSchema>;
+export type LobbyAudit = z.infer<typeof lobbyAuditSchema>;
+export type AuditSummary = z.infer<typeof auditSummarySchema>;
+export type AuditReport = z.infer<typeof auditReportSchema>;
+export type SweepReport = z.infer<typeof sweepReportSchema>;
+export type AuditRule = (typeof AUDIT_RULES)[number];

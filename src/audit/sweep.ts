@@ -1,0 +1,97 @@
+/**
+ * Sensitivity sweep for rule design: re-run the audit over a range of one
+ * rule's values and report, per value, the share of lobbies that pass and the
+ * worst residual gap, so a designer sees where a cap starts to bite.
+ *
+ * Syntax: `RULE=FROM:TO:STEP` (inclusive range) or `RULE=V1,V2,...`, e.g.
+ * `scale_cap=1.2:2.0:0.1`.
+ */
+import { type Result, error, fail, ok, show } from '../issues.js';
+import type { RulesFile } from '../formats/rules-file.js';
+import type { CompiledModel } from '../model/compile.js';
+import { compileRules } from '../solver/rules.js';
+import { type AuditEntry, auditLobbies, worstGap } from './audit-lobbies.js';
+import type { SweepReport } from './audit-schema.js';
+
+/** The rules a sweep can vary: every numeric field. */
+export const SWEEPABLE_RULES = [
+  'scale_floor',
+  'scale_cap',
+  'max_scale_ratio',
+  'latency_limit_ms',
+  'accepted_gap',
+  'quantisation_step',
+  'assistance_budget',
+  'accepted_duel_deviation',
+  'accepted_team_gap',
+  'accepted_exploit_gain',
+  'spike_fraction',
+] as const;
+
+export type SweepableRule = (typeof SWEEPABLE_RULES)[number];
+
+/** At most this many values in one sweep. */
+export const MAX_SWEEP_VALUES = 1000;
+
+export interface SweepSpec {
+  readonly rule: SweepableRule;
+  readonly values: readonly number[];
+}
+
+const NUMBER = /^[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/;
+
+function bad(text: string, expected: string): Result<SweepSpec> {
+  return fail([error('invalid_sweep', '--sweep', `\`--sweep\` requires ${expected}, got ${show(text)}`)]);
+}
+
+/** Parse `RULE=FROM:TO:STEP` or `RULE=V1,V2,...`. */
+export function parseSweep(text: string): Result<SweepSpec> {
+  const equals = text.indexOf('=');
+  if (equals < 0) return bad(text, 'RULE=FROM:TO:STEP or RULE=V1,V2,... (e.g. scale_cap=1.2:2.0:0.1)');
+  const rule = text.slice(0, equals).trim();
+  const body = text.slice(equals + 1).trim();
+  if (!(SWEEPABLE_RULES as readonly string[]).includes(rule)) return bad(rule, `a numeric rule, one of ${SWEEPABLE_RULES.join(', ')}`);
+  const parts = body.includes(':') ? body.split(':') : body.split(',');
+  if (parts.some((part) => !NUMBER.test(part.trim()))) return bad(body, 'plain decimal numbers');
+  const numbers = parts.map((part) => Number(part.trim()));
+  let values: number[];
+  if (body.includes(':')) {
+    const [from, to, step] = numbers;
+    if (numbers.length !== 3 || from === undefined || to === undefined || step === undefined) return bad(body, 'FROM:TO:STEP with three numbers');
+    if (!(step > 0) || to < from) return bad(body, 'FROM <= TO and a STEP above 0');
+    const count = Math.floor((to - from) / step + 1e-9) + 1;
+    if (count > MAX_SWEEP_VALUES) return bad(body, `at most ${MAX_SWEEP_VALUES} values`);
+    // Values by multiplication, rounded to 12 significant digits, so 1.2 + 3 x 0.1 prints as 1.5.
+    values = Array.from({ length: count }, (_, index) => Number((from + index * step).toPrecision(12)));
+  } else {
+    values = numbers;
+    if (values.length > MAX_SWEEP_VALUES) return bad(body, `at most ${MAX_SWEEP_VALUES} values`);
+  }
+  return ok({ rule: rule as SweepableRule, values });
+}
+
+/** Run the audit once per value of one rule. Pure. */
+export function sweepRule(entries: readonly AuditEntry[], model: CompiledModel, rules: RulesFile, spec: SweepSpec): SweepReport {
+  const rows = spec.values.map((value) => {
+    const compiled = compileRules({ ...rules, [spec.rule]: value });
+    if (!compiled.ok) {
+      return { value, valid: false, issues: compiled.issues.map((issue) => issue.message), lobbies: entries.length, passed: 0, share_passing: null, worst_gap: null };
+    }
+    const report = auditLobbies(entries, model, compiled.value);
+    let worst: number | null = null;
+    for (const lobby of report.lobbies) {
+      const gap = worstGap(lobby);
+      if (gap !== null) worst = worst === null ? gap : Math.max(worst, gap);
+    }
+    return {
+      value,
+      valid: true,
+      issues: [],
+      lobbies: report.summary.lobbies,
+      passed: report.summary.passed,
+      share_passing: report.summary.lobbies === 0 ? null : report.summary.passed / report.summary.lobbies,
+      worst_gap: worst,
+    };
+  });
+  return { format: 'lagparity/audit-sweep@1', rule: spec.rule, rows };
+}
