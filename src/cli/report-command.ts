@@ -1,0 +1,98 @@
+/** `lagparity report`: one self-contained HTML page of the playtest, the model and the lobbies. */
+import { createHash } from 'node:crypto';
+import { createReadStream } from 'node:fs';
+import { basename } from 'node:path';
+import type { Command } from 'commander';
+import { readTrialsFile } from '../io/read-trials.js';
+import { writeFileAtomic } from '../io/write-file.js';
+import { renderReport } from '../report/render-report.js';
+import { parseBinSpec } from '../summary/bins.js';
+import { loadLobbies, loadModel, loadRules } from './inputs.js';
+import { EXIT_BAD_INPUT, EXIT_OK, reportIssues, writeOut } from './output.js';
+
+interface ReportOptions {
+  trials: string;
+  model: string;
+  lobbies?: string[];
+  rules?: string;
+  out: string;
+  force?: boolean;
+  latencyBins: string;
+}
+
+async function sha256OfFile(path: string): Promise<string | undefined> {
+  try {
+    const hash = createHash('sha256');
+    for await (const chunk of createReadStream(path)) hash.update(chunk as Buffer);
+    return hash.digest('hex');
+  } catch {
+    return undefined;
+  }
+}
+
+export async function runReport(options: ReportOptions): Promise<number> {
+  const bins = parseBinSpec(options.latencyBins, '--latency-bins');
+  const [trials, model, rules, lobbies] = await Promise.all([
+    readTrialsFile(options.trials),
+    loadModel(options.model),
+    loadRules(options.rules),
+    options.lobbies === undefined || options.lobbies.length === 0 ? Promise.resolve(undefined) : loadLobbies(options.lobbies),
+  ]);
+  const issues = [bins, trials, model, rules, ...(lobbies === undefined ? [] : [lobbies])].flatMap((result) => (result.ok ? [] : result.issues));
+  if (!bins.ok || !trials.ok || !model.ok || !rules.ok || (lobbies !== undefined && !lobbies.ok)) {
+    reportIssues(issues);
+    return EXIT_BAD_INPUT;
+  }
+  reportIssues(trials.warnings);
+  const report = await renderReport({
+    trials: trials.value,
+    model: model.value,
+    modelName: basename(options.model),
+    lobbies: lobbies?.ok ? lobbies.value.map(({ path, lobby }) => ({ name: path === '-' ? 'stdin' : basename(path), lobby })) : [],
+    rules: rules.value,
+    rulesName: options.rules === undefined ? 'the default rules' : basename(options.rules),
+    trialsSha256: await sha256OfFile(options.trials),
+    latencyBins: bins.value,
+  });
+  if (!report.ok) {
+    reportIssues(report.issues);
+    return EXIT_BAD_INPUT;
+  }
+  reportIssues(report.warnings);
+  const written = await writeFileAtomic(options.out, report.value.html, { force: options.force ?? false });
+  if (!written.ok) {
+    reportIssues(written.issues);
+    return EXIT_BAD_INPUT;
+  }
+  writeOut(`wrote ${options.out} (${report.value.charts.length} charts)`);
+  return EXIT_OK;
+}
+
+export function registerReport(program: Command): void {
+  program
+    .command('report')
+    .description('Write one self-contained HTML report: accuracy by condition, the fitted curves with their band, calibration, and what compensation does to each lobby.')
+    .requiredOption('--trials <file>', 'trials file (CSV), the playtest the model was fitted on')
+    .requiredOption('--model <file>', 'model file (lagparity/model@1)')
+    .option('--lobbies <paths...>', 'lobby files (*.lobby.json) or folders of them, to show balanced')
+    .option('--rules <file>', 'rules file (lagparity/rules@1) for the lobbies; default: floor 1, cap 1.5, no other limit')
+    .requiredOption('--out <file>', 'the HTML file to write')
+    .option('--force', 'replace the output file if it exists')
+    .option('--latency-bins <spec>', 'latency groups: auto, levels, quantile:K, width:W (ms) or edges:a,b,... (as for summarize)', 'auto')
+    .addHelpText(
+      'after',
+      `
+The page needs no network: charts are inline SVG, with no scripts and no web fonts.
+The file is written to a temporary file beside the target and renamed into place; an existing
+file is kept unless --force.
+
+Example:
+  lagparity report --trials matches/playtest-trials.csv --model matches/model.json \\
+    --lobbies matches --rules matches/league-rules.json --out report.html
+
+Exit codes: 0 written; 2 bad input, or the output exists without --force.`,
+    )
+    .action(async (options: ReportOptions) => {
+      process.exitCode = await runReport(options);
+    });
+}

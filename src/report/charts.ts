@@ -1,0 +1,293 @@
+/**
+ * The report's charts as Vega-Lite specs: pure functions from the numbers the
+ * report computed to a declarative description (data, marks, encodings).
+ * Every axis has a title with its unit, every chart a legend for what colour
+ * and shape mean, and colours come from the Okabe–Ito palette (`palette.ts`).
+ *
+ * Box plots are drawn from statistics computed here (Tukey's hinges, as R's
+ * `boxplot.stats`), not by Vega-Lite's own `boxplot` mark, so the picture and
+ * the `summarize` table show the same numbers.
+ */
+import type { Config, TopLevelSpec } from 'vega-lite';
+import { CATEGORY_COLOURS, OKABE_ITO } from './palette.js';
+
+const FONT = 'sans-serif';
+
+/** Shared look: fonts, sizes, the palette. */
+const CONFIG: Config = {
+  font: FONT,
+  background: '#ffffff',
+  padding: 8,
+  range: { category: [...CATEGORY_COLOURS] },
+  axis: { labelFontSize: 11, titleFontSize: 12, titleFontWeight: 'normal', grid: true, gridColor: '#e4e4e4' },
+  legend: { labelFontSize: 11, titleFontSize: 12, titleFontWeight: 'normal', symbolStrokeWidth: 2, labelLimit: 0, titleLimit: 0 },
+  title: { fontSize: 13, fontWeight: 'normal', anchor: 'start' },
+  view: { stroke: '#cccccc' },
+};
+
+export interface BoxGroup {
+  readonly label: string;
+  readonly rounds: number;
+  readonly lower_whisker: number;
+  readonly lower_hinge: number;
+  readonly median: number;
+  readonly upper_hinge: number;
+  readonly upper_whisker: number;
+  readonly mean_accuracy: number;
+  readonly outliers: readonly number[];
+}
+
+/** Box plots of per-round accuracy, one box per group, with the attempt-weighted mean and the outliers. */
+export function boxPlotSpec(groups: readonly BoxGroup[], axisTitle: string, title: string): TopLevelSpec {
+  const order = groups.map((group) => group.label);
+  const boxes = groups.map((group) => ({ ...group, outliers: undefined }));
+  const outliers = groups.flatMap((group) => group.outliers.map((value) => ({ label: group.label, value })));
+  const longLabels = order.some((label) => label.length > 10);
+  const x = { field: 'label', type: 'nominal' as const, sort: [...order], title: axisTitle, axis: { labelAngle: longLabels ? -30 : 0, labelLimit: 160 } };
+  const y = { type: 'quantitative' as const, scale: { domain: [0, 1] }, title: 'Per-round accuracy (hits / attempts)' };
+  const legend = {
+    domain: ['attempt-weighted mean', 'outlier round (beyond 1.5 hinge spreads)'],
+    range: [OKABE_ITO.vermillion, OKABE_ITO.black],
+  };
+  const width = Math.max(260, 70 * groups.length);
+  return {
+    config: CONFIG,
+    title,
+    width,
+    height: 260,
+    layer: [
+      {
+        data: { values: boxes },
+        mark: { type: 'rule' as const, color: OKABE_ITO.black },
+        encoding: { x, y: { ...y, field: 'lower_whisker' }, y2: { field: 'upper_whisker' } },
+      },
+      {
+        data: { values: boxes },
+        mark: { type: 'bar' as const, size: 28, color: OKABE_ITO.skyBlue, opacity: 0.55, stroke: OKABE_ITO.blue, strokeWidth: 1 },
+        encoding: { x, y: { ...y, field: 'lower_hinge' }, y2: { field: 'upper_hinge' } },
+      },
+      {
+        data: { values: boxes },
+        mark: { type: 'tick' as const, size: 28, thickness: 2, color: OKABE_ITO.blue },
+        encoding: { x, y: { ...y, field: 'median' } },
+      },
+      {
+        data: { values: boxes },
+        mark: { type: 'point' as const, shape: 'diamond', filled: true, size: 60 },
+        encoding: {
+          x,
+          y: { ...y, field: 'mean_accuracy' },
+          color: { datum: 'attempt-weighted mean', type: 'nominal' as const, scale: legend, legend: { title: null, orient: 'bottom' as const, direction: 'horizontal' as const } },
+        },
+      },
+      {
+        data: { values: outliers },
+        mark: { type: 'point' as const, shape: 'circle', filled: false, size: 30, strokeWidth: 1 },
+        encoding: {
+          x,
+          y: { ...y, field: 'value' },
+          color: { datum: 'outlier round (beyond 1.5 hinge spreads)', type: 'nominal' as const, scale: legend, legend: { title: null, orient: 'bottom' as const, direction: 'horizontal' as const } },
+        },
+      },
+    ],
+  } satisfies TopLevelSpec;
+}
+
+export interface CurvePoint {
+  readonly scale: string;
+  readonly latency: number;
+  readonly probability: number;
+  readonly lower: number;
+  readonly upper: number;
+}
+
+export interface ObservedPoint {
+  readonly scale: string;
+  readonly latency: number;
+  readonly accuracy: number;
+  readonly attempts: number;
+}
+
+export interface CurvePanel {
+  readonly difficulty: string;
+  readonly curve: readonly CurvePoint[];
+  readonly observed: readonly ObservedPoint[];
+}
+
+/**
+ * Fitted hit probability against latency, one curve per scale, with the 95%
+ * band when `band`, over the observed per-condition means; one panel per
+ * difficulty.
+ */
+export function curvesSpec(panels: readonly CurvePanel[], scaleOrder: readonly string[], band: boolean): TopLevelSpec {
+  const colour = {
+    field: 'scale',
+    type: 'nominal' as const,
+    sort: [...scaleOrder],
+    scale: { domain: [...scaleOrder] },
+    title: 'Compensation scale (×)',
+    legend: { orient: 'bottom' as const, direction: 'horizontal' as const },
+  };
+  const x = { field: 'latency', type: 'quantitative' as const, title: 'Latency (ms)' };
+  const y = { type: 'quantitative' as const, scale: { domain: [0, 1] }, title: 'Hit probability' };
+  return {
+    config: CONFIG,
+    title: band ? 'Fitted hit probability with 95% band (delta method), over the observed means' : 'Fitted hit probability over the observed means (no band: the model has no covariance)',
+    resolve: { scale: { color: 'shared' as const, shape: 'shared' as const }, legend: { color: 'shared' as const, shape: 'shared' as const } },
+    hconcat: panels.map((panel) => ({
+      title: `Difficulty: ${panel.difficulty}`,
+      width: 270,
+      height: 250,
+      layer: [
+        ...(band
+          ? [
+              {
+                data: { values: [...panel.curve] },
+                mark: { type: 'area' as const, opacity: 0.18 },
+                encoding: { x, y: { ...y, field: 'lower' }, y2: { field: 'upper' }, color: colour },
+              },
+            ]
+          : []),
+        {
+          data: { values: [...panel.curve] },
+          mark: { type: 'line' as const, strokeWidth: 2 },
+          encoding: { x, y: { ...y, field: 'probability' }, color: colour, detail: { field: 'scale' } },
+        },
+        {
+          data: { values: [...panel.observed] },
+          mark: { type: 'point' as const, filled: true, size: 36, stroke: '#ffffff', strokeWidth: 0.5 },
+          encoding: {
+            x,
+            y: { ...y, field: 'accuracy' },
+            color: colour,
+            shape: { datum: 'observed mean accuracy per condition', type: 'nominal' as const, legend: { title: null, orient: 'bottom' as const } },
+          },
+        },
+      ],
+    })),
+  } satisfies TopLevelSpec;
+}
+
+export interface CalibrationPoint {
+  readonly mean_predicted: number;
+  readonly observed: number;
+  readonly attempts: number;
+  readonly bin: string;
+}
+
+/** Predicted against observed in bins of predicted probability, with the diagonal. */
+export function calibrationSpec(points: readonly CalibrationPoint[]): TopLevelSpec {
+  const legend = { domain: ['playtest, one point per bin', 'perfect calibration (y = x)'], range: [OKABE_ITO.blue, OKABE_ITO.black] };
+  const x = { type: 'quantitative' as const, scale: { domain: [0, 1] }, title: 'Predicted hit probability (attempt-weighted bin mean)' };
+  const y = { type: 'quantitative' as const, scale: { domain: [0, 1] }, title: 'Observed hit rate (hits / attempts)' };
+  return {
+    config: CONFIG,
+    title: 'Calibration in ten bins of predicted probability',
+    width: 320,
+    height: 320,
+    layer: [
+      {
+        data: { values: [{ p: 0 }, { p: 1 }] },
+        mark: { type: 'line' as const, strokeDash: [5, 4], strokeWidth: 1.5 },
+        encoding: { x: { ...x, field: 'p' }, y: { ...y, field: 'p' }, color: { datum: 'perfect calibration (y = x)', type: 'nominal' as const, scale: legend, legend: { title: null, orient: 'bottom' as const, direction: 'vertical' as const } } },
+      },
+      {
+        data: { values: [...points] },
+        mark: { type: 'line' as const, strokeWidth: 1, opacity: 0.6 },
+        encoding: { x: { ...x, field: 'mean_predicted' }, y: { ...y, field: 'observed' }, color: { datum: 'playtest, one point per bin', type: 'nominal' as const, scale: legend } },
+      },
+      {
+        data: { values: [...points] },
+        mark: { type: 'point' as const, filled: true },
+        encoding: {
+          x: { ...x, field: 'mean_predicted' },
+          y: { ...y, field: 'observed' },
+          color: { datum: 'playtest, one point per bin', type: 'nominal' as const, scale: legend },
+          size: { field: 'attempts', type: 'quantitative' as const, title: 'Attempts in bin', scale: { range: [20, 260] }, legend: { orient: 'right' as const } },
+        },
+      },
+    ],
+  } satisfies TopLevelSpec;
+}
+
+export interface LobbyPlayerPoint {
+  readonly player: string;
+  readonly before: number;
+  readonly after: number;
+  /** `×1.234`, or `not scaled` for an ineligible player. */
+  readonly scale_label: string;
+  /** The rule that holds the player back, or null. */
+  readonly held_by: string | null;
+  readonly eligible: boolean;
+}
+
+const BEFORE = 'before (scale 1)';
+const AFTER = 'after (with its scale)';
+const HELD = 'held back by a rule (cap, ratio, budget)';
+const TARGET = 'target';
+
+/** Before/after expected hit probability per player, the target, the held-back players marked, the scales printed. */
+export function lobbySpec(title: string, players: readonly LobbyPlayerPoint[], target: number): TopLevelSpec {
+  const order = players.map((player) => player.player);
+  const legend = { domain: [BEFORE, AFTER, HELD, TARGET], range: [OKABE_ITO.orange, OKABE_ITO.blue, OKABE_ITO.vermillion, OKABE_ITO.black] };
+  const shapes = { domain: [BEFORE, AFTER, HELD, TARGET], range: ['circle', 'diamond', 'triangle-down', 'stroke'] };
+  const long = players.flatMap((player) => [
+    { player: player.player, series: BEFORE, p: player.before },
+    ...(player.eligible ? [{ player: player.player, series: AFTER, p: player.after }] : []),
+  ]);
+  const held = players.filter((player) => player.held_by !== null);
+  const x = { field: 'player', type: 'nominal' as const, sort: [...order], title: 'Player (in order of latency estimate, lowest first)', axis: { labelAngle: -35, labelLimit: 120 } };
+  const y = { type: 'quantitative' as const, scale: { zero: false, nice: true }, title: 'Expected hit probability' };
+  const colourLegend = { title: null, orient: 'bottom' as const, direction: 'horizontal' as const, columns: 2 };
+  return {
+    config: CONFIG,
+    title: { text: title, offset: 18 },
+    width: Math.max(320, 46 * players.length),
+    height: 260,
+    layer: [
+      {
+        data: { values: players.filter((player) => player.eligible) },
+        mark: { type: 'rule' as const, color: '#999999', strokeWidth: 1.5 },
+        encoding: { x, y: { ...y, field: 'before' }, y2: { field: 'after' } },
+      },
+      {
+        data: { values: [{ target }] },
+        mark: { type: 'rule' as const, strokeDash: [6, 3], strokeWidth: 1.5 },
+        encoding: {
+          y: { ...y, field: 'target' },
+          color: { datum: TARGET, type: 'nominal' as const, scale: legend, legend: colourLegend },
+          shape: { datum: TARGET, type: 'nominal' as const, scale: shapes, legend: colourLegend },
+        },
+      },
+      {
+        data: { values: long },
+        mark: { type: 'point' as const, filled: true, size: 70, opacity: 1 },
+        encoding: {
+          x,
+          y: { ...y, field: 'p' },
+          color: { field: 'series', type: 'nominal' as const, scale: legend, legend: colourLegend },
+          shape: { field: 'series', type: 'nominal' as const, scale: shapes, legend: colourLegend },
+        },
+      },
+      ...(held.length === 0
+        ? []
+        : [
+            {
+              data: { values: held },
+              mark: { type: 'point' as const, filled: false, size: 220, strokeWidth: 2, yOffset: -14 },
+              encoding: {
+                x,
+                y: { ...y, field: 'after' },
+                color: { datum: HELD, type: 'nominal' as const, scale: legend, legend: colourLegend },
+                shape: { datum: HELD, type: 'nominal' as const, scale: shapes, legend: colourLegend },
+              },
+            },
+          ]),
+      {
+        data: { values: [...players] },
+        mark: { type: 'text' as const, fontSize: 10, baseline: 'bottom' as const, color: '#333333' },
+        encoding: { x, y: { value: -6 }, text: { field: 'scale_label' } },
+      },
+    ],
+  } satisfies TopLevelSpec;
+}

@@ -1,0 +1,111 @@
+/**
+ * Rendering a Vega-Lite chart to a standalone SVG string in Node, without a
+ * browser or a canvas: Vega-Lite compiles the declarative spec to Vega, and a
+ * headless Vega view (`renderer: 'none'`) writes SVG.
+ *
+ * Vega-Lite (Satyanarayan, A., Moritz, D., Wongsuphasawat, K. and Heer, J.
+ * (2017), "Vega-Lite: A Grammar of Interactive Graphics", IEEE TVCG 23(1),
+ * 341–350) is a grammar of graphics: a chart is data plus marks plus
+ * encodings, so the report's charts are specs that a reviewer can read, not
+ * drawing code.
+ *
+ * Nothing is fetched: every chart's data is inline, and the view gets a
+ * loader that refuses any URL. Vega's log messages are collected and
+ * returned, never written to the console.
+ */
+import { type Loader, View, parse } from 'vega';
+import { type TopLevelSpec, compile } from 'vega-lite';
+
+/** The log levels of vega-util's logger (None 0, Error 1, Warn 2, Info 3, Debug 4). */
+const WARN = 2;
+
+interface CollectingLogger {
+  readonly messages: string[];
+  level(value?: number): number | CollectingLogger;
+  error(...args: unknown[]): CollectingLogger;
+  warn(...args: unknown[]): CollectingLogger;
+  info(...args: unknown[]): CollectingLogger;
+  debug(...args: unknown[]): CollectingLogger;
+}
+
+function collectingLogger(): CollectingLogger {
+  let level = WARN;
+  const messages: string[] = [];
+  const logger: CollectingLogger = {
+    messages,
+    level(value?: number) {
+      if (value === undefined) return level;
+      level = value;
+      return logger;
+    },
+    error: (...args) => {
+      messages.push(`error: ${args.map(String).join(' ')}`);
+      return logger;
+    },
+    warn: (...args) => {
+      if (level >= WARN) messages.push(`warning: ${args.map(String).join(' ')}`);
+      return logger;
+    },
+    info: () => logger,
+    debug: () => logger,
+  };
+  return logger;
+}
+
+const refuse = (uri: string): Promise<never> => Promise.reject(new Error(`the report loads nothing from outside, got a request for ${uri}`));
+
+/** A Vega loader that loads nothing. */
+const offlineLoader: Loader = {
+  load: refuse,
+  sanitize: refuse,
+  http: refuse,
+  file: refuse,
+};
+
+/**
+ * Make the element ids of one SVG unique in a page that holds several:
+ * Vega numbers clip paths from a counter shared by every view in the process,
+ * so ids would depend on what was rendered before and could collide. Every id
+ * is renamed `<prefix>-<n>` in order of appearance.
+ */
+export function prefixSvgIds(svg: string, prefix: string): string {
+  const renamed = new Map<string, string>();
+  const rename = (id: string): string => {
+    let next = renamed.get(id);
+    if (next === undefined) {
+      next = `${prefix}-${renamed.size + 1}`;
+      renamed.set(id, next);
+    }
+    return next;
+  };
+  // Ids first in document order, so that numbering does not depend on where references appear.
+  for (const match of svg.matchAll(/\sid="([^"]+)"/g)) rename(match[1] as string);
+  return svg
+    .replace(/(\sid=")([^"]+)(")/g, (_, open: string, id: string, close: string) => `${open}${rename(id)}${close}`)
+    .replace(/url\(#([^)]+)\)/g, (_, id: string) => `url(#${renamed.get(id) ?? id})`)
+    .replace(/(\s(?:xlink:)?href="#)([^"]+)(")/g, (_, open: string, id: string, close: string) => `${open}${renamed.get(id) ?? id}${close}`);
+}
+
+export interface RenderedChart {
+  readonly svg: string;
+  /** Vega-Lite and Vega log messages at warning level and above. */
+  readonly messages: readonly string[];
+}
+
+/**
+ * Render one Vega-Lite spec (inline data only) to SVG. `id` prefixes the
+ * element ids (see {@link prefixSvgIds}).
+ *
+ * Cost: one Vega dataflow run; tens of milliseconds for a report chart.
+ */
+export async function renderChartSvg(spec: TopLevelSpec, id: string): Promise<RenderedChart> {
+  const logger = collectingLogger();
+  const vegaSpec = compile(spec, { logger: logger as never }).spec;
+  const view = new View(parse(vegaSpec), { renderer: 'none', loader: offlineLoader, logger: logger as never, logLevel: WARN });
+  try {
+    const svg = await view.toSVG();
+    return { svg: prefixSvgIds(svg, id), messages: logger.messages };
+  } finally {
+    view.finalize();
+  }
+}
