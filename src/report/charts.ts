@@ -49,7 +49,7 @@ export function boxPlotSpec(groups: readonly BoxGroup[], axisTitle: string, titl
     domain: ['attempt-weighted mean', 'outlier round (beyond 1.5 hinge spreads)'],
     range: [OKABE_ITO.vermillion, OKABE_ITO.black],
   };
-  const width = Math.max(260, 70 * groups.length);
+  const width = Math.max(200, 60 * groups.length);
   return {
     config: CONFIG,
     title,
@@ -77,7 +77,7 @@ export function boxPlotSpec(groups: readonly BoxGroup[], axisTitle: string, titl
         encoding: {
           x,
           y: { ...y, field: 'mean_accuracy' },
-          color: { datum: 'attempt-weighted mean', type: 'nominal' as const, scale: legend, legend: { title: null, orient: 'bottom' as const, direction: 'horizontal' as const } },
+          color: { datum: 'attempt-weighted mean', type: 'nominal' as const, scale: legend, legend: { title: null, orient: 'bottom' as const, direction: 'vertical' as const } },
         },
       },
       {
@@ -86,7 +86,7 @@ export function boxPlotSpec(groups: readonly BoxGroup[], axisTitle: string, titl
         encoding: {
           x,
           y: { ...y, field: 'value' },
-          color: { datum: 'outlier round (beyond 1.5 hinge spreads)', type: 'nominal' as const, scale: legend, legend: { title: null, orient: 'bottom' as const, direction: 'horizontal' as const } },
+          color: { datum: 'outlier round (beyond 1.5 hinge spreads)', type: 'nominal' as const, scale: legend, legend: { title: null, orient: 'bottom' as const, direction: 'vertical' as const } },
         },
       },
     ],

@@ -78,7 +78,7 @@ p,li{max-width:78ch}.meta{color:#555;margin:0 0 16px}
 .note{color:#444;font-size:.92rem}
 .warn{border-left:4px solid #E69F00;background:#fffaf0;padding:6px 12px}
 figure{margin:16px 0;overflow-x:auto}figcaption{color:#444;font-size:.9rem;max-width:90ch;margin-top:4px}
-.charts{display:flex;flex-wrap:wrap;gap:8px 24px;align-items:flex-start}
+.charts{display:flex;flex-wrap:wrap;gap:8px 24px;align-items:flex-start}.charts figure{flex:0 0 auto;margin:8px 0}.charts figcaption{max-width:56ch}
 table{border-collapse:collapse;margin:8px 0 16px;font-size:.9rem}caption{text-align:left;color:#444;padding-bottom:4px}
 th,td{border-bottom:1px solid #e2e2e2;padding:3px 10px;text-align:left;vertical-align:top}th{background:#f4f4f4;font-weight:600}
 td.num,th.num{text-align:right;font-variant-numeric:tabular-nums}
