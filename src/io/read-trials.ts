@@ -23,9 +23,13 @@ async function readHead(path: string): Promise<string> {
 
 /**
  * Read a trials CSV file. `onProgress` (optional) is called with the number of
- * rows read, about every million rows.
+ * rows read, about every million rows; `onChunk` (optional) sees every chunk of
+ * the file's bytes in order, e.g. to hash the file in the same pass.
  */
-export async function readTrialsFile(path: string, options: { onProgress?: (rows: number) => void } = {}): Promise<Result<Trials>> {
+export async function readTrialsFile(
+  path: string,
+  options: { onProgress?: (rows: number) => void; onChunk?: (bytes: Buffer) => void } = {},
+): Promise<Result<Trials>> {
   const file = basename(path);
   let head: string;
   try {
@@ -37,7 +41,10 @@ export async function readTrialsFile(path: string, options: { onProgress?: (rows
   if (body.trim() === '') return fail([error('empty_file', file, 'a trials file requires a header line and rows, got an empty file')]);
   const delimiter = detectDelimiter(body.split(/\r?\n/, 1)[0] ?? '');
   const builder = new TrialsBuilder(file);
-  const parser = createReadStream(path).pipe(parse(csvOptions(delimiter)));
+  const source = createReadStream(path);
+  const onChunk = options.onChunk;
+  if (onChunk !== undefined) source.on('data', (chunk) => onChunk(chunk as Buffer));
+  const parser = source.pipe(parse(csvOptions(delimiter)));
   let first = true;
   try {
     for await (const item of parser as AsyncIterable<{ record: string[]; info: { lines: number } }>) {

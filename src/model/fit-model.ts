@@ -455,7 +455,7 @@ function structuralIssues(prepared: Prepared): { issues: Issue[]; aliased: TermN
       error(
         'rank_deficient',
         `${trials.file}:${column}`,
-        `the term${using.length > 1 ? 's' : ''} ${using.map((term) => `\`${term}\``).join(', ')} require${using.length > 1 ? '' : 's'} at least two ${what} in the data, got one (${example}); drop ${using.length > 1 ? 'them' : 'it'} from \`--terms\` or add data`,
+        `the term list requires at least two ${what} in the data for ${using.map((term) => `\`${term}\``).join(', ')}, got one (${example}); drop ${using.length > 1 ? 'those terms' : 'that term'} or add data`,
       ),
     );
   };

@@ -44,6 +44,8 @@ function argsFor(entry: Case): string[] {
       return ['balance', path, '--model', model, '--rules', rules];
     case 'balance-model':
       return ['balance', lobby, '--model', path];
+    case 'fit':
+      return ['fit', path, '--out', join(mkdtempSync(join(tmpdir(), 'lagparity-fit-')), 'model.json')];
     default:
       throw new Error(`unknown command ${entry.command} in cases.json`);
   }

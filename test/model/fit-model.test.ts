@@ -1,3 +1,4 @@
+import { createHash } from 'node:crypto';
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { erf } from 'mathjs';
@@ -64,6 +65,17 @@ describe('fitModel() on the demo playtest', () => {
     expect(model.training.difficulty).toEqual(['standard', 'veteran', 'elite']);
     expect(model.coefficients.covariance_kind).toBe('cluster_robust_cr1');
     expect(model.provenance).toEqual({ file: 'playtest-trials.csv', rows: 3240, sha256: 'a'.repeat(64) });
+  });
+
+  it('is what the bundled matches/model.json holds: a real fit of the bundled trials', () => {
+    const bundled = JSON.parse(readFileSync(join(MATCHES, 'model.json'), 'utf8')) as {
+      coefficients: { estimates: number[]; covariance_kind: string };
+      provenance: { sha256: string; rows: number };
+    };
+    expect(bundled.provenance.sha256).toBe(createHash('sha256').update(demoText).digest('hex')); // node:crypto SHA-256 of the CSV bytes
+    expect(bundled.provenance.rows).toBe(3240);
+    expect(bundled.coefficients.covariance_kind).toBe('cluster_robust_cr1');
+    bundled.coefficients.estimates.forEach((value, j) => expect(value).toBeCloseTo(report.coefficients[j]?.estimate as number, 10)); // this fit, written by `lagparity fit`
   });
 
   it('warns that 36 players are fewer than the 40 that CR1 errors need', () => {
