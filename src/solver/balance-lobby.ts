@@ -15,13 +15,13 @@
 import { type Issue, show, warning } from '../issues.js';
 import type { LobbyFile } from '../formats/lobby-file.js';
 import type { CompiledModel } from '../model/compile.js';
-import { jainIndex } from '../stats/jain-index.js';
 import type { CompiledRules } from './rules.js';
 import { type LobbySolve, solveLobby } from './solve-lobby.js';
 import { BINDINGS, type Binding, type ScaleForm, termOf } from './solve-scales.js';
 import { type DuelView, duelView } from './views/duel-view.js';
 import { type ExploitView, exploitView } from './views/exploit-view.js';
 import { type UncertaintyOptions, type UncertaintyView, uncertaintyView } from './views/uncertainty-view.js';
+import { PLAIN, SQUARES, SolveWorkspace, orderFreeSum } from './workspace.js';
 
 export interface PlayerBalance {
   readonly id: string;
@@ -95,15 +95,23 @@ export type BalanceResult =
     }
   | { readonly status: 'rejected'; readonly match_id: string; readonly issues: readonly Issue[]; readonly warnings: readonly Issue[] };
 
-/** Sum of a small array in ascending order, so that it does not depend on the players' order. */
-function orderedSum(values: Float64Array): number {
-  values.sort();
-  let sum = 0;
-  for (let index = 0; index < values.length; index += 1) sum += values[index] as number;
-  return sum;
+/**
+ * Jain's fairness index J = (sum x)^2 / (n sum x^2) (Jain, Chiu and Hawe 1984;
+ * as `jainIndex` in src/stats/jain-index.ts, 1 for all-zero shares), with
+ * order-free sums so that it does not depend on the players' order.
+ */
+function jainOf(values: Float64Array, count: number, scratch: Float64Array): number {
+  // Shares divided by the largest first, as jainIndex does: J is unchanged, and equal shares give exactly 1.
+  let largest = 0;
+  for (let index = 0; index < count; index += 1) if ((values[index] as number) > largest) largest = values[index] as number;
+  if (largest === 0) return 1;
+  for (let index = 0; index < count; index += 1) scratch[index] = (values[index] as number) / largest;
+  const sum = orderFreeSum(scratch, count, PLAIN);
+  const squares = orderFreeSum(scratch, count, SQUARES);
+  return Math.min(1, (sum * sum) / (count * squares));
 }
 
-function teamFigures(players: readonly PlayerBalance[]): TeamFigures[] {
+function teamFigures(players: readonly PlayerBalance[], scratch: Float64Array): TeamFigures[] {
   let names: string[] | null = null;
   for (const player of players) {
     if (player.eligible && player.team !== null && (names === null || !names.includes(player.team))) (names ??= []).push(player.team);
@@ -112,17 +120,11 @@ function teamFigures(players: readonly PlayerBalance[]): TeamFigures[] {
   names.sort();
   return names.map((team) => {
     let count = 0;
-    for (const player of players) if (player.eligible && player.team === team) count += 1;
-    const before = new Float64Array(count);
-    const after = new Float64Array(count);
-    let position = 0;
-    for (const player of players) {
-      if (!player.eligible || player.team !== team) continue;
-      before[position] = player.expected_before;
-      after[position] = player.expected_after;
-      position += 1;
-    }
-    return { team, players: count, mean_before: orderedSum(before) / count, mean_after: orderedSum(after) / count };
+    for (const player of players) if (player.eligible && player.team === team) scratch[count++] = player.expected_before;
+    const meanBefore = orderFreeSum(scratch, count, PLAIN) / count;
+    count = 0;
+    for (const player of players) if (player.eligible && player.team === team) scratch[count++] = player.expected_after;
+    return { team, players: count, mean_before: meanBefore, mean_after: orderFreeSum(scratch, count, PLAIN) / count };
   });
 }
 
@@ -187,6 +189,13 @@ function playersOf(lobby: LobbyFile, model: CompiledModel, solved: LobbySolve): 
 }
 
 /**
+ * The hot path's arrays, reused from call to call: everything is copied into
+ * the result before `balanceLobby` returns, and the views solve in workspaces
+ * of their own.
+ */
+const sharedWorkspace = new SolveWorkspace();
+
+/**
  * Balance one lobby. See the module comment for the result's meaning.
  *
  * Cost without views: O(players x samples) (a closed form per player for
@@ -203,12 +212,12 @@ function playersOf(lobby: LobbyFile, model: CompiledModel, solved: LobbySolve): 
 export function balanceLobby(lobby: LobbyFile, model: CompiledModel, rules: CompiledRules, options: BalanceOptions = {}): BalanceResult {
   const lineResult = model.lineAt(lobby.difficulty);
   if (!lineResult.ok) return { status: 'rejected', match_id: lobby.match_id, issues: lineResult.issues, warnings: [] };
-  const solvedResult = solveLobby(lobby, model, lineResult.value, rules);
+  const solvedResult = solveLobby(lobby, model, lineResult.value, rules, sharedWorkspace);
   if (!solvedResult.ok) return { status: 'rejected', match_id: lobby.match_id, issues: solvedResult.issues, warnings: [] };
   const solved = solvedResult.value;
   const { solution } = solved;
   const players = playersOf(lobby, model, solved);
-  const count = solution.before.length;
+  const count = solution.count;
   let worstGap = -Infinity;
   let lowestBefore = Infinity;
   let highestBefore = -Infinity;
@@ -223,12 +232,12 @@ export function balanceLobby(lobby: LobbyFile, model: CompiledModel, rules: Comp
     if (after > highestAfter) highestAfter = after;
     if (solution.target - after > worstGap) worstGap = solution.target - after;
   }
-  const teams = teamFigures(players);
+  const teams = teamFigures(players, sharedWorkspace.scratch);
   const summary: LobbySummary = {
     largest_gap_before: highestBefore - lowestBefore,
     largest_gap_after: highestAfter - lowestAfter,
-    jain_before: jainIndex(Float64Array.from(solution.before).sort()),
-    jain_after: jainIndex(Float64Array.from(solution.after).sort()),
+    jain_before: jainOf(solution.before, count, sharedWorkspace.scratch),
+    jain_after: jainOf(solution.after, count, sharedWorkspace.scratch),
     teams,
     team_gap_before: teams.length < 2 ? null : spread(teams, (team) => team.mean_before),
     team_gap_after: teams.length < 2 ? null : spread(teams, (team) => team.mean_after),

@@ -112,41 +112,63 @@ export function inverseTerm(
     if (!(term < high)) return high;
     return term;
   }
-  if (expectedAtTerm(curves, player, link, low) >= target) return low;
-  if (expectedAtTerm(curves, player, link, high) < target) return high;
-  // Start from the closed form of the average line, kept inside the bracket.
+  // Start from the closed form of the average line, kept inside the bracket. The bracket ends are evaluated only
+  // if the iteration runs into them (a player a cap or the floor holds), not for every player.
   let alphaSum = 0;
   let betaSum = 0;
   for (let index = start; index < end; index += 1) {
     alphaSum += alphas[index] as number;
     betaSum += betas[index] as number;
   }
+  const count = end - start;
   let lower = low;
   let upper = high;
-  let term = (linkedTarget - alphaSum / (end - start)) / (betaSum / (end - start));
+  let term = (linkedTarget - alphaSum / count) / (betaSum / count);
   if (!(term >= lower)) term = lower;
   else if (!(term <= upper)) term = upper;
-  const count = end - start;
+  const logistic = link.name === 'logit';
+  let lowChecked = false;
+  let highChecked = false;
   for (let iteration = 0; iteration < MAXIMUM_ITERATIONS; iteration += 1) {
     let value = 0;
     let slope = 0;
-    for (let index = start; index < end; index += 1) {
-      const beta = betas[index] as number;
-      const predictor = (alphas[index] as number) + beta * term;
-      value += link.inverse(predictor);
-      slope += beta * link.derivative(predictor);
+    if (logistic) {
+      // One exponential gives both mu and dmu/dx = mu (1 - mu) = e / (1 + e)^2 with e = exp(-|x|).
+      for (let index = start; index < end; index += 1) {
+        const beta = betas[index] as number;
+        const predictor = (alphas[index] as number) + beta * term;
+        const exponential = Math.exp(predictor >= 0 ? -predictor : predictor);
+        const denominator = 1 + exponential;
+        value += predictor >= 0 ? 1 / denominator : exponential / denominator;
+        slope += (beta * exponential) / (denominator * denominator);
+      }
+    } else {
+      for (let index = start; index < end; index += 1) {
+        const beta = betas[index] as number;
+        const predictor = (alphas[index] as number) + beta * term;
+        value += link.inverse(predictor);
+        slope += beta * link.derivative(predictor);
+      }
     }
     const difference = value / count - target;
     if (Math.abs(difference) <= PROBABILITY_TOLERANCE) return term;
     if (difference < 0) lower = term;
     else upper = term;
+    if (upper - lower <= 4 * Number.EPSILON * Math.max(1, Math.abs(term))) return term;
     const newton = slope > 0 ? term - (difference * count) / slope : Number.NaN;
+    if (!(newton < upper) && upper === high && !highChecked) {
+      highChecked = true;
+      if (expectedAtTerm(curves, player, link, high) < target) return high;
+    }
+    if (!(newton > lower) && lower === low && !lowChecked) {
+      lowChecked = true;
+      if (expectedAtTerm(curves, player, link, low) >= target) return low;
+    }
     // A Newton step that leaves the bracket is replaced by bisection; across a very wide bracket (a raw scale with an
     // enormous cap, where the derivative underflows far from the root) by a step of sqrt(width), which shrinks the
     // width's exponent by half each time instead of by one bit.
     const width = upper - lower;
     term = newton > lower && newton < upper ? newton : width > 1e4 ? (difference < 0 ? lower + Math.sqrt(width) : upper - Math.sqrt(width)) : lower + 0.5 * width;
-    if (upper - lower <= 4 * Number.EPSILON * Math.max(1, Math.abs(term))) return term;
   }
   return term;
 }

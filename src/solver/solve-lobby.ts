@@ -12,7 +12,9 @@ import { quantileSorted } from '../stats/quantile.js';
 import type { CompiledRules } from './rules.js';
 import { type CurveSet, smallestSlope } from './player-curve.js';
 import { type ScaleForm, type ScaleSolution, expectedBefore, needsOrder, solveScales, termOf } from './solve-scales.js';
+import { SolveWorkspace } from './workspace.js';
 
+/** Per-player arrays are indexed as documented and may be longer than the lobby (they live in a `SolveWorkspace`). */
 export interface LobbySolve {
   readonly line: PredictorLine;
   /** Per lobby player: the latency the rules' estimator takes (for `all_samples`: the mean). */
@@ -47,20 +49,21 @@ export function unscaledPrediction(model: CompiledModel, line: PredictorLine, la
 }
 
 /**
- * Solve a lobby at a predictor line. Pure. Returns issues when the model has
+ * Solve a lobby at a predictor line, in `workspace` (a fresh one by default;
+ * the result points into it). Pure. Returns issues when the model has
  * no scale term, no player is eligible, the model's hit probability does not
  * increase with the scale for some eligible player, or the rules contradict
  * themselves for this lobby.
  */
-export function solveLobby(lobby: LobbyFile, model: CompiledModel, line: PredictorLine, rules: CompiledRules): Result<LobbySolve> {
+export function solveLobby(lobby: LobbyFile, model: CompiledModel, line: PredictorLine, rules: CompiledRules, workspace: SolveWorkspace = new SolveWorkspace()): Result<LobbySolve> {
   if (model.scaleForm === 'none') {
     return fail([error('no_scale_term', 'model.terms', 'compensation requires a model with a scale term (scale or log_scale), got none')]);
   }
   const form: ScaleForm = model.scaleForm;
   const players = lobby.players;
   const total = players.length;
-  const estimates = new Float64Array(total);
-  const slots = new Int32Array(total);
+  workspace.reserve(total, 0);
+  const { estimates, slots } = workspace;
   const limit = rules.latency_limit_ms;
   const pooled = rules.latency_estimator === 'all_samples';
   let eligibleCount = 0;
@@ -78,10 +81,9 @@ export function solveLobby(lobby: LobbyFile, model: CompiledModel, line: Predict
   if (eligibleCount === 0) {
     return fail([error('no_eligible_player', 'players', `a lobby requires at least one player within the latency limit (${String(limit)} ms), got none`)]);
   }
-  const eligible = new Int32Array(eligibleCount);
-  const offsets = new Int32Array(eligibleCount + 1);
-  const alphas = new Float64Array(sampleCount);
-  const betas = new Float64Array(sampleCount);
+  workspace.reserve(total, sampleCount);
+  const { eligible, offsets, alphas, betas } = workspace;
+  offsets[0] = 0;
   const { base, basePerMs, scaleSlope, scaleSlopePerMs } = line;
   let position = 0;
   for (let index = 0; index < total; index += 1) {
@@ -115,7 +117,7 @@ export function solveLobby(lobby: LobbyFile, model: CompiledModel, line: Predict
     }
   }
   if (issues !== null) return fail(issues);
-  const before = expectedBefore(curves, model.link, form, new Float64Array(eligibleCount));
+  const before = expectedBefore(curves, model.link, form, workspace.before);
   const spec = rules.target;
   let target: number;
   if (spec.kind === 'fixed') target = spec.probability;
@@ -124,15 +126,14 @@ export function solveLobby(lobby: LobbyFile, model: CompiledModel, line: Predict
     target = -Infinity;
     for (let slot = 0; slot < eligibleCount; slot += 1) if ((before[slot] as number) > target) target = before[slot] as number;
   }
-  const order = needsOrder(curves, rules) ? bestConnectedOrder(before, estimates, eligible, lobby) : null;
-  const solved = solveScales(curves, before, target, model.link, form, rules, order);
+  const order = needsOrder(curves, rules, line, form) ? bestConnectedOrder(before, estimates, eligible, lobby, workspace.order.subarray(0, eligibleCount)) : null;
+  const solved = solveScales(curves, before, target, model.link, form, rules, order, line, workspace);
   if (!solved.ok) return fail(solved.issues);
   return ok({ line, estimates, slots, eligible, curves, order, solution: solved.value });
 }
 
 /** Eligible slots from best-connected to worst: highest unscaled performance first, then lowest latency estimate, then id. */
-function bestConnectedOrder(before: Float64Array, estimates: Float64Array, eligible: Int32Array, lobby: LobbyFile): Int32Array {
-  const order = new Int32Array(before.length);
+function bestConnectedOrder(before: Float64Array, estimates: Float64Array, eligible: Int32Array, lobby: LobbyFile, order: Int32Array): Int32Array {
   for (let slot = 0; slot < order.length; slot += 1) order[slot] = slot;
   return order.sort((left, right) => {
     const byPerformance = (before[right] as number) - (before[left] as number);

@@ -27,7 +27,9 @@
 import { type Issue, error, show } from '../issues.js';
 import type { CompiledModel, PredictorLine } from '../model/compile.js';
 import type { CompiledRules } from './rules.js';
-import { gridDown, searchLimit, softCapped } from './solve-scales.js';
+import { quantileSorted } from '../stats/quantile.js';
+import type { CurveSet } from './player-curve.js';
+import { expectedBefore, gridDown, searchLimit, softCapMayOverCompensate, softCapped, solveScales } from './solve-scales.js';
 
 export type BulkSolveResult =
   | {
@@ -56,48 +58,40 @@ interface Bulk {
   readonly highTerm: number;
 }
 
-/** The continuous scale (before the ratio lift) of one latency at a linked level. */
-function grantedAt(bulk: Bulk, latency: number, linked: number): number {
-  const { line, rules } = bulk;
-  const term = (linked - (line.base + line.basePerMs * latency)) / (line.scaleSlope + line.scaleSlopePerMs * latency);
-  let desired: number;
-  if (!(term > bulk.floorTerm)) desired = rules.scale_floor;
-  else if (!(term < bulk.highTerm)) desired = bulk.searchLimit;
-  else desired = bulk.logForm ? Math.exp(term) : term;
-  if (desired < rules.scale_floor * (1 + 1e-12)) desired = rules.scale_floor;
-  else if (desired > bulk.searchLimit) desired = bulk.searchLimit;
-  return rules.soft_cap === null ? (desired < rules.scale_cap ? desired : rules.scale_cap) : softCapped(desired, rules);
-}
-
-/** Fill `out` at a level (granted, then lifted); returns the assistance. */
+/** Fill `out` at a level (granted, then lifted); returns the assistance. One pass without a ratio limit, two with. */
 function fillAt(bulk: Bulk, linked: number): number {
-  const { latencies, out, rules, limitLatency } = bulk;
+  const { latencies, out, rules, limitLatency, line, logForm, floorTerm, highTerm } = bulk;
   const count = latencies.length;
+  const { base, basePerMs, scaleSlope, scaleSlopePerMs } = line;
+  const floor = rules.scale_floor;
+  const floorWithin = floor * (1 + 1e-12);
+  const limit = bulk.searchLimit;
+  const cap = rules.scale_cap;
+  const soft = rules.soft_cap !== null;
   let largest = -Infinity;
+  let assistance = 0;
   for (let index = 0; index < count; index += 1) {
     const latency = latencies[index] as number;
     if (latency > limitLatency) {
       out[index] = 1;
       continue;
     }
-    const granted = grantedAt(bulk, latency, linked);
+    const term = (linked - (base + basePerMs * latency)) / (scaleSlope + scaleSlopePerMs * latency);
+    let desired = !(term > floorTerm) ? floor : !(term < highTerm) ? limit : logForm ? Math.exp(term) : term;
+    if (desired < floorWithin) desired = floor;
+    else if (desired > limit) desired = limit;
+    const granted = soft ? softCapped(desired, rules) : desired < cap ? desired : cap;
     out[index] = granted;
     if (granted > largest) largest = granted;
+    if (granted > 1) assistance += granted - 1;
   }
   const ratio = rules.max_scale_ratio;
-  let assistance = 0;
-  if (ratio === null) {
-    for (let index = 0; index < count; index += 1) {
-      if ((latencies[index] as number) > limitLatency) continue;
-      const excess = (out[index] as number) - 1;
-      if (excess > 0) assistance += excess;
-    }
-    return assistance;
-  }
-  const lift = Math.max(rules.scale_floor, largest / ratio);
+  if (ratio === null) return assistance;
+  const lift = Math.max(floor, largest / ratio);
+  assistance = 0;
   for (let index = 0; index < count; index += 1) {
     if ((latencies[index] as number) > limitLatency) continue;
-    const scale = Math.max(out[index] as number, lift);
+    const scale = (out[index] as number) > lift ? (out[index] as number) : lift;
     out[index] = scale;
     if (scale > 1) assistance += scale - 1;
   }
@@ -196,7 +190,9 @@ export function solveScalesInto(model: CompiledModel, difficulty: number | strin
     level = low;
     assistance = fillAt(bulk, link.link(level));
   }
-  if (rules.quantisation_step !== null || rules.soft_cap !== null) assistance = walkSorted(bulk, eligible, unitTerm);
+  // The walk changes nothing unless rounding is on or the soft cap meets a model under which it could over-compensate
+  // (see needsOrder in solve-scales.ts); the curves here are points.
+  if (rules.quantisation_step !== null || softCapMayOverCompensate(rules, line, logForm ? 'log' : 'raw')) assistance = walkSorted(bulk, eligible, unitTerm);
   return { status: 'solved', target, level, assistance, eligible_players: eligible };
 }
 
@@ -294,4 +290,108 @@ function firstAtOrAbove(sorted: Float64Array, value: number): number {
     else high = middle;
   }
   return low;
+}
+
+let estimateScratch = new Float64Array(0);
+
+/**
+ * The bulk path for players with the same number of latency samples each:
+ * `samples` holds player i's samples at [i k, (i + 1) k) for k =
+ * `samplesPerPlayer`. Same rules and scales as `balanceLobby` on the same
+ * players.
+ *
+ * With a robust estimator (median, low percentile) each player's samples
+ * become one latency (a sort of k values in a reused buffer) and the point
+ * path above does the rest. With `all_samples` each player's curve averages
+ * over their k samples and the scale is found by the safeguarded Newton
+ * iteration of `inverseTerm`; the curves take three typed arrays per call
+ * (none per player).
+ *
+ * Cost: O(n k log k) for a robust estimator; O(n k x Newton steps) pooled.
+ */
+export function solveSampledScalesInto(
+  model: CompiledModel,
+  difficulty: number | string,
+  samples: Float64Array,
+  samplesPerPlayer: number,
+  rules: CompiledRules,
+  out: Float64Array,
+): BulkSolveResult {
+  const perPlayer = samplesPerPlayer;
+  if (!(Number.isSafeInteger(perPlayer) && perPlayer >= 1) || samples.length !== perPlayer * out.length) {
+    throw new RangeError(`\`samples\` requires \`samplesPerPlayer\` (${String(perPlayer)}) x the length of \`out\` (${out.length}) values, got ${samples.length}`);
+  }
+  const count = out.length;
+  const estimator = rules.latency_estimator;
+  if (estimator !== 'all_samples' || perPlayer === 1) {
+    if (estimateScratch.length < count) estimateScratch = new Float64Array(Math.max(count, 2 * estimateScratch.length));
+    const estimates = estimateScratch.subarray(0, count);
+    if (perPlayer === 1) estimates.set(samples);
+    else {
+      const buffer = new Float64Array(perPlayer);
+      const probability = estimator === 'all_samples' ? 0.5 : estimator === 'median' ? 0.5 : estimator.percentile / 100;
+      for (let player = 0; player < count; player += 1) {
+        for (let index = 0; index < perPlayer; index += 1) buffer[index] = samples[player * perPlayer + index] as number;
+        buffer.sort();
+        estimates[player] = quantileSorted(buffer, probability, 7);
+      }
+    }
+    return solveScalesInto(model, difficulty, estimates, rules, out);
+  }
+  if (model.scaleForm === 'none') {
+    return { status: 'rejected', issues: [error('no_scale_term', 'model.terms', 'compensation requires a model with a scale term (scale or log_scale), got none')] };
+  }
+  const lineResult = model.lineAt(difficulty);
+  if (!lineResult.ok) return { status: 'rejected', issues: lineResult.issues };
+  const line = lineResult.value;
+  const limitLatency = rules.latency_limit_ms ?? Infinity;
+  let eligible = 0;
+  for (let player = 0; player < count; player += 1) {
+    let sum = 0;
+    for (let index = 0; index < perPlayer; index += 1) sum += samples[player * perPlayer + index] as number;
+    const mean = sum / perPlayer;
+    // Ineligible players are marked with NaN until the end.
+    out[player] = mean <= limitLatency ? 0 : Number.NaN;
+    if (mean <= limitLatency) eligible += 1;
+  }
+  if (eligible === 0) {
+    return { status: 'rejected', issues: [error('no_eligible_player', 'players', `a lobby requires at least one player within the latency limit (${String(rules.latency_limit_ms)} ms), got none`)] };
+  }
+  const offsets = new Int32Array(eligible + 1);
+  const alphas = new Float64Array(eligible * perPlayer);
+  const betas = new Float64Array(eligible * perPlayer);
+  let slot = 0;
+  for (let player = 0; player < count; player += 1) {
+    if (Number.isNaN(out[player])) continue;
+    for (let index = 0; index < perPlayer; index += 1) {
+      const latency = samples[player * perPlayer + index] as number;
+      const position = slot * perPlayer + index;
+      alphas[position] = line.base + line.basePerMs * latency;
+      const beta = line.scaleSlope + line.scaleSlopePerMs * latency;
+      if (!(beta > 0)) {
+        return { status: 'rejected', issues: [error('scale_not_increasing', 'players', `compensation requires hit probability to increase with the scale, but under this model it does not at ${show(latency)} ms (the scale term's coefficient there is ${beta.toPrecision(3)})`)] };
+      }
+      betas[position] = beta;
+    }
+    slot += 1;
+    offsets[slot] = slot * perPlayer;
+  }
+  const curves: CurveSet = { count: eligible, offsets, alphas, betas };
+  const form = model.scaleForm;
+  const before = expectedBefore(curves, model.link, form, new Float64Array(eligible));
+  const spec = rules.target;
+  let target = -Infinity;
+  if (spec.kind === 'fixed') target = spec.probability;
+  else if (spec.kind === 'reference_latency') {
+    const unitTerm = form === 'log' ? 0 : 1;
+    target = model.link.inverse(line.base + line.basePerMs * spec.latency_ms + (line.scaleSlope + line.scaleSlopePerMs * spec.latency_ms) * unitTerm);
+  } else for (let index = 0; index < eligible; index += 1) target = Math.max(target, before[index] as number);
+  const solved = solveScales(curves, before, target, model.link, form, rules, null, line);
+  if (!solved.ok) return { status: 'rejected', issues: solved.issues };
+  slot = 0;
+  for (let player = 0; player < count; player += 1) {
+    if (Number.isNaN(out[player])) out[player] = 1;
+    else out[player] = solved.value.scales[slot++] as number;
+  }
+  return { status: 'solved', target, level: solved.value.level, assistance: solved.value.assistance, eligible_players: eligible };
 }

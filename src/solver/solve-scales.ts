@@ -38,7 +38,9 @@
 import { type Result, error, fail, ok } from '../issues.js';
 import type { Link } from '../model/links.js';
 import type { CompiledRules } from './rules.js';
+import type { PredictorLine } from '../model/compile.js';
 import { type CurveSet, expectedAtTerm, inverseTerm } from './player-curve.js';
+import { EXCESS_OVER_ONE, SolveWorkspace, orderFreeSum } from './workspace.js';
 
 /** Why a player's scale is what it is: the constraint that holds it, or `none`. */
 export const BINDINGS = ['none', 'floor', 'cap', 'soft_cap', 'ratio', 'budget', 'quantisation', 'ineligible'] as const;
@@ -54,7 +56,9 @@ const QUANTISATION = 6;
 /** Index of `ineligible` in BINDINGS. */
 export const INELIGIBLE = 7;
 
+/** Arrays are indexed by eligible slot 0 .. count - 1 and may be longer (they live in a `SolveWorkspace`). */
 export interface ScaleSolution {
+  readonly count: number;
   readonly target: number;
   /** The common level reached by every player no cap holds back (equals target unless a budget binds). */
   readonly level: number;
@@ -101,9 +105,27 @@ export function gridDown(value: number, step: number): number {
   return rounded < value ? rounded : value;
 }
 
-/** True when the solver needs the players' order (best-connected first): rounding, a soft cap, a budget, or sampled curves. */
-export function needsOrder(curves: CurveSet, rules: CompiledRules): boolean {
-  return rules.quantisation_step !== null || rules.soft_cap !== null || rules.assistance_budget !== null || (curves.offsets[curves.count] as number) !== curves.count;
+/**
+ * True when the solver needs the players' order (best-connected first) for the
+ * walk of step 6: with rounding, with sampled curves, and with a soft cap
+ * unless the model makes the walk a no-op. For point latencies, a soft cap
+ * cannot cause over-compensation when the scale coefficient does not fall
+ * with latency (b1 >= 0) and the latency slope a1 + b1 h is <= 0 over the
+ * searched scales: a player's shortfall in the linear predictor is then
+ * b (h(d) - h(granted(d))), non-decreasing in latency on both factors.
+ */
+export function needsOrder(curves: CurveSet, rules: CompiledRules, line: PredictorLine, form: ScaleForm): boolean {
+  if (rules.quantisation_step !== null || (curves.offsets[curves.count] as number) !== curves.count) return true;
+  return softCapMayOverCompensate(rules, line, form);
+}
+
+/** For point latencies: whether the soft cap could leave a higher-latency player above a lower-latency one (see `needsOrder`). */
+export function softCapMayOverCompensate(rules: CompiledRules, line: PredictorLine, form: ScaleForm): boolean {
+  if (rules.soft_cap === null) return false;
+  const lowTerm = termOf(form, rules.scale_floor);
+  const highTerm = termOf(form, searchLimit(rules));
+  const safe = line.scaleSlopePerMs >= 0 && line.basePerMs + line.scaleSlopePerMs * lowTerm <= 0 && line.basePerMs + line.scaleSlopePerMs * highTerm <= 0;
+  return !safe;
 }
 
 /** E_i at scale 1 for every player: the performance before compensation. */
@@ -118,7 +140,6 @@ interface Work {
   readonly link: Link;
   readonly form: ScaleForm;
   readonly rules: CompiledRules;
-  readonly order: Int32Array | null;
   readonly lowTerm: number;
   readonly highTerm: number;
   readonly limit: number;
@@ -127,9 +148,9 @@ interface Work {
   readonly scales: Float64Array;
 }
 
-/** Steps 1-3 at a level; returns the assistance used, summed in `order` when given (so it is independent of the players' input order). */
+/** Steps 1-3 at a level; returns the assistance used (an order-free sum, so that it does not depend on the players' input order). */
 function allocate(work: Work, level: number): number {
-  const { curves, link, form, rules, lowTerm, highTerm, limit, desired, granted, scales, order } = work;
+  const { curves, link, form, rules, lowTerm, highTerm, limit, desired, granted, scales } = work;
   const count = curves.count;
   const floor = rules.scale_floor;
   const linked = link.link(level);
@@ -151,13 +172,9 @@ function allocate(work: Work, level: number): number {
     const given = granted[player] as number;
     scales[player] = given > lift ? given : lift;
   }
-  let assistance = 0;
-  for (let position = 0; position < count; position += 1) {
-    const player = order === null ? position : (order[position] as number);
-    const excess = (scales[player] as number) - 1;
-    if (excess > 0) assistance += excess;
-  }
-  return assistance;
+  // The budget's bisection compares this sum with the budget, so it must not depend on the players' order; without a
+  // budget it is reported only once, at the end.
+  return rules.assistance_budget === null ? 0 : orderFreeSum(scales, count, EXCESS_OVER_ONE);
 }
 
 /**
@@ -168,7 +185,10 @@ function allocate(work: Work, level: number): number {
  * @param target T.
  * @param order player indices from best-connected to worst (highest `before`
  *   first, ties broken by something independent of input order, e.g. the
- *   player id). Required when `needsOrder` says so; otherwise may be null.
+ *   player id). Used when `needsOrder` says so (a fallback by `before`, then
+ *   index, is built if it is null then); otherwise ignored.
+ * @param line the predictor line (for `needsOrder`).
+ * @param workspace arrays to work in; the solution's arrays point into it.
  * @returns the solution, or an issue when the rules contradict themselves for
  *   this lobby (a budget smaller than the floor alone costs).
  *
@@ -183,9 +203,13 @@ export function solveScales(
   form: ScaleForm,
   rules: CompiledRules,
   order: Int32Array | null,
+  line: PredictorLine,
+  workspace: SolveWorkspace = new SolveWorkspace(),
 ): Result<ScaleSolution> {
   const count = curves.count;
-  if (order === null && needsOrder(curves, rules)) order = fallbackOrder(before);
+  workspace.reserve(count, 0);
+  if (!needsOrder(curves, rules, line, form)) order = null;
+  else if (order === null) order = fallbackOrder(before, count);
   const floor = rules.scale_floor;
   const cap = rules.scale_cap;
   const limit = searchLimit(rules);
@@ -194,13 +218,12 @@ export function solveScales(
     link,
     form,
     rules,
-    order,
     lowTerm: termOf(form, floor),
     highTerm: termOf(form, limit),
     limit,
-    desired: new Float64Array(count),
-    granted: new Float64Array(count),
-    scales: new Float64Array(count),
+    desired: workspace.desired,
+    granted: workspace.granted,
+    scales: workspace.continuous,
   };
   let level = target;
   let assistance = allocate(work, target);
@@ -233,7 +256,8 @@ export function solveScales(
     level = low;
   }
   const continuous = work.scales;
-  const scales = Float64Array.from(continuous);
+  const scales = workspace.scales;
+  scales.set(continuous.subarray(0, count));
   const step = rules.quantisation_step;
   const ratio = rules.max_scale_ratio;
   if (step !== null) {
@@ -248,12 +272,13 @@ export function solveScales(
       for (let player = 0; player < count; player += 1) if ((scales[player] as number) > bound) scales[player] = bound;
     }
   }
-  const loweredBy = order === null ? null : orderWalk(work, scales, order, step);
-  const after = new Float64Array(count);
-  for (let player = 0; player < count; player += 1) after[player] = expectedAtTerm(curves, player, link, termOf(form, scales[player] as number));
+  const loweredBy = order === null ? null : orderWalk(work, scales, order, step, workspace.loweredBy, workspace.after);
+  const after = workspace.after;
+  // The walk leaves every player's final performance in `after`.
+  if (loweredBy === null) for (let player = 0; player < count; player += 1) after[player] = expectedAtTerm(curves, player, link, termOf(form, scales[player] as number));
 
   // Labels, in order when a walk ran (a player the walk lowered takes the label of the player who bounds them).
-  const binding = new Uint8Array(count);
+  const binding = workspace.binding;
   const tolerance = AT_TARGET_TOLERANCE;
   for (let position = 0; position < count; position += 1) {
     const player = order === null ? position : (order[position] as number);
@@ -272,25 +297,23 @@ export function solveScales(
     else if (loweredBy !== null && (loweredBy[player] as number) >= 0) label = binding[loweredBy[player] as number] as number;
     binding[player] = label;
   }
-  if (step !== null || loweredBy !== null) {
-    assistance = 0;
-    for (let position = 0; position < count; position += 1) {
-      const excess = (scales[order === null ? position : (order[position] as number)] as number) - 1;
-      if (excess > 0) assistance += excess;
-    }
-  }
-  return ok({ target, level, scales, before, after, binding, assistance });
+  assistance = orderFreeSum(scales, count, EXCESS_OVER_ONE);
+  return ok({ count, target, level, scales, before, after, binding, assistance });
 }
 
-/** Step 6 (see the module comment). Returns, per player, the index of the player whose performance bounded them, or -1. */
-function orderWalk(work: Work, scales: Float64Array, order: Int32Array, step: number | null): Int32Array {
+/**
+ * Step 6 (see the module comment). Leaves each player's final performance in
+ * `after`; returns, per player, the index of the player whose performance
+ * bounded them, or -1.
+ */
+function orderWalk(work: Work, scales: Float64Array, order: Int32Array, step: number | null, loweredBy: Int32Array, after: Float64Array): Int32Array {
   const { curves, link, form, rules } = work;
   const count = curves.count;
   let largest = -Infinity;
-  for (let player = 0; player < count; player += 1) largest = Math.max(largest, scales[player] as number);
+  for (let player = 0; player < count; player += 1) if ((scales[player] as number) > largest) largest = scales[player] as number;
   const ratio = rules.max_scale_ratio;
   const lowest = ratio === null ? rules.scale_floor : Math.max(rules.scale_floor, largest / ratio);
-  const loweredBy = new Int32Array(count).fill(-1);
+  loweredBy.fill(-1, 0, count);
   let previousScale = -Infinity;
   let previousPerformance = Infinity;
   let bounding = -1;
@@ -314,6 +337,7 @@ function orderWalk(work: Work, scales: Float64Array, order: Int32Array, step: nu
       if (scale < start) loweredBy[player] = bounding;
       scales[player] = scale;
     }
+    after[player] = performance;
     previousScale = scale;
     if (performance <= previousPerformance) {
       previousPerformance = performance;
@@ -324,8 +348,8 @@ function orderWalk(work: Work, scales: Float64Array, order: Int32Array, step: nu
 }
 
 /** Highest `before` first, ties by index: used only when a caller passes no order. */
-function fallbackOrder(before: Float64Array): Int32Array {
-  const order = new Int32Array(before.length);
-  for (let index = 0; index < order.length; index += 1) order[index] = index;
+function fallbackOrder(before: Float64Array, count: number): Int32Array {
+  const order = new Int32Array(count);
+  for (let index = 0; index < count; index += 1) order[index] = index;
   return order.sort((left, right) => (before[right] as number) - (before[left] as number) || left - right);
 }

@@ -29,6 +29,7 @@ import { type RandomSource, createRandomSource, standardNormalDraw } from '../..
 import { quantileSorted } from '../../stats/quantile.js';
 import type { CompiledRules } from '../rules.js';
 import { type LobbySolve, solveLobby } from '../solve-lobby.js';
+import { SolveWorkspace } from '../workspace.js';
 
 /** Default number of coefficient draws. */
 export const DEFAULT_UNCERTAINTY_DRAWS = 200;
@@ -95,12 +96,13 @@ export function uncertaintyView(lobby: LobbyFile, model: CompiledModel, rules: C
   const random = options.random ?? createRandomSource(seed as number);
   const size = model.coefficients.length;
   const lower = choleskySemiDefinite(model.covariance, size);
-  const eligibleCount = base.eligible.length;
+  const eligibleCount = base.solution.count;
   // Scales by player, then draw: player p's draws at [p * draws, (p + 1) * draws).
   const scales = new Float64Array(eligibleCount * draws);
   const normal = new Float64Array(size);
   const coefficients = new Float64Array(size);
   let accepted = 0;
+  const workspace = new SolveWorkspace();
   for (let draw = 0; draw < draws; draw += 1) {
     for (let index = 0; index < size; index += 1) normal[index] = standardNormalDraw(random);
     for (let row = 0; row < size; row += 1) {
@@ -110,7 +112,7 @@ export function uncertaintyView(lobby: LobbyFile, model: CompiledModel, rules: C
     }
     const line = predictorLine(model.columns, coefficients, model.difficulty, lobby.difficulty);
     if (!line.ok) continue;
-    const solved = solveLobby(lobby, model, line.value, rules);
+    const solved = solveLobby(lobby, model, line.value, rules, workspace);
     if (!solved.ok) continue;
     for (let slot = 0; slot < eligibleCount; slot += 1) scales[slot * draws + accepted] = solved.value.solution.scales[slot] as number;
     accepted += 1;
