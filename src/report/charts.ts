@@ -124,9 +124,10 @@ export function curvesSpec(panels: readonly CurvePanel[], scaleOrder: readonly s
     field: 'scale',
     type: 'nominal' as const,
     sort: [...scaleOrder],
-    scale: { domain: [...scaleOrder] },
+    scale: { domain: [...scaleOrder], range: CATEGORY_COLOURS.slice(0, scaleOrder.length) },
     title: 'Compensation scale (×)',
-    legend: { orient: 'bottom' as const, direction: 'horizontal' as const },
+    // Full-strength legend symbols, whatever the band's opacity.
+    legend: { orient: 'bottom' as const, direction: 'horizontal' as const, symbolOpacity: 1, symbolType: 'stroke' },
   };
   const x = { field: 'latency', type: 'quantitative' as const, title: 'Latency (ms)' };
   const y = { type: 'quantitative' as const, scale: { domain: [0, 1] }, title: 'Hit probability' };

@@ -146,7 +146,7 @@ function coefficientTable(model: CompiledModel): string {
       formatGeneral(estimate),
       standardError > 0 ? formatGeneral(standardError) : '0',
       z === null ? '–' : formatNumber(z, 2),
-      z === null ? '–' : formatGeneral(twoSidedNormalPValue(z)),
+      z === null ? '–' : twoSidedNormalPValue(z) === 0 ? '< 1e-300' : formatGeneral(twoSidedNormalPValue(z)),
     ];
   });
   return htmlTable(['term', 'estimate', 'std. error', 'z', 'p (two-sided, normal)'], rows, {
@@ -344,7 +344,7 @@ ${figure(calibrationSvg, 'figure-calibration', 'Each point is one bin of predict
 <h3>Coefficients</h3>
 ${coefficientTable(model)}
 <h3>Fit statistics</h3>
-${fitBlock === undefined ? `<p class="note">The model file has no <code>fit</code> block: it was not written by a fit (its label says “${escapeHtml(model.source.label ?? 'no label')}”).</p>` : renderFitBlock(fitBlock)}
+${fitBlock === undefined ? `<p class="note">The model file has no <code>fit</code> block: it was not written by a fit (its label says “${escapeHtml(model.source.label ?? 'no label')}”).</p>` : `<details open><summary>The model file's <code>fit</code> block, as written</summary>${renderFitBlock(fitBlock)}</details>`}
 <p class="note">Provenance: <code>${escapeHtml(provenance.file)}</code>, ${provenance.rows} rows, SHA-256 <code>${escapeHtml(provenance.sha256)}</code>${provenance.created_by ? `, created by ${escapeHtml(provenance.created_by)}` : ''}.</p>
 </section>
 
