@@ -29,7 +29,7 @@ import type { CompiledModel, PredictorLine } from '../model/compile.js';
 import type { CompiledRules } from './rules.js';
 import { quantileSorted } from '../stats/quantile.js';
 import type { CurveSet } from './player-curve.js';
-import { expectedBefore, gridDown, searchLimit, softCapMayOverCompensate, softCapped, solveScales } from './solve-scales.js';
+import { expectedBefore, gridDown, searchLimit, softCapMayOverCompensate, solveScales } from './solve-scales.js';
 
 export type BulkSolveResult =
   | {
@@ -68,6 +68,8 @@ function fillAt(bulk: Bulk, linked: number): number {
   const limit = bulk.searchLimit;
   const cap = rules.scale_cap;
   const soft = rules.soft_cap !== null;
+  const softAbove = rules.soft_cap === null ? Infinity : rules.soft_cap.above;
+  const softFraction = rules.soft_cap === null ? 1 : rules.soft_cap.fraction;
   let largest = -Infinity;
   let assistance = 0;
   for (let index = 0; index < count; index += 1) {
@@ -80,7 +82,9 @@ function fillAt(bulk: Bulk, linked: number): number {
     let desired = !(term > floorTerm) ? floor : !(term < highTerm) ? limit : logForm ? Math.exp(term) : term;
     if (desired < floorWithin) desired = floor;
     else if (desired > limit) desired = limit;
-    const granted = soft ? softCapped(desired, rules) : desired < cap ? desired : cap;
+    // The soft cap, then the hard cap (softCapped in solve-scales.ts, inlined).
+    let granted = soft && desired > softAbove ? softAbove + softFraction * (desired - softAbove) : desired;
+    if (granted > cap) granted = cap;
     out[index] = granted;
     if (granted > largest) largest = granted;
     if (granted > 1) assistance += granted - 1;
