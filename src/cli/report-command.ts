@@ -5,7 +5,6 @@ import { basename } from 'node:path';
 import type { Command } from 'commander';
 import { readTrialsFile } from '../io/read-trials.js';
 import { writeFileAtomic } from '../io/write-file.js';
-import { renderReport } from '../report/render-report.js';
 import { parseBinSpec } from '../summary/bins.js';
 import { loadLobbies, loadModel, loadRules } from './inputs.js';
 import { EXIT_BAD_INPUT, EXIT_OK, reportIssues, writeOut } from './output.js';
@@ -44,6 +43,9 @@ export async function runReport(options: ReportOptions): Promise<number> {
     return EXIT_BAD_INPUT;
   }
   reportIssues(trials.warnings);
+  // Loaded here, not at start-up: the charting library takes about half a second to import,
+  // which every other command would otherwise pay.
+  const { renderReport } = await import('../report/render-report.js');
   const report = await renderReport({
     trials: trials.value,
     model: model.value,
