@@ -71,11 +71,10 @@ export function auditLobby(lobby: LobbyFile, model: CompiledModel, rules: Compil
   const reasons: AuditReason[] = [];
   const exploit = result.views?.exploit;
   const duel = result.views?.duel;
-  // Spikes need samples: a single latency value cannot be partly spiked (its manipulation is the
+  // The exploit view gives no spike gain for a single latency value (its manipulation is the
   // uniform shift, reported as `worst_shift_gain` and bounded only by server-side measurement).
-  const sampled = new Set(lobby.players.filter((player) => Array.isArray(player.latency_ms)).map((player) => player.id));
   const spikeGain = new Map<string, number | null>();
-  for (const entry of exploit?.players ?? []) spikeGain.set(entry.id, sampled.has(entry.id) ? entry.spike_gain : null);
+  for (const entry of exploit?.players ?? []) spikeGain.set(entry.id, entry.spike_gain);
   // Duels among eligible players only: an ineligible player is not scaled and fails the lobby on eligibility.
   const eligibleIds = new Set(result.players.filter((player) => player.eligible).map((player) => player.id));
   const duelPairs = (duel?.pairs ?? []).filter((pair) => eligibleIds.has(pair.a) && eligibleIds.has(pair.b));
@@ -107,7 +106,7 @@ export function auditLobby(lobby: LobbyFile, model: CompiledModel, rules: Compil
     reasons.push(reason('accepted_team_gap', summary.team_gap_after, rules.accepted_team_gap, null, null, `team gap ${three(summary.team_gap_after)} between ${show(ordered[0]?.team)} and ${show(ordered[ordered.length - 1]?.team)} above the accepted ${three(rules.accepted_team_gap)}`));
   }
   for (const entry of exploit?.players ?? []) {
-    if (entry.spike_gain !== null && sampled.has(entry.id) && entry.spike_gain > rules.accepted_exploit_gain) {
+    if (entry.spike_gain !== null && entry.spike_gain > rules.accepted_exploit_gain) {
       reasons.push(reason('accepted_exploit_gain', entry.spike_gain, rules.accepted_exploit_gain, entry.id, null, `player ${show(entry.id)} could gain ${three(entry.spike_gain)} in hit probability by spiking ${entry.spiked_samples} sample(s) to ${exploit?.read_at_ms ?? '?'} ms under the ${exploit?.estimator ?? '?'} estimator, above the accepted ${three(rules.accepted_exploit_gain)}`));
     }
   }
@@ -139,7 +138,7 @@ export function auditLobby(lobby: LobbyFile, model: CompiledModel, rules: Compil
       team_gap_after: summary.team_gap_after,
       worst_duel_deviation_before: worstBefore,
       worst_duel_deviation_after: worstDuel,
-      worst_spike_gain: Math.max(0, ...[...spikeGain.values()].map((gain) => gain ?? 0)),
+      worst_spike_gain: exploit?.worst_spike_gain ?? 0,
       worst_shift_gain: exploit?.worst_shift_gain ?? 0,
     },
     warnings: [...result.warnings],
