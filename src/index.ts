@@ -1,0 +1,76 @@
+/**
+ * lagparity: per-player latency compensation from a fitted model of hit
+ * probability.
+ *
+ * The main entry point: every public value, then every public type,
+ * alphabetised. The HTML report is a separate entry point, `lagparity/report`,
+ * because its charting library is slow to import and a matchmaker never needs
+ * it. The command line lives in `dist/cli/` and is not exported.
+ *
+ * A matchmaker's path:
+ *   const model = compileModel(modelJson);        // once
+ *   const rules = compileRules(rulesJson);        // once
+ *   const lobby = safeParseLobby(payload);        // per untrusted payload
+ *   const result = balanceLobby(lobby.value, model.value, rules.value);
+ */
+export { AUDIT_CAUTION, auditLobbies, auditLobby } from './audit/audit-lobbies.js';
+export { AUDIT_FORMAT } from './audit/audit-schema.js';
+export { balanceLobby } from './solver/balance-lobby.js';
+export { boxStats, fiveNumber } from './stats/box-stats.js';
+export { chiSquareUpperTail, normalCdf, normalDensity, normalQuantile, normalUpperTail, twoSidedNormalPValue } from './stats/distributions.js';
+export { compileModel } from './model/compile.js';
+export { compileRules, defaultRules } from './solver/rules.js';
+export { createRandomSource, standardNormalDraw } from './random.js';
+export { DEFAULT_TERMS, TERM_NAMES, parseTermList } from './model/terms.js';
+export { duelOutcome, duelWinProbability } from './stats/duel.js';
+export { fitBinomial } from './model/fit-binomial.js';
+export { fitLeastSquares } from './model/fit-least-squares.js';
+export { FIT_REPORT_FORMAT, fitModel } from './model/fit-model.js';
+export { formatIssue, LagparityInputError, unwrap } from './issues.js';
+export { jainIndex } from './stats/jain-index.js';
+export { jsonSchemas } from './formats/json-schemas.js';
+export { LINK_NAMES, linkFor } from './model/links.js';
+export { LOBBY_FORMAT, MAX_LATENCY_MS, MAX_LATENCY_SAMPLES, MAX_PLAYERS } from './formats/lobby-file.js';
+export { MAX_CSV_LINE_BYTES, MAX_TRIAL_ROWS, parseTrialsCsv, TRIALS_FORMAT } from './formats/trials-csv.js';
+export { MAX_JSON_BYTES, parseJsonText } from './formats/json-input.js';
+export { MODEL_FORMAT } from './formats/model-file.js';
+export { parseLobby, safeParseLobby } from './formats/lobby.js';
+export { parseSweep, sweepRule, SWEEPABLE_RULES } from './audit/sweep.js';
+export { quantile, quantileSorted } from './stats/quantile.js';
+export { readJsonFile } from './io/read-json.js';
+export { readTrialsFile } from './io/read-trials.js';
+export { RULES_FORMAT } from './formats/rules-file.js';
+export { solveSampledScalesInto, solveScalesInto } from './solver/solve-scales-into.js';
+export { SUMMARY_FORMAT, summarizeTrials } from './summary/summarize-trials.js';
+export { toModelFile } from './model/to-model-file.js';
+export { writeFileAtomic } from './io/write-file.js';
+
+export type { AuditEntry } from './audit/audit-lobbies.js';
+export type { AuditReason, AuditReport, AuditRule, AuditSummary, LobbyAudit, SweepReport } from './audit/audit-schema.js';
+export type { BalanceOptions, BalanceResult, LobbySummary, LobbyViews, PlayerBalance, TeamFigures } from './solver/balance-lobby.js';
+export type { Binding } from './solver/solve-scales.js';
+export type { BinomialData, BinomialFit, BinomialFitOptions } from './model/fit-binomial.js';
+export type { BoxStats, BoxStatsOptions, FiveNumber } from './stats/box-stats.js';
+export type { BulkSolveResult } from './solver/solve-scales-into.js';
+export type { CompiledModel, PredictorLine } from './model/compile.js';
+export type { CompiledRules } from './solver/rules.js';
+export type { DesignMatrix } from './numeric/design-matrix.js';
+export type { DuelOutcome, VolleyOrder } from './stats/duel.js';
+export type { DuelPair, DuelView } from './solver/views/duel-view.js';
+export type { ExploitView, PlayerExploit } from './solver/views/exploit-view.js';
+export type { FitModelOptions, FitReport } from './model/fit-model.js';
+export type { Issue, IssueSeverity, Result } from './issues.js';
+export type { LeastSquaresData, LeastSquaresFit } from './model/fit-least-squares.js';
+export type { Link, LinkName } from './model/links.js';
+export type { LobbyFile, LobbyPlayer } from './formats/lobby-file.js';
+export type { ModelFile } from './formats/model-file.js';
+export type { ModelProvenance } from './model/to-model-file.js';
+export type { PlayerScaleInterval, UncertaintyOptions, UncertaintyView } from './solver/views/uncertainty-view.js';
+export type { QuantileType } from './stats/quantile.js';
+export type { RandomSource } from './random.js';
+export type { RulesFile, RulesInput } from './formats/rules-file.js';
+export type { SummarizeOptions, TrialsSummary } from './summary/summarize-trials.js';
+export type { TermName } from './model/terms.js';
+export type { Trials } from './formats/trials-csv.js';
+export type { ValidLobby } from './formats/lobby.js';
+export type { WriteFileOptions } from './io/write-file.js';

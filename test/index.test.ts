@@ -1,0 +1,110 @@
+/**
+ * The public API, as a snapshot: an addition or removal shows up in review.
+ * And the main entry point's import graph stays free of the charting library
+ * (the report has its own entry point, `lagparity/report`).
+ */
+import { describe, expect, it } from 'vitest';
+import { readFileSync } from 'node:fs';
+import { dirname, join, resolve } from 'node:path';
+import * as api from '../src/index.js';
+import * as report from '../src/report/index.js';
+import { ROOT } from './helpers/demo.js';
+
+/** Every package a module reaches through static imports, following relative imports. */
+function packagesReached(entry: string): Set<string> {
+  const seen = new Set<string>();
+  const packages = new Set<string>();
+  const visit = (file: string) => {
+    if (seen.has(file)) return;
+    seen.add(file);
+    const text = readFileSync(file, 'utf8');
+    for (const match of text.matchAll(/^(?:import|export)\s[^;]*?from\s+'([^']+)'/gms)) {
+      const specifier = match[1] ?? '';
+      if (specifier.startsWith('.')) visit(resolve(dirname(file), specifier.replace(/\.js$/, '.ts')));
+      else packages.add(specifier);
+    }
+  };
+  visit(entry);
+  return packages;
+}
+
+describe('the package entry points', () => {
+  it('export this list of values from lagparity', () => {
+    expect(Object.keys(api).sort()).toMatchInlineSnapshot(`
+      [
+        "AUDIT_CAUTION",
+        "AUDIT_FORMAT",
+        "DEFAULT_TERMS",
+        "FIT_REPORT_FORMAT",
+        "LINK_NAMES",
+        "LOBBY_FORMAT",
+        "LagparityInputError",
+        "MAX_CSV_LINE_BYTES",
+        "MAX_JSON_BYTES",
+        "MAX_LATENCY_MS",
+        "MAX_LATENCY_SAMPLES",
+        "MAX_PLAYERS",
+        "MAX_TRIAL_ROWS",
+        "MODEL_FORMAT",
+        "RULES_FORMAT",
+        "SUMMARY_FORMAT",
+        "SWEEPABLE_RULES",
+        "TERM_NAMES",
+        "TRIALS_FORMAT",
+        "auditLobbies",
+        "auditLobby",
+        "balanceLobby",
+        "boxStats",
+        "chiSquareUpperTail",
+        "compileModel",
+        "compileRules",
+        "createRandomSource",
+        "defaultRules",
+        "duelOutcome",
+        "duelWinProbability",
+        "fitBinomial",
+        "fitLeastSquares",
+        "fitModel",
+        "fiveNumber",
+        "formatIssue",
+        "jainIndex",
+        "jsonSchemas",
+        "linkFor",
+        "normalCdf",
+        "normalDensity",
+        "normalQuantile",
+        "normalUpperTail",
+        "parseJsonText",
+        "parseLobby",
+        "parseSweep",
+        "parseTermList",
+        "parseTrialsCsv",
+        "quantile",
+        "quantileSorted",
+        "readJsonFile",
+        "readTrialsFile",
+        "safeParseLobby",
+        "solveSampledScalesInto",
+        "solveScalesInto",
+        "standardNormalDraw",
+        "summarizeTrials",
+        "sweepRule",
+        "toModelFile",
+        "twoSidedNormalPValue",
+        "unwrap",
+        "writeFileAtomic",
+      ]
+    `);
+  });
+
+  it('export the report from lagparity/report', () => {
+    expect(Object.keys(report).sort()).toEqual(['REPORT_CAUTIONS', 'renderReport']);
+  });
+
+  it('keep the charting library, the CLI packages and mathjs out of the main entry point', () => {
+    const reached = [...packagesReached(join(ROOT, 'src', 'index.ts'))];
+    expect(reached.length).toBeGreaterThan(3);
+    expect(reached.filter((name) => /^(vega|vega-lite|commander|cli-table3|mathjs)$/.test(name))).toEqual([]);
+    expect([...packagesReached(join(ROOT, 'src', 'report', 'index.ts'))]).toContain('vega');
+  });
+});
