@@ -29,6 +29,17 @@ const rulesFor = (estimator: unknown) => {
 };
 const percentileRules = rulesFor({ percentile: 10 });
 const pooledRules = rulesFor('all_samples');
+/** The common case for a matchmaker: floor 1 and a cap, an eligibility limit, no soft cap or rounding. */
+const plainRules = (() => {
+  const result = compileRules({ format: 'lagparity/rules@1', scale_cap: 1.5, latency_limit_ms: 220, latency_estimator: { percentile: 10 } });
+  if (!result.ok) throw new Error('rules do not compile');
+  return result.value;
+})();
+const plainPooledRules = (() => {
+  const result = compileRules({ format: 'lagparity/rules@1', scale_cap: 1.5, latency_limit_ms: 220, latency_estimator: 'all_samples' });
+  if (!result.ok) throw new Error('rules do not compile');
+  return result.value;
+})();
 const random = createRandomSource(2026);
 const latency = () => 10 + 180 * random();
 
@@ -90,21 +101,29 @@ for (const players of [10, 100, 1000]) {
   }
 }
 lines.push('');
-lines.push('bulk                                   players/call  player-solves/s');
-for (const players of [1000, 100_000]) {
-  const latencies = Float64Array.from({ length: players }, latency);
-  const out = new Float64Array(players);
-  const figures = time(() => solveScalesInto(model, 'veteran', latencies, percentileRules, out), 50, 1000);
-  lines.push(`solveScalesInto, point latencies       ${String(players).padStart(12)}  ${format(figures.perSecond * players, 0).padStart(15)}`);
+lines.push('bulk (rules: "plain" = floor 1, cap 1.5, limit 220 ms; "league" = matches/league-rules.json, with its soft cap)');
+lines.push('path                                              players/call  player-solves/s');
+for (const [ruleLabel, rules] of [
+  ['plain', plainRules],
+  ['league', percentileRules],
+] as const) {
+  for (const players of [1000, 100_000]) {
+    const latencies = Float64Array.from({ length: players }, latency);
+    const out = new Float64Array(players);
+    const figures = time(() => solveScalesInto(model, 'veteran', latencies, rules, out), 50, 1000);
+    lines.push(`solveScalesInto, point latencies, ${ruleLabel.padEnd(6)}         ${String(players).padStart(12)}  ${format(figures.perSecond * players, 0).padStart(15)}`);
+  }
 }
 for (const [label, rules] of [
-  ['p10', percentileRules],
-  ['pooled', pooledRules],
+  ['p10, plain', plainRules],
+  ['pooled, plain', plainPooledRules],
+  ['p10, league', percentileRules],
+  ['pooled, league', pooledRules],
 ] as const) {
   const players = 10_000;
   const samples = Float64Array.from({ length: players * 32 }, (_, index) => 10 + (index >> 5) * 0.017 + 25 * random() ** 3);
   const out = new Float64Array(players);
   const figures = time(() => solveSampledScalesInto(model, 'veteran', samples, 32, rules, out), 5, 1000);
-  lines.push(`solveSampledScalesInto, 32 samples, ${label.padEnd(6)} ${String(players).padStart(6)}  ${format(figures.perSecond * players, 0).padStart(15)}`);
+  lines.push(`solveSampledScalesInto, 32 samples, ${label.padEnd(14)} ${String(players).padStart(6)}  ${format(figures.perSecond * players, 0).padStart(15)}`);
 }
 process.stdout.write(`${lines.join('\n')}\n`);
