@@ -77,11 +77,12 @@ function time(run: () => void, minimumRuns: number, budgetMs: number): { perSeco
 const allViews: BalanceOptions = { views: { duel: true, exploit: true, uncertainty: true } };
 const format = (value: number, digits = 1) => value.toLocaleString('en-US', { maximumFractionDigits: digits, minimumFractionDigits: digits });
 const lines: string[] = [];
-lines.push(`lagparity bench:solve on node ${process.version} (${process.arch}); model matches/model.json, rules matches/league-rules.json`);
+lines.push(`lagparity bench:solve on node ${process.version} (${process.arch}); model matches/model.json, rules matches/league-rules.json (soft cap) unless "plain" (floor 1, cap 1.5, limit 220 ms)`);
 lines.push('');
 lines.push('players  latencies              views   lobbies/s     median us   runs');
 for (const players of [10, 100, 1000]) {
   for (const [label, samples, rules] of [
+    ['point, plain rules', 1, plainRules],
     ['point', 1, percentileRules],
     ['32 samples, p10', 32, percentileRules],
     ['32 samples, pooled', 32, pooledRules],
