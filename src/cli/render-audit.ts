@@ -1,7 +1,7 @@
 /** The audit as tables (for people) or Markdown (for a report or a ticket). */
 import Table from 'cli-table3';
 import type { AuditReport, LobbyAudit, SweepReport } from '../audit/audit-schema.js';
-import { COMPACT_CHARS } from './render-balance.js';
+import { COMPACT_CHARS, PLAYER_ALIGN, PLAYER_HEAD, playerCells } from './render-balance.js';
 import { fixed } from './output.js';
 
 type Style = 'table' | 'markdown';
@@ -17,24 +17,14 @@ function grid(head: string[], rows: string[][], style: Style, align: ('left' | '
 }
 
 function playerRows(audit: LobbyAudit): string[][] {
-  return audit.players.map((player) => [
-    player.id,
-    player.team ?? '-',
-    player.latency_estimate_ms.toFixed(1),
-    player.eligible ? player.scale.toFixed(3) : '-',
-    fixed(player.expected_before),
-    player.eligible ? fixed(player.expected_after) : '-',
-    player.eligible ? fixed(player.gap_to_target) : '-',
-    player.binding,
-    player.spike_gain === null ? '-' : fixed(player.spike_gain),
-  ]);
+  return audit.players.map((player) => [...playerCells(player), player.spike_gain === null ? '-' : fixed(player.spike_gain)]);
 }
 
 function renderLobby(audit: LobbyAudit, style: Style): string {
   const heading = style === 'markdown' ? `### ${audit.match_id} — ${audit.verdict.toUpperCase()}` : `${audit.match_id} (${audit.source}): ${audit.verdict.toUpperCase()}`;
   const parts = [heading];
   if (audit.figures !== null) {
-    parts.push(grid(['player', 'team', 'latency ms', 'scale', 'P(hit) before', 'P(hit) after', 'gap to target', 'held by', 'spike gain'], playerRows(audit), style, ['left', 'left', 'right', 'right', 'right', 'right', 'right', 'left', 'right']));
+    parts.push(grid([...PLAYER_HEAD, 'spike gain'], playerRows(audit), style, [...PLAYER_ALIGN, 'right']));
     const figures = audit.figures;
     parts.push(
       [

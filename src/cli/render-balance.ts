@@ -1,11 +1,29 @@
 /** The balance result as tables for people. */
 import Table from 'cli-table3';
-import type { BalanceResult } from '../solver/balance-lobby.js';
+import type { BalanceResult, PlayerBalance } from '../solver/balance-lobby.js';
 import { fixed } from './output.js';
 
 const PLAIN = { head: [] as string[], border: [] as string[] };
 /** Box lines without a rule between body rows. */
 export const COMPACT_CHARS = { mid: '', 'left-mid': '', 'mid-mid': '', 'right-mid': '' };
+
+/** The per-player columns every lobby table shows (balance and audit). */
+export const PLAYER_HEAD = ['player', 'team', 'latency ms', 'scale', 'P(hit) before', 'P(hit) after', 'gap to target', 'held by'] as const;
+export const PLAYER_ALIGN = ['left', 'left', 'right', 'right', 'right', 'right', 'right', 'left'] as const;
+
+/** A player's cells under PLAYER_HEAD; an ineligible player shows no scale or result. */
+export function playerCells(player: Pick<PlayerBalance, 'id' | 'team' | 'eligible' | 'latency_estimate_ms' | 'scale' | 'expected_before' | 'expected_after' | 'gap_to_target' | 'binding'>): string[] {
+  return [
+    player.id,
+    player.team ?? '-',
+    player.latency_estimate_ms.toFixed(1),
+    player.eligible ? player.scale.toFixed(3) : '-',
+    fixed(player.expected_before),
+    player.eligible ? fixed(player.expected_after) : '-',
+    player.eligible ? fixed(player.gap_to_target) : '-',
+    player.binding,
+  ];
+}
 
 export const CAUTION =
   'Caution: compensation changes competitive outcomes. Disclose it to the players, measure latency on the server (never trust the client), and defer to the league\'s own rules and officials.';
@@ -14,24 +32,8 @@ export function renderBalance(result: BalanceResult): string {
   if (result.status === 'rejected') {
     return `${result.match_id}: rejected\n${result.issues.map((issue) => `  ${issue.location}: ${issue.message}`).join('\n')}`;
   }
-  const table = new Table({
-    head: ['player', 'team', 'latency ms', 'scale', 'P(hit) before', 'P(hit) after', 'gap to target', 'held by'],
-    style: PLAIN,
-    chars: COMPACT_CHARS,
-    colAligns: ['left', 'left', 'right', 'right', 'right', 'right', 'right', 'left'],
-  });
-  for (const player of result.players) {
-    table.push([
-      player.id,
-      player.team ?? '-',
-      player.latency_estimate_ms.toFixed(1),
-      player.eligible ? player.scale.toFixed(3) : '-',
-      fixed(player.expected_before),
-      player.eligible ? fixed(player.expected_after) : '-',
-      player.eligible ? fixed(player.gap_to_target) : '-',
-      player.binding,
-    ]);
-  }
+  const table = new Table({ head: [...PLAYER_HEAD], style: PLAIN, chars: COMPACT_CHARS, colAligns: [...PLAYER_ALIGN] });
+  for (const player of result.players) table.push(playerCells(player));
   const summary = result.summary;
   const lines = [
     `${result.match_id} (${result.attribute}, difficulty ${String(result.difficulty)}): ${result.status}`,

@@ -15,6 +15,7 @@ import { type Issue, type Result, at, error, fail, ok, show } from '../issues.js
 import { type ModelFile, modelFileSchema } from '../formats/model-file.js';
 import { fromZodIssues } from '../formats/zod-issues.js';
 import { type Link, linkFor } from './links.js';
+import { semiDefiniteCholesky } from '../numeric/semidefinite-cholesky.js';
 import { type DesignColumn, type DifficultyCoding, checkTerms, designColumns, scaleForm } from './terms.js';
 
 declare const compiledBrand: unique symbol;
@@ -49,28 +50,6 @@ export interface CompiledModel {
 /** Relative tolerance for the covariance symmetry check. */
 const SYMMETRY_TOLERANCE = 1e-8;
 
-/** Cholesky-based positive semi-definiteness check with a relative pivot tolerance. */
-function isPositiveSemiDefinite(matrix: Float64Array, size: number): boolean {
-  const lower = new Float64Array(size * size);
-  let largestDiagonal = 0;
-  for (let index = 0; index < size; index += 1) largestDiagonal = Math.max(largestDiagonal, Math.abs(matrix[index * size + index] ?? 0));
-  const tolerance = 1e-10 * Math.max(largestDiagonal, Number.MIN_VALUE);
-  for (let column = 0; column < size; column += 1) {
-    let pivot = matrix[column * size + column] ?? 0;
-    for (let inner = 0; inner < column; inner += 1) pivot -= (lower[column * size + inner] ?? 0) ** 2;
-    if (pivot < -tolerance) return false;
-    const root = pivot > tolerance ? Math.sqrt(pivot) : 0;
-    lower[column * size + column] = root;
-    for (let row = column + 1; row < size; row += 1) {
-      let sum = matrix[row * size + column] ?? 0;
-      for (let inner = 0; inner < column; inner += 1) sum -= (lower[row * size + inner] ?? 0) * (lower[column * size + inner] ?? 0);
-      lower[row * size + column] = root > 0 ? sum / root : 0;
-      if (root === 0 && Math.abs(sum) > Math.sqrt(tolerance) * Math.sqrt(Math.abs(matrix[row * size + row] ?? 0))) return false;
-    }
-  }
-  return true;
-}
-
 function checkCoefficients(model: ModelFile, columns: readonly DesignColumn[], file: string | undefined): Issue[] {
   const issues: Issue[] = [];
   const expected = columns.map((column) => column.name);
@@ -101,7 +80,7 @@ function checkCoefficients(model: ModelFile, columns: readonly DesignColumn[], f
       }
     }
   }
-  if (!isPositiveSemiDefinite(flat, size)) {
+  if (!semiDefiniteCholesky(flat, size).positiveSemiDefinite) {
     issues.push(error('bad_covariance', at(file, 'coefficients.covariance'), 'the covariance requires a positive semi-definite matrix (variances cannot be negative), got one with a negative eigenvalue'));
   }
   return issues;

@@ -23,6 +23,7 @@
  *
  * Cost: `draws` lobby solves.
  */
+import { semiDefiniteCholesky } from '../../numeric/semidefinite-cholesky.js';
 import type { LobbyFile } from '../../formats/lobby-file.js';
 import { type CompiledModel, predictorLine } from '../../model/compile.js';
 import { type RandomSource, createRandomSource, standardNormalDraw } from '../../random.js';
@@ -62,32 +63,6 @@ export interface UncertaintyView {
   readonly players: readonly PlayerScaleInterval[];
 }
 
-/**
- * A lower-triangular L with L L' = covariance (row-major, size x size), for a
- * positive semi-definite covariance: pivots below `1e-12 x` the largest
- * diagonal give a zero column (Higham, N. J. (2002), Accuracy and Stability
- * of Numerical Algorithms, 2nd ed., section 10.3, on the semi-definite case).
- */
-export function choleskySemiDefinite(covariance: ArrayLike<number>, size: number): Float64Array {
-  const lower = new Float64Array(size * size);
-  let largestDiagonal = 0;
-  for (let index = 0; index < size; index += 1) largestDiagonal = Math.max(largestDiagonal, Math.abs(covariance[index * size + index] as number));
-  const tolerance = 1e-12 * largestDiagonal;
-  for (let column = 0; column < size; column += 1) {
-    let pivot = covariance[column * size + column] as number;
-    for (let inner = 0; inner < column; inner += 1) pivot -= (lower[column * size + inner] as number) ** 2;
-    if (!(pivot > tolerance)) continue; // the column stays zero
-    const root = Math.sqrt(pivot);
-    lower[column * size + column] = root;
-    for (let row = column + 1; row < size; row += 1) {
-      let sum = covariance[row * size + column] as number;
-      for (let inner = 0; inner < column; inner += 1) sum -= (lower[row * size + inner] as number) * (lower[column * size + inner] as number);
-      lower[row * size + column] = sum / root;
-    }
-  }
-  return lower;
-}
-
 /** The uncertainty view of a solved lobby (`base`, from `solveLobby` at the model's own coefficients). */
 export function uncertaintyView(lobby: LobbyFile, model: CompiledModel, rules: CompiledRules, base: LobbySolve, options: UncertaintyOptions = {}): UncertaintyView {
   const draws = options.draws ?? DEFAULT_UNCERTAINTY_DRAWS;
@@ -95,7 +70,7 @@ export function uncertaintyView(lobby: LobbyFile, model: CompiledModel, rules: C
   const seed = options.random === undefined ? (options.seed ?? DEFAULT_UNCERTAINTY_SEED) : null;
   const random = options.random ?? createRandomSource(seed as number);
   const size = model.coefficients.length;
-  const lower = choleskySemiDefinite(model.covariance, size);
+  const { lower } = semiDefiniteCholesky(model.covariance, size);
   const eligibleCount = base.solution.count;
   // Scales by player, then draw: player p's draws at [p * draws, (p + 1) * draws).
   const scales = new Float64Array(eligibleCount * draws);

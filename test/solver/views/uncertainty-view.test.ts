@@ -1,6 +1,8 @@
 import { describe, expect, it } from 'vitest';
 import { balanceLobby } from '../../../src/solver/balance-lobby.js';
-import { choleskySemiDefinite } from '../../../src/solver/views/uncertainty-view.js';
+import { semiDefiniteCholesky } from '../../../src/numeric/semidefinite-cholesky.js';
+
+const choleskySemiDefinite = (matrix: number[], size: number) => semiDefiniteCholesky(matrix, size).lower;
 import { compiled, lobbyOf, rulesOf, type ModelSpec } from '../arbitraries.js';
 
 const spec: ModelSpec = { link: 'logit', form: 'log', intercept: 0.5, latency: -0.01, scale: 1.5, difficulty: 0, interaction: 0.002 };
@@ -13,7 +15,7 @@ function uncertainty(variance: number, options: { draws?: number; seed?: number 
   return result.views.uncertainty;
 }
 
-describe('choleskySemiDefinite()', () => {
+describe('semiDefiniteCholesky()', () => {
   it('factors a singular covariance, giving a zero column where the pivot vanishes', () => {
     // Sigma = v v' for v = (1, 2, 0): by hand L = [[1, 0, 0], [2, 0, 0], [0, 0, 0]].
     expect(Array.from(choleskySemiDefinite([1, 2, 0, 2, 4, 0, 0, 0, 0], 3))).toEqual([1, 0, 0, 2, 0, 0, 0, 0, 0]);
