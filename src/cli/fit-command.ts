@@ -27,6 +27,8 @@ interface FitOptions {
   reference?: string;
   json?: boolean;
   force?: boolean;
+  lrTests: string;
+  baseline: boolean;
 }
 
 /** One candidate of `--compare`: `MODEL[:TERMS]`, MODEL a link name or `least_squares`. */
@@ -208,6 +210,9 @@ export async function runFit(path: string, options: FitOptions): Promise<number>
     issues.push(error('invalid_option', '--cluster', `\`--cluster\` requires player or none, got ${show(options.cluster)}`));
   }
   const folds = integerOption('--folds', options.folds, 0, issues);
+  if (options.lrTests !== 'all' && options.lrTests !== 'none') {
+    issues.push(error('invalid_option', '--lr-tests', `\`--lr-tests\` requires all or none, got ${show(options.lrTests)}`));
+  }
   const seed = integerOption('--seed', options.seed, 0, issues);
   let terms: TermName[] | undefined;
   if (options.terms !== undefined) {
@@ -246,11 +251,12 @@ export async function runFit(path: string, options: FitOptions): Promise<number>
     ...(options.reference === undefined ? {} : { reference: options.reference }),
     folds,
     seed,
+    baseline: options.baseline,
   };
   let report: FitReport;
   const ranked: Ranked[] = [];
   try {
-    report = fitModel(trials, { ...common, onProgress: (stage) => progress.update(stage) });
+    report = fitModel(trials, { ...common, likelihoodRatioTests: options.lrTests === 'all', onProgress: (stage) => progress.update(stage) });
     for (const candidate of compare?.candidates ?? []) {
       const fitted = fitModel(trials, {
         ...common,
@@ -319,6 +325,8 @@ export function registerFit(program: Command): void {
     .option('--cluster <by>', 'cluster-robust (CR1) errors by `player` or `none`; default player when the file has a player column')
     .option('--folds <k>', 'cross-validation folds, whole players held out; 0 for none', '5')
     .option('--seed <n>', 'seed of the fold assignment', '1')
+    .option('--lr-tests <which>', 'likelihood-ratio test per factor (one refit each): all or none', 'all')
+    .option('--no-baseline', 'skip the least-squares baseline on accuracy (reported as null)')
     .option('--reference <level>', 'reference difficulty level (default: the first level in the file)')
     .option('--compare <specs>', 'rank candidates by held-out log loss: MODEL[:TERMS] separated by ";", MODEL one of logit, probit, cloglog, least_squares')
     .option('--family <name>', 'binomial, or least_squares (OLS on per-round accuracy; a baseline, not written as a model)', 'binomial')
@@ -330,6 +338,8 @@ export function registerFit(program: Command): void {
 Examples:
   lagparity fit matches/playtest-trials.csv --out matches/model.json
   lagparity fit trials.csv --out model.json --link probit --terms latency,log_scale,difficulty --cluster none
+  lagparity fit trials.csv --folds 0 --lr-tests none --no-baseline --cluster none
+    the main fit alone with its standard errors (what one general-purpose glm call does)
   lagparity fit trials.csv --compare "logit;probit;cloglog:latency,log_scale,difficulty;least_squares"
     fits the main model (--link/--terms) and four candidates: the logit, probit and
     (with fewer terms) cloglog links and least squares on accuracy; a candidate

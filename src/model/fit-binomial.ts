@@ -40,7 +40,7 @@ import { choleskySolve } from '../numeric/cholesky.js';
 import { clusterSandwichCovariance, compactClusters } from '../numeric/cluster-sandwich.js';
 import { hasConstantColumn, multiply, selectRows, type DesignMatrix } from '../numeric/design-matrix.js';
 import { inverseCrossProduct, solveLeastSquares } from '../numeric/householder-qr.js';
-import { columnExponents, reduceWeightedRows } from '../numeric/row-reduction.js';
+import { type ReducedLeastSquares, RowTriangle, columnExponents, finishReduction, reduceWeightedRows } from '../numeric/row-reduction.js';
 import { normalQuantile, twoSidedNormalPValue } from '../stats/distributions.js';
 import { linkFor, LINK_NAMES, type Link, type LinkName } from './links.js';
 
@@ -246,7 +246,7 @@ export function fitBinomial(data: BinomialData, options: BinomialFitOptions = {}
   const iteration = iterate(kept, rows, link, maxIterations, tolerance, exponents, options.start);
   warnings.push(...iteration.warnings);
   const { coefficients } = iteration;
-  const linearPredictor = multiply(kept, coefficients);
+  const linearPredictor = iteration.atEstimate?.linearPredictor ?? multiply(kept, coefficients);
   const state = linkState(link, linearPredictor, rows);
   let boundaryRows = 0;
   let stillMoving = false;
@@ -257,7 +257,8 @@ export function fitBinomial(data: BinomialData, options: BinomialFitOptions = {}
       if (change > DIVERGING_STEP * Math.max(1, Math.abs(linearPredictor[i] as number))) stillMoving = true;
     }
   }
-  const information = reduceWeightedRows(kept, squares(state.rootWeights), null, exponents).qr;
+  // The last pass of the iteration already reduced the rows at the estimate.
+  const information = (iteration.atEstimate?.reduction ?? reduceWeightedRows(kept, squares(state.rootWeights), null, exponents)).qr;
   const weightedRankLost = iteration.weightsCollapsed || information.rank < columns;
   if (weightedRankLost && boundaryRows === 0) {
     // Numerically dependent columns that only show once weighted (e.g. tiny or subnormal entries).
@@ -400,8 +401,7 @@ export function fitBinomial(data: BinomialData, options: BinomialFitOptions = {}
   for (let i = 0; i < n; i += 1) priorTrials += (priorWeights[i] as number) * (trials[i] as number);
   const brierScore = brierSum / priorTrials;
 
-  const fullLinearPredictor = multiply(design, coefficients);
-  const fitted = fullLinearPredictor.map((value) => link.inverse(value));
+  const fitted = kept === design ? state.mu : multiply(design, coefficients).map((value) => link.inverse(value));
 
   let robust: BinomialRobust | null = null;
   if (data.clusters !== undefined && options.robust !== false) {
@@ -550,10 +550,85 @@ interface IterationResult {
   readonly collapsedAliased: { readonly aliased: readonly number[] };
   readonly lastStep: Float64Array;
   readonly lastLinearPredictorChange: Float64Array;
+  /** X b at `coefficients` and the weighted reduction there (the expected information), when an iterate was accepted. */
+  readonly atEstimate: { readonly linearPredictor: Float64Array; readonly reduction: ReducedLeastSquares } | null;
   readonly warnings: string[];
 }
 
-/** Fisher scoring / IRLS (McCullagh & Nelder 1989, §2.5), R's starting values and step control. */
+/**
+ * One fused IRLS pass over the rows at `coefficients` (null: at R's starting
+ * values mu = (w y + 0.5) / (w + 1)): for each row the linear predictor
+ * (written to `linearPredictor`, a buffer reused across passes), mu, 1 - mu,
+ * dmu/deta, the working weight w n (dmu/deta)^2 / V and the working response
+ * z = eta + (y - mu) / (dmu/deta), folded at once into `triangle` by the
+ * Givens row update; returns the grouped deviance at those coefficients. No
+ * per-row temporaries: the cost is one sweep of the design per pass.
+ *
+ * The logit link is written out (one exp per row, the same values as
+ * `links.ts`); the other links call their link object, one per fit.
+ */
+function fusedPass(
+  design: DesignMatrix,
+  rows: GlmRows,
+  link: Link,
+  coefficients: ArrayLike<number> | null,
+  linearPredictor: Float64Array,
+  triangle: RowTriangle,
+  factors: Float64Array,
+): number {
+  const n = design.rows;
+  const columns = design.columns;
+  const values = design.values;
+  const proportions = rows.proportions;
+  const glmWeights = rows.weights;
+  const row = triangle.scratch;
+  const logit = link.name === 'logit';
+  let deviance = 0;
+  for (let i = 0; i < n; i += 1) {
+    const weight = glmWeights[i] as number;
+    const proportion = proportions[i] as number;
+    let eta = 0;
+    if (coefficients === null) eta = link.link((weight * proportion + 0.5) / (weight + 1));
+    else {
+      for (let j = 0; j < columns; j += 1) {
+        const coefficient = coefficients[j] as number;
+        if (coefficient !== 0) eta += (values[j * n + i] as number) * coefficient;
+      }
+    }
+    linearPredictor[i] = eta;
+    let mu: number;
+    let complement: number;
+    let derivative: number;
+    if (logit) {
+      // mu = 1 / (1 + exp(-eta)) or exp(eta) / (1 + exp(eta)), whichever does not overflow (links.ts).
+      const exponential = Math.exp(-Math.abs(eta));
+      const denominator = 1 + exponential;
+      const small = exponential / denominator;
+      const large = 1 / denominator;
+      mu = eta >= 0 ? large : small;
+      complement = eta >= 0 ? small : large;
+      derivative = exponential / (denominator * denominator);
+    } else {
+      mu = link.inverse(eta);
+      complement = link.inverseComplement(eta);
+      derivative = link.derivative(eta);
+    }
+    let term = 0;
+    if (proportion > 0) term += proportion * Math.log(proportion / mu);
+    if (proportion < 1) term += (1 - proportion) * Math.log((1 - proportion) / complement);
+    deviance += 2 * weight * term;
+    const variance = mu * complement;
+    const workingWeight = (weight * derivative * derivative) / variance;
+    // Like R's glm.fit `good` rows: a row whose dmu/deta or variance underflows carries no information.
+    if (!(variance > 0) || !Number.isFinite(workingWeight) || !(workingWeight > 0)) continue;
+    const workingResponse = eta + residualOf(proportion, mu, complement) / derivative;
+    for (let j = 0; j < columns; j += 1) row[j] = (values[j * n + i] as number) * (factors[j] as number);
+    triangle.include(workingWeight, workingResponse);
+  }
+  return deviance;
+}
+
+/** Fisher scoring / IRLS (McCullagh & Nelder 1989, §2.5), R's starting values and step control; one fused pass per iteration. */
 function iterate(
   design: DesignMatrix,
   rows: GlmRows,
@@ -566,20 +641,18 @@ function iterate(
   const n = design.rows;
   const columns = design.columns;
   const warnings: string[] = [];
-  // R binomial()$initialize: mustart = (weights * y + 0.5) / (weights + 1).
-  let linearPredictor: Float64Array = new Float64Array(n);
-  if (start !== undefined) {
-    linearPredictor = multiply(design, start);
-  } else {
-    for (let i = 0; i < n; i += 1) {
-      const weight = rows.weights[i] as number;
-      linearPredictor[i] = link.link((weight * (rows.proportions[i] as number) + 0.5) / (weight + 1));
-    }
-  }
-  let previousDeviance = devianceAt(link, linearPredictor, rows);
+  const factors = Float64Array.from(exponents, (exponent) => 2 ** exponent);
+  // Three linear-predictor buffers for the whole fit: the accepted iterate, the one before it, a candidate.
+  let current: Float64Array<ArrayBufferLike> = new Float64Array(n);
+  let previous: Float64Array<ArrayBufferLike> = new Float64Array(n);
+  let candidatePredictor: Float64Array<ArrayBufferLike> = new Float64Array(n);
+  let newtonPredictor: Float64Array<ArrayBufferLike> | null = null;
+  let triangle = new RowTriangle(columns);
+  let previousDeviance = fusedPass(design, rows, link, start ?? null, current, triangle, factors);
+  let reduction = finishReduction(triangle, exponents);
   let coefficients: Float64Array | null = null;
   let lastStep: Float64Array = new Float64Array(columns);
-  let lastLinearPredictorChange: Float64Array = new Float64Array(n);
+  let accepted = 0;
   let converged = false;
   let weightsCollapsed = false;
   let collapsedAliased: { readonly aliased: readonly number[] } = { aliased: [] };
@@ -588,40 +661,28 @@ function iterate(
   let iterations = 0;
   while (iterations < maxIterations) {
     iterations += 1;
-    const state = linkState(link, linearPredictor, rows);
-    const workingResponse = new Float64Array(n);
-    const workingWeights = new Float64Array(n);
-    for (let i = 0; i < n; i += 1) {
-      const rootWeight = state.rootWeights[i] as number;
-      if (rootWeight === 0) continue;
-      // z = eta + (y - mu) / (dmu/deta), weight w = n (dmu/deta)^2 / V.
-      workingResponse[i] =
-        (linearPredictor[i] as number) +
-        residualOf(rows.proportions[i] as number, state.mu[i] as number, state.complement[i] as number) /
-          (state.derivative[i] as number);
-      workingWeights[i] = rootWeight * rootWeight;
-    }
-    const reduced = reduceWeightedRows(design, workingWeights, workingResponse, exponents);
-    const qr = reduced.qr;
+    const qr = reduction.qr;
     if (qr.rank < columns) {
       weightsCollapsed = true;
       collapsedAliased = { aliased: qr.aliased };
       break;
     }
-    let candidate = solveLeastSquares(qr, reduced.effects).coefficients;
-    let candidatePredictor = multiply(design, candidate);
-    let deviance = devianceAt(link, candidatePredictor, rows);
+    let candidate = solveLeastSquares(qr, reduction.effects).coefficients;
+    triangle = new RowTriangle(columns);
+    let deviance = fusedPass(design, rows, link, candidate, candidatePredictor, triangle, factors);
     // Near the optimum, a non-canonical link switches to Newton-Raphson steps
     // (observed information), which converge quadratically where Fisher
     // scoring converges only linearly. Kept only if it does not raise the deviance.
     if (coefficients !== null && link.name !== 'logit' && previousStepInStandardErrors < NEWTON_SWITCH) {
-      const newton = newtonCandidate(design, rows, link, state, coefficients);
+      const newton = newtonCandidate(design, rows, link, current, coefficients);
       if (newton !== null) {
-        const newtonPredictor = multiply(design, newton);
-        const newtonDeviance = devianceAt(link, newtonPredictor, rows);
+        newtonPredictor ??= new Float64Array(n);
+        const newtonTriangle = new RowTriangle(columns);
+        const newtonDeviance = fusedPass(design, rows, link, newton, newtonPredictor, newtonTriangle, factors);
         if (Number.isFinite(newtonDeviance) && newtonDeviance <= previousDeviance * (1 + 1e-12) + 1e-12) {
           candidate = newton;
-          candidatePredictor = newtonPredictor;
+          [candidatePredictor, newtonPredictor] = [newtonPredictor, candidatePredictor];
+          triangle = newtonTriangle;
           deviance = newtonDeviance;
         }
       }
@@ -633,8 +694,8 @@ function iterate(
       halvings < MAX_HALVINGS
     ) {
       candidate = candidate.map((value, j) => (value + (anchor[j] as number)) / 2);
-      candidatePredictor = multiply(design, candidate);
-      deviance = devianceAt(link, candidatePredictor, rows);
+      triangle = new RowTriangle(columns);
+      deviance = fusedPass(design, rows, link, candidate, candidatePredictor, triangle, factors);
       halvings += 1;
     }
     if (halvings > 0 && !halvingWarned) {
@@ -658,10 +719,11 @@ function iterate(
     } else {
       lastStep = Float64Array.from(candidate);
     }
-    lastLinearPredictorChange = candidatePredictor.map((value, i) => value - (linearPredictor[i] as number));
     const firstStep = coefficients === null;
     coefficients = candidate;
-    linearPredictor = candidatePredictor;
+    [previous, current, candidatePredictor] = [current, candidatePredictor, previous];
+    reduction = finishReduction(triangle, exponents);
+    accepted += 1;
     previousDeviance = deviance;
     if (firstStep) continue;
     // Converged: the step is negligible against the standard errors, or it
@@ -677,6 +739,8 @@ function iterate(
       break;
     }
   }
+  const lastLinearPredictorChange = new Float64Array(n);
+  if (accepted > 0) for (let i = 0; i < n; i += 1) lastLinearPredictorChange[i] = (current[i] as number) - (previous[i] as number);
   return {
     coefficients: coefficients ?? new Float64Array(columns),
     iterations,
@@ -685,13 +749,15 @@ function iterate(
     collapsedAliased,
     lastStep,
     lastLinearPredictorChange,
+    atEstimate: accepted > 0 ? { linearPredictor: current, reduction } : null,
     warnings,
   };
 }
 
 /**
- * One Newton-Raphson step from `coefficients`: solve H d = U with the observed
- * information H = X' diag(o) X, o = w [mu' a - (y - mu) a'], a = mu' / V,
+ * One Newton-Raphson step from `coefficients` (linear predictor
+ * `linearPredictor`): solve H d = U with the observed information
+ * H = X' diag(o) X, o = w [mu' a - (y - mu) a'], a = mu' / V,
  * V = mu (1 - mu), and the score U = X' [w (y - mu) a] (McCullagh & Nelder
  * 1989, §2.5 and §4.4). Null when H is not positive definite.
  */
@@ -699,25 +765,26 @@ function newtonCandidate(
   design: DesignMatrix,
   rows: GlmRows,
   link: Link,
-  state: LinkState,
+  linearPredictor: Float64Array,
   coefficients: Float64Array,
 ): Float64Array | null {
   const n = design.rows;
   const columns = design.columns;
   const hessian = new Float64Array(columns * columns);
   const score = new Float64Array(columns);
-  const linearPredictor = multiply(design, coefficients);
   for (let i = 0; i < n; i += 1) {
-    if ((state.rootWeights[i] as number) === 0) continue;
-    const mu = state.mu[i] as number;
-    const complement = state.complement[i] as number;
+    const eta = linearPredictor[i] as number;
+    const mu = link.inverse(eta);
+    const complement = link.inverseComplement(eta);
+    const first = link.derivative(eta);
     const variance = mu * complement;
-    const first = state.derivative[i] as number;
-    const second = link.secondDerivative(linearPredictor[i] as number);
+    const weight = rows.weights[i] as number;
+    const workingWeight = (weight * first * first) / variance;
+    if (!(variance > 0) || !Number.isFinite(workingWeight) || workingWeight === 0) continue;
+    const second = link.secondDerivative(eta);
     const ratio = first / variance;
     const ratioDerivative = (second * variance - first * first * (complement - mu)) / (variance * variance);
     const residual = residualOf(rows.proportions[i] as number, mu, complement);
-    const weight = rows.weights[i] as number;
     const observedWeight = weight * (first * ratio - residual * ratioDerivative);
     const scoreFactor = weight * residual * ratio;
     if (!Number.isFinite(observedWeight) || !Number.isFinite(scoreFactor)) return null;
@@ -732,18 +799,6 @@ function newtonCandidate(
   const step = choleskySolve(hessian, score);
   if (step === null || !step.every(Number.isFinite)) return null;
   return coefficients.map((value, j) => value + (step[j] as number));
-}
-
-/** Grouped (saturated-model) deviance at a linear predictor; drives step halving. */
-function devianceAt(link: Link, linearPredictor: Float64Array, rows: GlmRows): number {
-  const n = linearPredictor.length;
-  const mu = new Float64Array(n);
-  const complement = new Float64Array(n);
-  for (let i = 0; i < n; i += 1) {
-    mu[i] = link.inverse(linearPredictor[i] as number);
-    complement[i] = link.inverseComplement(linearPredictor[i] as number);
-  }
-  return groupedDeviance(rows, mu, complement);
 }
 
 /** R's binomial deviance: 2 sum w [y log(y/mu) + (1-y) log((1-y)/(1-mu))], 0 log 0 = 0. */

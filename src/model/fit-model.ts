@@ -82,6 +82,8 @@ export interface FitModelOptions {
   readonly reference?: string;
   /** Likelihood-ratio tests per factor; default true. */
   readonly likelihoodRatioTests?: boolean;
+  /** Fit the least-squares baseline on accuracy (`baseline` in the report); default true. */
+  readonly baseline?: boolean;
   /** IRLS iteration limit; default 50. */
   readonly maxIterations?: number;
   /** Called before each stage (`fit`, `likelihood ratio: latency`, `fold 2 of 5`, ...). */
@@ -307,7 +309,7 @@ export function fitModel(trials: Trials, options: FitModelOptions = {}): FitRepo
   }
 
   const design = buildDesign(data, terms, coding);
-  const baseline = leastSquaresBaseline(prepared, design);
+  const baseline = options.baseline === false ? null : leastSquaresBaseline(prepared, design);
   progress('fit');
   if (prepared.family === 'least_squares') {
     return { ...base, ...leastSquaresReport(prepared, design, warnings, progress, options), baseline };
