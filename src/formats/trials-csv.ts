@@ -6,12 +6,19 @@
  *
  * The row grammar is `trialRowSchema` (zod) below; the reader applies the same
  * rules by hand in its loop for speed, and a test checks the two agree.
+ *
+ * The CSV itself (RFC 4180: quoted fields with `""` escapes, LF, CRLF or CR
+ * line ends, a UTF-8 byte-order mark) is scanned byte by byte by
+ * {@link CsvScanner}: each record is a list of field byte ranges over the
+ * chunk being read, plain decimal fields are read into the typed-array
+ * columns straight from the bytes, and only fields that need it (a level
+ * name not seen before, a number with an exponent or spaces, an error
+ * message) are decoded to strings. Memory is the columns plus one chunk.
  */
-import { parse as parseCsvSync } from 'csv-parse/sync';
 import { z } from 'zod';
 import { type Issue, type Result, error, fail, ok, show, warning } from '../issues.js';
 import { MAX_LATENCY_MS } from './lobby-file.js';
-import { GrowableFloat64, StringCodes } from './growable.js';
+import { GrowableFloat64 } from './growable.js';
 
 export const TRIALS_FORMAT = 'lagparity/trials@1';
 
@@ -88,34 +95,201 @@ export function detectDelimiter(headerLine: string): ',' | ';' | '\t' {
 
 const DELIMITER_NAMES = { ',': 'comma', ';': 'semicolon', '\t': 'tab' } as const;
 
+/** Powers of ten that are exact in a double (10^0 .. 10^22). */
+const POWERS_OF_TEN = Float64Array.from({ length: 23 }, (_, k) => 10 ** k);
+
+/**
+ * A plain decimal (`[+-]digits[.digits]`, at most 15 digits) read from bytes,
+ * or NaN when the field needs the full rules of {@link parseDecimal}. With at
+ * most 15 digits the mantissa and 10^f are exact doubles, so one correctly
+ * rounded division gives the same double as `Number(text)` (Clinger 1990,
+ * How to read floating point numbers accurately, PLDI, the fast path).
+ */
+function plainDecimal(bytes: Uint8Array, start: number, end: number): number {
+  let k = start;
+  let negative = false;
+  const first = bytes[k];
+  if (first === 0x2d) {
+    negative = true;
+    k += 1;
+  } else if (first === 0x2b) k += 1;
+  let mantissa = 0;
+  let digits = 0;
+  let fraction = 0;
+  let dot = false;
+  for (; k < end; k += 1) {
+    const byte = bytes[k] as number;
+    if (byte >= 0x30 && byte <= 0x39) {
+      mantissa = mantissa * 10 + (byte - 0x30);
+      digits += 1;
+      if (dot) fraction += 1;
+    } else if (byte === 0x2e && !dot) dot = true;
+    else return Number.NaN;
+  }
+  if (digits === 0 || digits > 15) return Number.NaN;
+  const value = mantissa / (POWERS_OF_TEN[fraction] as number);
+  return negative ? -value : value;
+}
+
+/** One CSV record: field byte ranges over the bytes being scanned (valid only during the callback). */
+export class CsvRecord {
+  bytes: Uint8Array = new Uint8Array(0);
+  count = 0;
+  starts = new Int32Array(16);
+  ends = new Int32Array(16);
+  /** 0: unquoted, 1: quoted, 2: quoted with `""` escapes. */
+  quoting = new Uint8Array(16);
+
+  /** Append a field (used by the scanner). */
+  add(start: number, end: number, quoting: number): void {
+    if (this.count === this.starts.length) {
+      const grow = <T extends Int32Array | Uint8Array>(old: T, next: T): T => {
+        next.set(old);
+        return next;
+      };
+      this.starts = grow(this.starts, new Int32Array(this.count * 2));
+      this.ends = grow(this.ends, new Int32Array(this.count * 2));
+      this.quoting = grow(this.quoting, new Uint8Array(this.count * 2));
+    }
+    this.starts[this.count] = start;
+    this.ends[this.count] = end;
+    this.quoting[this.count] = quoting;
+    this.count += 1;
+  }
+
+  /** Field `index` as text (UTF-8, `""` unescaped). */
+  text(index: number): string {
+    const text = Buffer.from(this.bytes.buffer, this.bytes.byteOffset, this.bytes.byteLength).toString('utf8', this.starts[index], this.ends[index]);
+    return this.quoting[index] === 2 ? text.replaceAll('""', '"') : text;
+  }
+
+  texts(): string[] {
+    return Array.from({ length: this.count }, (_, index) => this.text(index));
+  }
+}
+
+/** Whether a field's bytes need no trimming and no unescaping (first and last byte visible ASCII). */
+function plainField(record: CsvRecord, index: number): boolean {
+  const start = record.starts[index] as number;
+  const end = record.ends[index] as number;
+  if (end <= start || record.quoting[index] === 2) return false;
+  const first = record.bytes[start] as number;
+  const last = record.bytes[end - 1] as number;
+  return first > 0x20 && first < 0x7f && last > 0x20 && last < 0x7f;
+}
+
+/**
+ * Names interned to codes in order of first appearance, looked up from a
+ * record's bytes: the last name and up to 16 names are compared as bytes, so
+ * the usual few difficulty levels never become a string per row.
+ */
+class NameCodes {
+  readonly names: string[] = [];
+  private readonly index = new Map<string, number>();
+  private readonly known: Uint8Array[] = [];
+  private last = -1;
+  private codes: Int32Array;
+  length = 0;
+
+  constructor(capacity: number) {
+    this.codes = new Int32Array(Math.max(16, capacity));
+  }
+
+  private pushCode(code: number): void {
+    if (this.length === this.codes.length) {
+      const next = new Int32Array(this.codes.length * 2);
+      next.set(this.codes);
+      this.codes = next;
+    }
+    this.codes[this.length] = code;
+    this.length += 1;
+  }
+
+  private matches(code: number, bytes: Uint8Array, start: number, end: number): boolean {
+    const name = this.known[code];
+    if (name === undefined || name.length !== end - start) return false;
+    for (let k = 0; k < name.length; k += 1) if (name[k] !== bytes[start + k]) return false;
+    return true;
+  }
+
+  /** Push a plain field (see {@link plainField}) by its bytes. */
+  pushBytes(bytes: Uint8Array, start: number, end: number): void {
+    if (this.last >= 0 && this.matches(this.last, bytes, start, end)) return this.pushCode(this.last);
+    for (let code = 0; code < this.known.length; code += 1) {
+      if (this.matches(code, bytes, start, end)) {
+        this.last = code;
+        return this.pushCode(code);
+      }
+    }
+    const name = Buffer.from(bytes.buffer, bytes.byteOffset, bytes.byteLength).toString('utf8', start, end);
+    this.push(name);
+    const code = this.codes[this.length - 1] as number;
+    if (code === this.known.length && this.known.length < 16) this.known.push(bytes.slice(start, end));
+    this.last = code < this.known.length ? code : -1;
+  }
+
+  push(name: string): void {
+    let code = this.index.get(name);
+    if (code === undefined) {
+      code = this.names.length;
+      this.names.push(name);
+      this.index.set(name, code);
+    }
+    this.pushCode(code);
+  }
+
+  finish(): Int32Array {
+    return this.codes.slice(0, this.length);
+  }
+}
+
 /**
  * Accumulates trial rows into columns. Feed it the header, then each record
  * with its line number; it stops at the first bad row.
  */
 export class TrialsBuilder {
-  private readonly file: string;
+  readonly file: string;
   private columnIndex = new Map<KnownColumn, number>();
   private shape: 'per_attempt' | 'per_round' = 'per_attempt';
-  private readonly latency = new GrowableFloat64();
-  private readonly scale = new GrowableFloat64();
-  private readonly successes = new GrowableFloat64();
-  private readonly attempts = new GrowableFloat64();
-  private readonly weight = new GrowableFloat64();
-  private readonly difficulty = new StringCodes();
-  private readonly player = new StringCodes();
+  private readonly latency: GrowableFloat64;
+  private readonly scale: GrowableFloat64;
+  private readonly successes: GrowableFloat64;
+  private readonly attempts: GrowableFloat64;
+  private weight: GrowableFloat64;
+  private readonly capacity: number;
+  private readonly difficulty: NameCodes;
+  private readonly player: NameCodes;
   private fieldCount = 0;
+  // Field index of each column (-1: absent), read once from the header.
+  private latencyAt = -1;
+  private scaleAt = -1;
+  private difficultyAt = -1;
+  private hitAt = -1;
+  private hitsAt = -1;
+  private attemptsAt = -1;
+  private weightAt = -1;
+  private playerAt = -1;
   readonly warnings: Issue[] = [];
   failure: Issue | undefined;
   rows = 0;
 
-  constructor(file: string) {
+  /** `capacity`: expected rows (e.g. from the file size), so the columns rarely grow. */
+  constructor(file: string, capacity = 1024) {
     this.file = file;
+    const size = Math.max(16, Math.min(MAX_TRIAL_ROWS, Math.ceil(capacity)));
+    this.capacity = size;
+    this.latency = new GrowableFloat64(size);
+    this.scale = new GrowableFloat64(size);
+    this.successes = new GrowableFloat64(size);
+    this.attempts = new GrowableFloat64(size);
+    this.weight = new GrowableFloat64(16);
+    this.difficulty = new NameCodes(size);
+    this.player = new NameCodes(16);
   }
 
   private where(line: number, column?: string): string {
     return column === undefined ? `${this.file}:${line}` : `${this.file}:${line}:${column}`;
   }
-
   /** Read the header; returns false (with `failure` set) if it cannot be used. */
   header(fields: readonly string[], line: number, delimiter: ',' | ';' | '\t'): boolean {
     if (delimiter !== ',') {
@@ -149,19 +323,34 @@ export class TrialsBuilder {
       return false;
     }
     this.shape = hasHit ? 'per_attempt' : 'per_round';
+    const at = (name: KnownColumn) => this.columnIndex.get(name) ?? -1;
+    this.latencyAt = at('latency_ms');
+    this.scaleAt = at('scale');
+    this.difficultyAt = at('difficulty');
+    this.hitAt = at('hit');
+    this.hitsAt = at('hits');
+    this.attemptsAt = at('attempts');
+    this.weightAt = at('weight');
+    this.playerAt = at('player');
+    if (this.weightAt >= 0) this.weight = new GrowableFloat64(this.capacity);
     if (unknown.length > 0) {
       this.warnings.push(warning('unknown_column', this.where(line), `columns ignored: ${unknown.map((name) => show(name)).join(', ')}`));
     }
     return true;
   }
 
-  private numberField(fields: readonly string[], column: KnownColumn, line: number): number | undefined {
-    const index = this.columnIndex.get(column);
-    const text = index === undefined ? undefined : fields[index];
-    const value = text === undefined ? undefined : parseDecimal(text);
+  private numberField(record: CsvRecord, index: number, column: KnownColumn, line: number): number | undefined {
+    const start = record.starts[index] as number;
+    const end = record.ends[index] as number;
+    if (record.quoting[index] !== 2) {
+      const fast = plainDecimal(record.bytes, start, end);
+      if (fast === fast) return fast; // not NaN
+    }
+    const text = record.text(index);
+    const value = parseDecimal(text);
     if (value === undefined) {
-      const got = text === undefined || text.trim() === '' ? 'an empty field' : show(text);
-      this.failure = error(text === undefined || text.trim() === '' ? 'empty_field' : 'not_a_number', this.where(line, column), `\`${column}\` requires a finite decimal number, got ${got}`);
+      const empty = text.trim() === '';
+      this.failure = error(empty ? 'empty_field' : 'not_a_number', this.where(line, column), `\`${column}\` requires a finite decimal number, got ${empty ? 'an empty field' : show(text)}`);
     }
     return value;
   }
@@ -171,39 +360,59 @@ export class TrialsBuilder {
     return false;
   }
 
+  /** Push a name field (difficulty, player) by its bytes, or trimmed text; false when it is empty. */
+  private nameField(record: CsvRecord, index: number, codes: NameCodes): boolean {
+    if (plainField(record, index)) {
+      codes.pushBytes(record.bytes, record.starts[index] as number, record.ends[index] as number);
+      return true;
+    }
+    const text = record.text(index).trim();
+    if (text === '') return false;
+    codes.push(text);
+    return true;
+  }
+
   /** Add one record; returns false (with `failure` set) at the first bad row. */
-  row(fields: readonly string[], line: number): boolean {
-    if (fields.length !== this.fieldCount) {
-      this.failure = error('wrong_field_count', this.where(line), `each row requires ${this.fieldCount} fields like the header, got ${fields.length}`);
+  row(record: CsvRecord, line: number): boolean {
+    if (record.count !== this.fieldCount) {
+      this.failure = error('wrong_field_count', this.where(line), `each row requires ${this.fieldCount} fields like the header, got ${record.count}`);
       return false;
     }
     if (this.rows >= MAX_TRIAL_ROWS) {
       this.failure = error('too_large', this.where(line), `a trials file requires at most ${MAX_TRIAL_ROWS} rows (the documented limit), got more`);
       return false;
     }
-    const latency = this.numberField(fields, 'latency_ms', line);
+    const latency = this.numberField(record, this.latencyAt, 'latency_ms', line);
     if (latency === undefined) return false;
     if (latency < 0 || latency > MAX_LATENCY_MS) return this.reject(line, 'latency_ms', 'out_of_range', `a latency between 0 and ${MAX_LATENCY_MS} ms`, latency);
-    const scale = this.numberField(fields, 'scale', line);
+    const scale = this.numberField(record, this.scaleAt, 'scale', line);
     if (scale === undefined) return false;
     if (scale <= 0) return this.reject(line, 'scale', 'out_of_range', 'a scale above 0', scale);
-    const difficultyText = (fields[this.columnIndex.get('difficulty') ?? -1] ?? '').trim();
-    if (difficultyText === '') {
+    // The difficulty is pushed now and taken back if a later field of the row is bad.
+    if (!this.nameField(record, this.difficultyAt, this.difficulty)) {
       this.failure = error('empty_field', this.where(line, 'difficulty'), '`difficulty` requires a number or a level name, got an empty field');
       return false;
     }
+    if (!this.rest(record, line, latency, scale)) {
+      this.difficulty.length = this.rows;
+      return false;
+    }
+    return true;
+  }
+
+  private rest(record: CsvRecord, line: number, latency: number, scale: number): boolean {
     let successes: number;
     let attempts: number;
     if (this.shape === 'per_attempt') {
-      const hit = this.numberField(fields, 'hit', line);
+      const hit = this.numberField(record, this.hitAt, 'hit', line);
       if (hit === undefined) return false;
       if (hit !== 0 && hit !== 1) return this.reject(line, 'hit', 'out_of_range', '0 or 1', hit);
       successes = hit;
       attempts = 1;
     } else {
-      const hits = this.numberField(fields, 'hits', line);
+      const hits = this.numberField(record, this.hitsAt, 'hits', line);
       if (hits === undefined) return false;
-      const tries = this.numberField(fields, 'attempts', line);
+      const tries = this.numberField(record, this.attemptsAt, 'attempts', line);
       if (tries === undefined) return false;
       if (!Number.isInteger(tries) || tries < 1) return this.reject(line, 'attempts', 'out_of_range', 'a whole number >= 1', tries);
       if (!Number.isInteger(hits) || hits < 0) return this.reject(line, 'hits', 'out_of_range', 'a whole number >= 0', hits);
@@ -212,30 +421,24 @@ export class TrialsBuilder {
       attempts = tries;
     }
     let weight = 1;
-    if (this.columnIndex.has('weight')) {
-      const value = this.numberField(fields, 'weight', line);
+    if (this.weightAt >= 0) {
+      const value = this.numberField(record, this.weightAt, 'weight', line);
       if (value === undefined) return false;
       if (value < 0) return this.reject(line, 'weight', 'out_of_range', 'a weight >= 0', value);
       weight = value;
     }
-    if (this.columnIndex.has('player')) {
-      const id = (fields[this.columnIndex.get('player') ?? -1] ?? '').trim();
-      if (id === '') {
-        this.failure = error('empty_field', this.where(line, 'player'), '`player` requires a player id, got an empty field');
-        return false;
-      }
-      this.player.push(id);
+    if (this.playerAt >= 0 && !this.nameField(record, this.playerAt, this.player)) {
+      this.failure = error('empty_field', this.where(line, 'player'), '`player` requires a player id, got an empty field');
+      return false;
     }
     this.latency.push(latency);
     this.scale.push(scale);
-    this.difficulty.push(difficultyText);
     this.successes.push(successes);
     this.attempts.push(attempts);
-    if (this.columnIndex.has('weight')) this.weight.push(weight);
+    if (this.weightAt >= 0) this.weight.push(weight);
     this.rows += 1;
     return true;
   }
-
   /** The columns, or the failure with the number of rows read before it. */
   finish(): Result<Trials> {
     if (this.failure) {
@@ -274,52 +477,223 @@ export class TrialsBuilder {
   }
 }
 
-/** The csv-parse options every trials read uses. */
-export function csvOptions(delimiter: ',' | ';' | '\t') {
-  return {
-    bom: true,
-    delimiter,
-    info: true,
-    skip_empty_lines: true,
-    relax_column_count: true,
-    max_record_size: MAX_CSV_LINE_BYTES,
-  } as const;
-}
+const QUOTE = 0x22;
+const LINE_FEED = 0x0a;
+const CARRIAGE_RETURN = 0x0d;
 
-/** Turn a csv-parse error into an issue that names the file and line. */
-export function csvErrorIssue(file: string, cause: unknown): Issue {
-  const record = cause as { code?: string; lines?: number; message?: string };
-  const line = record.lines ?? 0;
-  if (record.code === 'CSV_MAX_RECORD_SIZE') {
-    return error('line_too_long', `${file}:${line}`, `a line requires at most ${MAX_CSV_LINE_BYTES} bytes (the documented limit), got a longer one`);
+/**
+ * A streaming RFC 4180 scanner over UTF-8 bytes: feed it chunks in order
+ * ({@link push}), then {@link end}. Each record goes to `onRecord` with the
+ * line it starts on; empty lines are skipped; a record longer than
+ * {@link MAX_CSV_LINE_BYTES} is refused as soon as that many bytes are seen.
+ * Only the unfinished last record of a chunk is kept (copied) for the next.
+ */
+export class CsvScanner {
+  private readonly file: string;
+  private readonly delimiter: number;
+  private readonly onRecord: (record: CsvRecord, line: number) => boolean;
+  private readonly record = new CsvRecord();
+  private carry: Uint8Array | null = null;
+  private line = 1;
+  private first = true;
+  private stopped = false;
+  failure: Issue | undefined;
+
+  constructor(file: string, delimiter: ',' | ';' | '\t', onRecord: (record: CsvRecord, line: number) => boolean) {
+    this.file = file;
+    this.delimiter = delimiter.charCodeAt(0);
+    this.onRecord = onRecord;
   }
-  return error('invalid_csv', `${file}:${line}`, `the file requires well-formed CSV: ${record.message ?? String(cause)}`);
+
+  /** Scan one chunk; false once scanning has stopped (a failure, or `onRecord` returned false). */
+  push(chunk: Uint8Array): boolean {
+    if (this.stopped) return false;
+    let bytes = chunk;
+    if (this.carry !== null) {
+      bytes = new Uint8Array(this.carry.length + chunk.length);
+      bytes.set(this.carry);
+      bytes.set(chunk, this.carry.length);
+      this.carry = null;
+    }
+    this.scan(bytes, false);
+    return !this.stopped;
+  }
+
+  /** The end of the input: the last record may lack a line end. */
+  end(): boolean {
+    if (this.stopped) return false;
+    const bytes = this.carry ?? new Uint8Array(0);
+    this.carry = null;
+    this.scan(bytes, true);
+    return !this.stopped;
+  }
+
+  private fail(code: string, line: number, message: string): void {
+    this.failure = error(code, `${this.file}:${line}`, message);
+    this.stopped = true;
+  }
+
+  private scan(bytes: Uint8Array, final: boolean): void {
+    let position = 0;
+    if (this.first) {
+      if (bytes.length < 3 && !final) {
+        this.carry = bytes;
+        return;
+      }
+      this.first = false;
+      if (bytes[0] === 0xef && bytes[1] === 0xbb && bytes[2] === 0xbf) position = 3;
+    }
+    const length = bytes.length;
+    const delimiter = this.delimiter;
+    const record = this.record;
+    record.bytes = bytes;
+    while (position < length) {
+      const recordStart = position;
+      const startLine = this.line;
+      let lines = 0;
+      record.count = 0;
+      let i = position;
+      let complete = false;
+      const limit = recordStart + MAX_CSV_LINE_BYTES;
+      // One field per turn.
+      for (;;) {
+        if (bytes[i] === QUOTE && i < length) {
+          i += 1;
+          const start = i;
+          let quoting = 1;
+          let closed = -1;
+          while (i < length) {
+            const byte = bytes[i] as number;
+            if (byte === QUOTE) {
+              if (bytes[i + 1] === QUOTE) {
+                quoting = 2;
+                i += 2;
+                continue;
+              }
+              if (i + 1 >= length && !final) break; // the next byte decides
+              closed = i;
+              i += 1;
+              break;
+            }
+            if (byte === LINE_FEED) lines += 1;
+            i += 1;
+            if (i > limit) break;
+          }
+          if (i > limit) {
+            this.fail('line_too_long', startLine, `a line requires at most ${MAX_CSV_LINE_BYTES} bytes (the documented limit), got a longer one`);
+            return;
+          }
+          if (closed < 0) {
+            if (final) this.fail('invalid_csv', startLine, 'the file requires well-formed CSV: a quoted field is not closed before the end of the file');
+            break;
+          }
+          record.add(start, closed, quoting);
+        } else {
+          const start = i;
+          const stop = Math.min(length, limit + 1);
+          while (i < stop) {
+            const byte = bytes[i] as number;
+            if (byte === delimiter || byte === LINE_FEED || byte === CARRIAGE_RETURN) break;
+            if (byte === QUOTE) {
+              this.fail('invalid_csv', startLine, 'the file requires well-formed CSV: a quote may only open a field, got one inside an unquoted field');
+              return;
+            }
+            i += 1;
+          }
+          if (i > limit) {
+            this.fail('line_too_long', startLine, `a line requires at most ${MAX_CSV_LINE_BYTES} bytes (the documented limit), got a longer one`);
+            return;
+          }
+          record.add(start, i, 0);
+        }
+        if (i >= length) {
+          complete = final;
+          break;
+        }
+        const next = bytes[i] as number;
+        if (next === delimiter) {
+          i += 1;
+          continue;
+        }
+        if (next === LINE_FEED) {
+          i += 1;
+          lines += 1;
+          complete = true;
+          break;
+        }
+        if (next === CARRIAGE_RETURN) {
+          if (i + 1 >= length && !final) break; // a CRLF split across chunks
+          i += bytes[i + 1] === LINE_FEED ? 2 : 1;
+          lines += 1;
+          complete = true;
+          break;
+        }
+        this.fail('invalid_csv', startLine, 'the file requires well-formed CSV: a closing quote must be followed by a delimiter or a line end');
+        return;
+      }
+      if (this.stopped) return;
+      if (!complete) {
+        if (i - recordStart > MAX_CSV_LINE_BYTES) {
+          this.fail('line_too_long', startLine, `a line requires at most ${MAX_CSV_LINE_BYTES} bytes (the documented limit), got a longer one`);
+          return;
+        }
+        this.carry = bytes.slice(recordStart);
+        return;
+      }
+      this.line = startLine + lines;
+      position = i;
+      // An empty line is one empty unquoted field.
+      if (record.count === 1 && record.quoting[0] === 0 && record.starts[0] === record.ends[0]) continue;
+      if (!this.onRecord(record, startLine)) {
+        this.stopped = true;
+        return;
+      }
+    }
+  }
 }
 
-interface ParsedRecord {
-  record: string[];
-  info: { lines: number };
+/** Scan trials CSV bytes, chunk by chunk, into a builder. */
+export class TrialsReader {
+  readonly builder: TrialsBuilder;
+  private readonly scanner: CsvScanner;
+  private headerSeen = false;
+  private readonly onProgress: ((rows: number) => void) | undefined;
+
+  constructor(file: string, delimiter: ',' | ';' | '\t', options: { capacity?: number; onProgress?: (rows: number) => void } = {}) {
+    this.builder = new TrialsBuilder(file, options.capacity);
+    this.onProgress = options.onProgress;
+    this.scanner = new CsvScanner(file, delimiter, (record, line) => {
+      if (!this.headerSeen) {
+        this.headerSeen = true;
+        return this.builder.header(record.texts(), line, delimiter);
+      }
+      if (!this.builder.row(record, line)) return false;
+      if (this.onProgress !== undefined && this.builder.rows % 1_000_000 === 0) this.onProgress(this.builder.rows);
+      return true;
+    });
+  }
+
+  push(chunk: Uint8Array): boolean {
+    return this.scanner.push(chunk);
+  }
+
+  /** The columns, or the first failure (with the number of good rows before it). */
+  finish(): Result<Trials> {
+    this.scanner.end();
+    const file = this.builder.file;
+    if (this.scanner.failure !== undefined) return fail([this.scanner.failure]);
+    if (!this.headerSeen) return fail([error('empty_file', file, 'a trials file requires a header line and rows, got an empty file')]);
+    return this.builder.finish();
+  }
 }
 
 /** Parse trials from CSV text already in memory (tests, small files, payloads). */
 export function parseTrialsCsv(text: string, file = 'trials.csv'): Result<Trials> {
-  const firstLine = text.replace(/^\uFEFF/, '').split(/\r?\n/, 1)[0] ?? '';
-  if (text.replace(/^\uFEFF/, '').trim() === '') {
+  const body = text.replace(/^\uFEFF/, '');
+  if (body.trim() === '') {
     return fail([error('empty_file', file, 'a trials file requires a header line and rows, got an empty file')]);
   }
-  const delimiter = detectDelimiter(firstLine);
-  const builder = new TrialsBuilder(file);
-  let records: ParsedRecord[];
-  try {
-    records = parseCsvSync(text, csvOptions(delimiter)) as unknown as ParsedRecord[];
-  } catch (cause) {
-    return fail([csvErrorIssue(file, cause)]);
-  }
-  const [head, ...rest] = records;
-  if (head === undefined) return fail([error('empty_file', file, 'a trials file requires a header line and rows, got an empty file')]);
-  if (!builder.header(head.record, head.info.lines, delimiter)) return builder.finish();
-  for (const { record, info } of rest) {
-    if (!builder.row(record, info.lines)) break;
-  }
-  return builder.finish();
+  const reader = new TrialsReader(file, detectDelimiter(body.split(/\r?\n/, 1)[0] ?? ''));
+  reader.push(Buffer.from(text, 'utf8'));
+  return reader.finish();
 }

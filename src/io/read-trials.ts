@@ -1,24 +1,36 @@
 /**
  * Reading a trials file from disk as a stream: memory stays proportional to
  * the columns, never to the text, and the size limits are enforced while
- * reading, not after.
+ * reading, not after. The bytes go through the CSV scanner of
+ * `formats/trials-csv.ts` one chunk at a time; no chunk is kept.
  */
 import { createReadStream } from 'node:fs';
-import { open } from 'node:fs/promises';
+import { open, stat } from 'node:fs/promises';
 import { basename } from 'node:path';
-import { parse } from 'csv-parse';
 import { type Result, error, fail } from '../issues.js';
-import { type Trials, TrialsBuilder, csvErrorIssue, csvOptions, detectDelimiter, MAX_CSV_LINE_BYTES } from '../formats/trials-csv.js';
+import { type Trials, MAX_CSV_LINE_BYTES, TrialsReader, detectDelimiter } from '../formats/trials-csv.js';
 
-async function readHead(path: string): Promise<string> {
+/** Bytes read per chunk. */
+const CHUNK_BYTES = 1 << 20;
+
+async function readHead(path: string): Promise<{ head: string; size: number }> {
   const handle = await open(path, 'r');
   try {
     const buffer = Buffer.alloc(MAX_CSV_LINE_BYTES);
     const { bytesRead } = await handle.read(buffer, 0, buffer.length, 0);
-    return buffer.subarray(0, bytesRead).toString('utf8');
+    const { size } = await stat(path);
+    return { head: buffer.subarray(0, bytesRead).toString('utf8'), size };
   } finally {
     await handle.close();
   }
+}
+
+/** Rows expected from the file size and the mean line length of the first 64 KiB (a capacity hint, not a limit). */
+function expectedRows(head: string, size: number): number {
+  const lines = head.split('\n').length - 1;
+  if (lines < 2) return 1024;
+  const meanBytes = Buffer.byteLength(head.slice(0, head.lastIndexOf('\n') + 1)) / lines;
+  return Math.ceil((size / meanBytes) * 1.02) + 16;
 }
 
 /**
@@ -32,35 +44,30 @@ export async function readTrialsFile(
 ): Promise<Result<Trials>> {
   const file = basename(path);
   let head: string;
+  let size: number;
   try {
-    head = await readHead(path);
+    ({ head, size } = await readHead(path));
   } catch (cause) {
     return fail([error('cannot_read', path, `the file requires to be readable: ${(cause as Error).message}`)]);
   }
   const body = head.replace(/^\uFEFF/, '');
   if (body.trim() === '') return fail([error('empty_file', file, 'a trials file requires a header line and rows, got an empty file')]);
   const delimiter = detectDelimiter(body.split(/\r?\n/, 1)[0] ?? '');
-  const builder = new TrialsBuilder(file);
-  const source = createReadStream(path);
+  const reader = new TrialsReader(file, delimiter, {
+    capacity: expectedRows(head, size),
+    ...(options.onProgress === undefined ? {} : { onProgress: options.onProgress }),
+  });
+  const source = createReadStream(path, { highWaterMark: CHUNK_BYTES });
   const onChunk = options.onChunk;
-  if (onChunk !== undefined) source.on('data', (chunk) => onChunk(chunk as Buffer));
-  const parser = source.pipe(parse(csvOptions(delimiter)));
-  let first = true;
   try {
-    for await (const item of parser as AsyncIterable<{ record: string[]; info: { lines: number } }>) {
-      if (first) {
-        first = false;
-        if (!builder.header(item.record, item.info.lines, delimiter)) break;
-        continue;
-      }
-      if (!builder.row(item.record, item.info.lines)) break;
-      if (options.onProgress && builder.rows % 1_000_000 === 0) options.onProgress(builder.rows);
+    for await (const chunk of source as AsyncIterable<Buffer>) {
+      onChunk?.(chunk);
+      if (!reader.push(chunk)) break;
     }
   } catch (cause) {
-    return fail([csvErrorIssue(file, cause)]);
+    return fail([error('cannot_read', path, `the file requires to be readable: ${(cause as Error).message}`)]);
   } finally {
-    parser.destroy();
+    source.destroy();
   }
-  if (first) return fail([error('empty_file', file, 'a trials file requires a header line and rows, got an empty file')]);
-  return builder.finish();
+  return reader.finish();
 }
