@@ -13,8 +13,9 @@
  * grouped deviance is defined against the rounds, which merging would change.
  *
  * Collapsing uses an open-addressing hash table on the raw covariate bits
- * (Knuth, TAOCP vol. 3, §6.4, linear probing), so it costs O(rows) time and
- * O(rows) 4-byte slots, and never an object or a string per row.
+ * (Knuth, TAOCP vol. 3, §6.4, linear probing), grown with the number of
+ * distinct points, so it costs O(rows) time and O(groups) memory, and never an
+ * object or a string per row.
  */
 import type { Trials } from '../formats/trials-csv.js';
 import type { DesignMatrix } from '../numeric/design-matrix.js';
@@ -68,8 +69,8 @@ function finalise(hash: number): number {
  * Collapse trials into binomial counts at distinct (latency, scale,
  * difficulty, prior weight[, player]) points, in order of first appearance.
  *
- * Cost: O(rows) expected time; memory a 4-byte group index per source row
- * plus a table of at most 2 rows slots, released on return.
+ * Cost: O(rows) expected time; memory a 4-byte group index per source row,
+ * a table of 2 to 4 slots of 8 bytes per group and the collapsed columns.
  *
  * @example
  * const collapsed = collapseTrials(trials); // 1,000,000 attempts at 20 conditions -> 20 rows
@@ -94,72 +95,135 @@ export function collapseTrials(trials: Trials, options: CollapseOptions = {}): C
       sourceRows: rows,
     };
   }
-  let capacity = 16;
-  while (capacity < rows * 2) capacity *= 2;
-  const mask = capacity - 1;
-  const table = new Int32Array(capacity).fill(-1);
-  // First source row of each group, and the group of each source row.
-  const representative = new Int32Array(rows);
+  // Pass 1: open addressing on (group + 1, 32-bit hash) pairs, kept at most
+  // half full and doubled as groups appear, so its size follows the groups;
+  // a row takes the group whose stored hash equals its own, and a new group
+  // appends its key to `records`. Pass 2 checks every row's key against its
+  // group's exactly and adds its counts there: one record per group holds
+  // the key and the counts side by side, so a row touches one record. The
+  // rare row whose hash collided with another point's is grouped by its exact
+  // key in a map instead.
+  const hasWeight = weights !== null;
+  const hasPlayer = playerCodes !== null;
+  // Record: latency, scale, difficulty, successes, attempts[, weight][, player].
+  const stride = 5 + (hasWeight ? 1 : 0) + (hasPlayer ? 1 : 0);
+  const weightAt = 5;
+  const playerAt = hasWeight ? 6 : 5;
+  let capacity = 1 << 12;
+  let table: Int32Array<ArrayBufferLike> = new Int32Array(capacity * 2);
+  let records: Float64Array<ArrayBufferLike> = new Float64Array(stride << 12);
   const groupOf = new Int32Array(rows);
-  let groups = 0;
+  const latencies = trials.latency;
+  const scales = trials.scale;
+  // The hashes first, in a loop of their own (held in `groupOf` until pass 1 replaces them by groups).
   for (let i = 0; i < rows; i += 1) {
-    const latency = trials.latency[i] as number;
-    const scale = trials.scale[i] as number;
-    const level = difficulty[i] as number;
-    const weight = weights === null ? 1 : (weights[i] as number);
-    const player = playerCodes === null ? 0 : (playerCodes[i] as number);
     let hash = 0x811c9dc5;
-    hash = mix(hash, latency);
-    hash = mix(hash, scale);
-    hash = mix(hash, level);
-    hash = mix(hash, weight);
-    hash = Math.imul(hash ^ player, 0x01000193);
-    let slot = finalise(hash) & mask;
+    hash = mix(hash, latencies[i] as number);
+    hash = mix(hash, scales[i] as number);
+    hash = mix(hash, difficulty[i] as number);
+    if (weights !== null) hash = mix(hash, weights[i] as number);
+    if (playerCodes !== null) hash = Math.imul(hash ^ (playerCodes[i] as number), 0x01000193);
+    groupOf[i] = finalise(hash) | 0;
+  }
+  let groups = 0;
+  const append = (i: number): number => {
+    if ((groups + 1) * stride > records.length) records = grow(records, (groups + 1) * stride);
+    const base = groups * stride;
+    records[base] = latencies[i] as number;
+    records[base + 1] = scales[i] as number;
+    records[base + 2] = difficulty[i] as number;
+    if (weights !== null) records[base + weightAt] = weights[i] as number;
+    if (playerCodes !== null) records[base + playerAt] = playerCodes[i] as number;
+    groups += 1;
+    return groups - 1;
+  };
+  for (let i = 0; i < rows; i += 1) {
+    const full = groupOf[i] as number;
+    let slot = full & (capacity - 1);
     for (;;) {
-      const group = table[slot] as number;
-      if (group < 0) {
-        table[slot] = groups;
-        representative[groups] = i;
-        groupOf[i] = groups;
-        groups += 1;
+      const stored = table[2 * slot] as number;
+      if (stored === 0) {
+        if (2 * (groups + 1) > capacity) {
+          table = rehash(table, capacity);
+          capacity *= 2;
+          slot = full & (capacity - 1);
+          while (table[2 * slot] !== 0) slot = (slot + 1) & (capacity - 1);
+        }
+        table[2 * slot] = groups + 1;
+        table[2 * slot + 1] = full;
+        groupOf[i] = append(i);
         break;
       }
-      const r = representative[group] as number;
-      if (
-        trials.latency[r] === latency &&
-        trials.scale[r] === scale &&
-        difficulty[r] === level &&
-        (weights === null || weights[r] === weight) &&
-        (playerCodes === null || playerCodes[r] === player)
-      ) {
-        groupOf[i] = group;
+      if (table[2 * slot + 1] === full) {
+        groupOf[i] = stored - 1;
         break;
       }
-      slot = (slot + 1) & mask;
+      slot = (slot + 1) & (capacity - 1);
     }
   }
-  const successes = new Float64Array(groups);
-  const attempts = new Float64Array(groups);
+  table = new Int32Array(0);
+  let collided: Map<string, number> | null = null;
   for (let i = 0; i < rows; i += 1) {
-    const group = groupOf[i] as number;
-    successes[group] = (successes[group] as number) + (trials.successes[i] as number);
-    attempts[group] = (attempts[group] as number) + (trials.attempts[i] as number);
+    let base = (groupOf[i] as number) * stride;
+    if (
+      records[base] !== latencies[i] ||
+      records[base + 1] !== scales[i] ||
+      records[base + 2] !== difficulty[i] ||
+      (weights !== null && records[base + weightAt] !== weights[i]) ||
+      (playerCodes !== null && records[base + playerAt] !== playerCodes[i])
+    ) {
+      collided ??= new Map();
+      const key = `${latencies[i]} ${scales[i]} ${difficulty[i]} ${weights?.[i] ?? 1} ${playerCodes?.[i] ?? 0}`;
+      let group = collided.get(key);
+      if (group === undefined) {
+        group = append(i);
+        collided.set(key, group);
+      }
+      base = group * stride;
+    }
+    records[base + 3] = (records[base + 3] as number) + (trials.successes[i] as number);
+    records[base + 4] = (records[base + 4] as number) + (trials.attempts[i] as number);
   }
-  const pick = <T extends Float64Array | Int32Array>(source: ArrayLike<number>, target: T): T => {
-    for (let g = 0; g < groups; g += 1) target[g] = source[representative[g] as number] as number;
+  const column = (offset: number): Float64Array => {
+    const target = new Float64Array(groups);
+    for (let g = 0; g < groups; g += 1) target[g] = records[g * stride + offset] as number;
     return target;
   };
+  const player = new Int32Array(hasPlayer ? groups : 0);
+  for (let g = 0; g < player.length; g += 1) player[g] = records[g * stride + playerAt] as number;
   return {
     rows: groups,
-    latency: pick(trials.latency, new Float64Array(groups)),
-    scale: pick(trials.scale, new Float64Array(groups)),
-    difficulty: pick(difficulty, new Float64Array(groups)),
-    player: playerCodes === null ? null : pick(playerCodes, new Int32Array(groups)),
-    successes,
-    attempts,
-    weight: weights === null ? new Float64Array(groups).fill(1) : pick(weights, new Float64Array(groups)),
+    latency: column(0),
+    scale: column(1),
+    difficulty: column(2),
+    player: hasPlayer ? player : null,
+    successes: column(3),
+    attempts: column(4),
+    weight: hasWeight ? column(weightAt) : new Float64Array(groups).fill(1),
     sourceRows: rows,
   };
+}
+
+function grow(values: Float64Array<ArrayBufferLike>, atLeast: number): Float64Array<ArrayBufferLike> {
+  const next = new Float64Array(Math.max(atLeast, values.length * 2));
+  next.set(values);
+  return next;
+}
+
+/** The (group + 1, hash) table doubled, every entry re-inserted by its stored hash. */
+function rehash(table: Int32Array<ArrayBufferLike>, capacity: number): Int32Array<ArrayBufferLike> {
+  const next = new Int32Array(capacity * 4);
+  const mask = capacity * 2 - 1;
+  for (let old = 0; old < capacity; old += 1) {
+    const entry = table[2 * old] as number;
+    if (entry === 0) continue;
+    const entryHash = table[2 * old + 1] as number;
+    let position = entryHash & mask;
+    while (next[2 * position] !== 0) position = (position + 1) & mask;
+    next[2 * position] = entry;
+    next[2 * position + 1] = entryHash;
+  }
+  return next;
 }
 
 /** The rows of a collapsed set where `keep[i]` is non-zero (for cross-validation folds). */

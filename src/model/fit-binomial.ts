@@ -223,7 +223,14 @@ export function fitBinomial(data: BinomialData, options: BinomialFitOptions = {}
     proportions[i] = (successes[i] as number) / (trials[i] as number);
     glmWeights[i] = (trials[i] as number) * (priorWeights[i] as number);
   }
-  const rows: GlmRows = { proportions, weights: glmWeights };
+  let saturated = 0;
+  for (let i = 0; i < n; i += 1) {
+    const proportion = proportions[i] as number;
+    const weight = glmWeights[i] as number;
+    if (proportion > 0) saturated += weight * proportion * Math.log(proportion);
+    if (proportion < 1) saturated += weight * (1 - proportion) * Math.log1p(-proportion);
+  }
+  const rows: GlmRows = { proportions, weights: glmWeights, saturated };
   const base = { link: linkName, names: design.names };
   const exponents = columnExponents(kept);
 
@@ -505,6 +512,8 @@ interface GlmRows {
   readonly proportions: Float64Array;
   /** GLM weight = prior weight * trials. */
   readonly weights: Float64Array;
+  /** sum w [y log y + (1 - y) log(1 - y)] (0 log 0 = 0): the saturated log-likelihood kernel, for the deviance. */
+  readonly saturated: number;
 }
 
 interface LinkState {
@@ -562,12 +571,119 @@ interface IterationResult {
  * dmu/deta, the working weight w n (dmu/deta)^2 / V and the working response
  * z = eta + (y - mu) / (dmu/deta), folded at once into `triangle` by the
  * Givens row update; returns the grouped deviance at those coefficients. No
- * per-row temporaries: the cost is one sweep of the design per pass.
- *
- * The logit link is written out (one exp per row, the same values as
- * `links.ts`); the other links call their link object, one per fit.
+ * per-row temporaries: the cost is one sweep of the design per pass. The
+ * link is chosen once per pass, outside the row loop.
  */
 function fusedPass(
+  design: DesignMatrix,
+  rows: GlmRows,
+  link: Link,
+  coefficients: ArrayLike<number> | null,
+  linearPredictor: Float64Array,
+  triangle: RowTriangle,
+  factors: Float64Array,
+): number {
+  return link.name === 'logit' && coefficients !== null
+    ? logitPass(design, rows, coefficients, linearPredictor, triangle, factors)
+    : genericPass(design, rows, link, coefficients, linearPredictor, triangle, factors);
+}
+
+/**
+ * The pass for the logit link, written out: with e = exp(-|eta|),
+ * mu = 1 / (1 + e) or e / (1 + e) (whichever does not overflow),
+ * dmu/deta = V = mu (1 - mu), so the working weight is n V and
+ * z = eta + (y - mu) / V; log mu and log(1 - mu) come from one log1p(e),
+ * and the deviance is 2 (sum w [y log y + (1-y) log(1-y)] - sum w [y log mu +
+ * (1-y) log(1-mu)]) with the first sum computed once per fit
+ * (`rows.saturated`). The Givens update is that of `RowTriangle.include`
+ * with one division per column.
+ */
+function logitPass(
+  design: DesignMatrix,
+  rows: GlmRows,
+  coefficients: ArrayLike<number>,
+  linearPredictor: Float64Array,
+  triangle: RowTriangle,
+  factors: Float64Array,
+): number {
+  const n = design.rows;
+  const columns = design.columns;
+  const values = design.values;
+  const proportions = rows.proportions;
+  const glmWeights = rows.weights;
+  const row = triangle.scratch;
+  const diagonal = triangle.diagonal;
+  const upper = triangle.upper;
+  const theta = triangle.theta;
+  const beta = Float64Array.from(coefficients);
+  let logLikelihood = 0;
+  let residualSumOfSquares = 0;
+  for (let i = 0; i < n; i += 1) {
+    const weight = glmWeights[i] as number;
+    const proportion = proportions[i] as number;
+    let eta = 0;
+    for (let j = 0; j < columns; j += 1) {
+      const coefficient = beta[j] as number;
+      if (coefficient !== 0) eta += (values[j * n + i] as number) * coefficient;
+    }
+    linearPredictor[i] = eta;
+    const exponential = Math.exp(-Math.abs(eta));
+    const inverse = 1 / (1 + exponential);
+    const small = exponential * inverse;
+    const softplus = Math.log1p(exponential);
+    let mu: number;
+    let complement: number;
+    let logMu: number;
+    let logComplement: number;
+    if (eta >= 0) {
+      mu = inverse;
+      complement = small;
+      logMu = -softplus;
+      logComplement = -eta - softplus;
+    } else {
+      mu = small;
+      complement = inverse;
+      logMu = eta - softplus;
+      logComplement = -softplus;
+    }
+    if (proportion > 0) logLikelihood += weight * proportion * logMu;
+    if (proportion < 1) logLikelihood += weight * (1 - proportion) * logComplement;
+    const variance = mu * complement;
+    let w = weight * variance;
+    if (!(w > 0) || !Number.isFinite(w)) continue;
+    let y = eta + residualOf(proportion, mu, complement) / variance;
+    for (let j = 0; j < columns; j += 1) row[j] = (values[j * n + i] as number) * (factors[j] as number);
+    for (let j = 0; j < columns; j += 1) {
+      const xj = row[j] as number;
+      if (xj === 0) continue;
+      const dj = diagonal[j] as number;
+      const updated = dj + w * xj * xj;
+      const reciprocal = 1 / updated;
+      const c = dj * reciprocal;
+      const sine = w * xj * reciprocal;
+      w *= c;
+      diagonal[j] = updated;
+      const base = j * columns;
+      for (let m = j + 1; m < columns; m += 1) {
+        const xm = row[m] as number;
+        const r = upper[base + m] as number;
+        row[m] = xm - xj * r;
+        upper[base + m] = c * r + sine * xm;
+      }
+      const t = theta[j] as number;
+      const previous = y;
+      y = previous - xj * t;
+      theta[j] = c * t + sine * previous;
+      if (w === 0) break;
+    }
+    residualSumOfSquares += w * y * y;
+  }
+  triangle.residualSumOfSquares += residualSumOfSquares;
+  return Math.max(0, 2 * (rows.saturated - logLikelihood));
+}
+
+/** The pass for any link, through its link object (and for R's starting values). */
+function genericPass(
   design: DesignMatrix,
   rows: GlmRows,
   link: Link,
@@ -582,7 +698,6 @@ function fusedPass(
   const proportions = rows.proportions;
   const glmWeights = rows.weights;
   const row = triangle.scratch;
-  const logit = link.name === 'logit';
   let deviance = 0;
   for (let i = 0; i < n; i += 1) {
     const weight = glmWeights[i] as number;
@@ -596,23 +711,9 @@ function fusedPass(
       }
     }
     linearPredictor[i] = eta;
-    let mu: number;
-    let complement: number;
-    let derivative: number;
-    if (logit) {
-      // mu = 1 / (1 + exp(-eta)) or exp(eta) / (1 + exp(eta)), whichever does not overflow (links.ts).
-      const exponential = Math.exp(-Math.abs(eta));
-      const denominator = 1 + exponential;
-      const small = exponential / denominator;
-      const large = 1 / denominator;
-      mu = eta >= 0 ? large : small;
-      complement = eta >= 0 ? small : large;
-      derivative = exponential / (denominator * denominator);
-    } else {
-      mu = link.inverse(eta);
-      complement = link.inverseComplement(eta);
-      derivative = link.derivative(eta);
-    }
+    const mu = link.inverse(eta);
+    const complement = link.inverseComplement(eta);
+    const derivative = link.derivative(eta);
     let term = 0;
     if (proportion > 0) term += proportion * Math.log(proportion / mu);
     if (proportion < 1) term += (1 - proportion) * Math.log((1 - proportion) / complement);
