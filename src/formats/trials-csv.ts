@@ -18,7 +18,6 @@
 import { z } from 'zod';
 import { type Issue, type Result, error, fail, ok, show, warning } from '../issues.js';
 import { MAX_LATENCY_MS } from './lobby-file.js';
-import { GrowableFloat64 } from './growable.js';
 
 export const TRIALS_FORMAT = 'lagparity/trials@1';
 
@@ -94,6 +93,35 @@ export function detectDelimiter(headerLine: string): ',' | ';' | '\t' {
 }
 
 const DELIMITER_NAMES = { ',': 'comma', ';': 'semicolon', '\t': 'tab' } as const;
+
+/**
+ * A column of doubles grown by doubling; {@link finish} returns a view of the
+ * buffer when it is at least 7/8 full (no copy, so a well-sized column is
+ * never held twice), else a trimmed copy.
+ */
+class FloatColumn {
+  private buffer: Float64Array;
+  length = 0;
+
+  constructor(capacity: number) {
+    this.buffer = new Float64Array(Math.max(16, capacity));
+  }
+
+  push(value: number): void {
+    if (this.length === this.buffer.length) {
+      const next = new Float64Array(this.buffer.length * 2);
+      next.set(this.buffer);
+      this.buffer = next;
+    }
+    this.buffer[this.length] = value;
+    this.length += 1;
+  }
+
+  finish(): Float64Array {
+    const filled = this.buffer.subarray(0, this.length);
+    return this.length * 8 >= this.buffer.length * 7 ? filled : filled.slice();
+  }
+}
 
 /** Powers of ten that are exact in a double (10^0 .. 10^22). */
 const POWERS_OF_TEN = Float64Array.from({ length: 23 }, (_, k) => 10 ** k);
@@ -224,7 +252,7 @@ class NameCodes {
     const name = Buffer.from(bytes.buffer, bytes.byteOffset, bytes.byteLength).toString('utf8', start, end);
     this.push(name);
     const code = this.codes[this.length - 1] as number;
-    if (code === this.known.length && this.known.length < 16) this.known.push(bytes.slice(start, end));
+    if (code === this.known.length && this.known.length < 16) this.known.push(new Uint8Array(bytes.subarray(start, end)));
     this.last = code < this.known.length ? code : -1;
   }
 
@@ -239,7 +267,8 @@ class NameCodes {
   }
 
   finish(): Int32Array {
-    return this.codes.slice(0, this.length);
+    const filled = this.codes.subarray(0, this.length);
+    return this.length * 8 >= this.codes.length * 7 ? filled : filled.slice();
   }
 }
 
@@ -251,11 +280,11 @@ export class TrialsBuilder {
   readonly file: string;
   private columnIndex = new Map<KnownColumn, number>();
   private shape: 'per_attempt' | 'per_round' = 'per_attempt';
-  private readonly latency: GrowableFloat64;
-  private readonly scale: GrowableFloat64;
-  private readonly successes: GrowableFloat64;
-  private readonly attempts: GrowableFloat64;
-  private weight: GrowableFloat64;
+  private readonly latency: FloatColumn;
+  private readonly scale: FloatColumn;
+  private readonly successes: FloatColumn;
+  private readonly attempts: FloatColumn;
+  private weight: FloatColumn;
   private readonly capacity: number;
   private readonly difficulty: NameCodes;
   private readonly player: NameCodes;
@@ -278,11 +307,11 @@ export class TrialsBuilder {
     this.file = file;
     const size = Math.max(16, Math.min(MAX_TRIAL_ROWS, Math.ceil(capacity)));
     this.capacity = size;
-    this.latency = new GrowableFloat64(size);
-    this.scale = new GrowableFloat64(size);
-    this.successes = new GrowableFloat64(size);
-    this.attempts = new GrowableFloat64(size);
-    this.weight = new GrowableFloat64(16);
+    this.latency = new FloatColumn(size);
+    this.scale = new FloatColumn(size);
+    this.successes = new FloatColumn(size);
+    this.attempts = new FloatColumn(size);
+    this.weight = new FloatColumn(16);
     this.difficulty = new NameCodes(size);
     this.player = new NameCodes(16);
   }
@@ -332,7 +361,7 @@ export class TrialsBuilder {
     this.attemptsAt = at('attempts');
     this.weightAt = at('weight');
     this.playerAt = at('player');
-    if (this.weightAt >= 0) this.weight = new GrowableFloat64(this.capacity);
+    if (this.weightAt >= 0) this.weight = new FloatColumn(this.capacity);
     if (unknown.length > 0) {
       this.warnings.push(warning('unknown_column', this.where(line), `columns ignored: ${unknown.map((name) => show(name)).join(', ')}`));
     }
@@ -494,6 +523,7 @@ export class CsvScanner {
   private readonly onRecord: (record: CsvRecord, line: number) => boolean;
   private readonly record = new CsvRecord();
   private carry: Uint8Array | null = null;
+  private work = new Uint8Array(0);
   private line = 1;
   private first = true;
   private stopped = false;
@@ -510,9 +540,12 @@ export class CsvScanner {
     if (this.stopped) return false;
     let bytes = chunk;
     if (this.carry !== null) {
-      bytes = new Uint8Array(this.carry.length + chunk.length);
-      bytes.set(this.carry);
-      bytes.set(chunk, this.carry.length);
+      // The unfinished record, then the chunk, in one reused buffer.
+      const needed = this.carry.length + chunk.length;
+      if (this.work.length < needed) this.work = new Uint8Array(needed + (needed >> 2));
+      this.work.set(this.carry);
+      this.work.set(chunk, this.carry.length);
+      bytes = this.work.subarray(0, needed);
       this.carry = null;
     }
     this.scan(bytes, false);
@@ -537,7 +570,7 @@ export class CsvScanner {
     let position = 0;
     if (this.first) {
       if (bytes.length < 3 && !final) {
-        this.carry = bytes;
+        this.carry = new Uint8Array(bytes); // a copy (Buffer#slice would be a view)
         return;
       }
       this.first = false;
@@ -637,7 +670,7 @@ export class CsvScanner {
           this.fail('line_too_long', startLine, `a line requires at most ${MAX_CSV_LINE_BYTES} bytes (the documented limit), got a longer one`);
           return;
         }
-        this.carry = bytes.slice(recordStart);
+        this.carry = new Uint8Array(bytes.subarray(recordStart)); // a copy: the caller may reuse the chunk
         return;
       }
       this.line = startLine + lines;

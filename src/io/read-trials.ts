@@ -4,7 +4,6 @@
  * reading, not after. The bytes go through the CSV scanner of
  * `formats/trials-csv.ts` one chunk at a time; no chunk is kept.
  */
-import { createReadStream } from 'node:fs';
 import { open, stat } from 'node:fs/promises';
 import { basename } from 'node:path';
 import { type Result, error, fail } from '../issues.js';
@@ -57,17 +56,27 @@ export async function readTrialsFile(
     capacity: expectedRows(head, size),
     ...(options.onProgress === undefined ? {} : { onProgress: options.onProgress }),
   });
-  const source = createReadStream(path, { highWaterMark: CHUNK_BYTES });
+  // One buffer, read into again and again: no chunk outlives its scan.
   const onChunk = options.onChunk;
+  let handle;
   try {
-    for await (const chunk of source as AsyncIterable<Buffer>) {
+    handle = await open(path, 'r');
+  } catch (cause) {
+    return fail([error('cannot_read', path, `the file requires to be readable: ${(cause as Error).message}`)]);
+  }
+  try {
+    const buffer = Buffer.allocUnsafe(CHUNK_BYTES);
+    for (;;) {
+      const { bytesRead } = await handle.read(buffer, 0, CHUNK_BYTES, null);
+      if (bytesRead === 0) break;
+      const chunk = buffer.subarray(0, bytesRead);
       onChunk?.(chunk);
       if (!reader.push(chunk)) break;
     }
   } catch (cause) {
     return fail([error('cannot_read', path, `the file requires to be readable: ${(cause as Error).message}`)]);
   } finally {
-    source.destroy();
+    await handle.close();
   }
   return reader.finish();
 }

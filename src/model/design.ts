@@ -111,7 +111,6 @@ export function collapseTrials(trials: Trials, options: CollapseOptions = {}): C
   const playerAt = hasWeight ? 6 : 5;
   let capacity = 1 << 12;
   let table: Int32Array<ArrayBufferLike> = new Int32Array(capacity * 2);
-  let records: Float64Array<ArrayBufferLike> = new Float64Array(stride << 12);
   const groupOf = new Int32Array(rows);
   const latencies = trials.latency;
   const scales = trials.scale;
@@ -125,18 +124,9 @@ export function collapseTrials(trials: Trials, options: CollapseOptions = {}): C
     if (playerCodes !== null) hash = Math.imul(hash ^ (playerCodes[i] as number), 0x01000193);
     groupOf[i] = finalise(hash) | 0;
   }
+  // Pass 1 keeps only each group's first row; the key records are filled once the number of groups is known.
+  let representative = new Int32Array(1 << 12);
   let groups = 0;
-  const append = (i: number): number => {
-    if ((groups + 1) * stride > records.length) records = grow(records, (groups + 1) * stride);
-    const base = groups * stride;
-    records[base] = latencies[i] as number;
-    records[base + 1] = scales[i] as number;
-    records[base + 2] = difficulty[i] as number;
-    if (weights !== null) records[base + weightAt] = weights[i] as number;
-    if (playerCodes !== null) records[base + playerAt] = playerCodes[i] as number;
-    groups += 1;
-    return groups - 1;
-  };
   for (let i = 0; i < rows; i += 1) {
     const full = groupOf[i] as number;
     let slot = full & (capacity - 1);
@@ -151,7 +141,14 @@ export function collapseTrials(trials: Trials, options: CollapseOptions = {}): C
         }
         table[2 * slot] = groups + 1;
         table[2 * slot + 1] = full;
-        groupOf[i] = append(i);
+        if (groups === representative.length) {
+          const grown = new Int32Array(groups * 2);
+          grown.set(representative);
+          representative = grown;
+        }
+        representative[groups] = i;
+        groupOf[i] = groups;
+        groups += 1;
         break;
       }
       if (table[2 * slot + 1] === full) {
@@ -162,6 +159,23 @@ export function collapseTrials(trials: Trials, options: CollapseOptions = {}): C
     }
   }
   table = new Int32Array(0);
+  let records: Float64Array<ArrayBufferLike> = new Float64Array(groups * stride);
+  const fill = (group: number, i: number): void => {
+    const base = group * stride;
+    records[base] = latencies[i] as number;
+    records[base + 1] = scales[i] as number;
+    records[base + 2] = difficulty[i] as number;
+    if (weights !== null) records[base + weightAt] = weights[i] as number;
+    if (playerCodes !== null) records[base + playerAt] = playerCodes[i] as number;
+  };
+  for (let group = 0; group < groups; group += 1) fill(group, representative[group] as number);
+  representative = new Int32Array(0);
+  const append = (i: number): number => {
+    if ((groups + 1) * stride > records.length) records = grow(records, (groups + 1) * stride);
+    fill(groups, i);
+    groups += 1;
+    return groups - 1;
+  };
   let collided: Map<string, number> | null = null;
   for (let i = 0; i < rows; i += 1) {
     let base = (groupOf[i] as number) * stride;

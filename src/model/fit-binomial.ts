@@ -198,37 +198,36 @@ export function fitBinomial(data: BinomialData, options: BinomialFitOptions = {}
   const warnings: string[] = [];
 
   // Rows that carry weight, and the GLM quantities on them.
-  const keep = new Array<boolean>(design.rows);
+  const keep = new Uint8Array(design.rows);
   let keptCount = 0;
   for (let i = 0; i < design.rows; i += 1) {
-    keep[i] = (data.trials[i] as number) * (data.priorWeights?.[i] ?? 1) > 0;
-    if (keep[i]) keptCount += 1;
+    const carries = (data.trials[i] as number) * (data.priorWeights?.[i] ?? 1) > 0;
+    keep[i] = carries ? 1 : 0;
+    if (carries) keptCount += 1;
   }
-  // Large data sets usually keep every row: then the design is used as it is, not copied.
-  const kept = keptCount === design.rows ? design : selectRows(design, keep);
+  const everyRow = keptCount === design.rows;
+  // Large data sets usually keep every row: then the design and the counts are used as they are, not copied.
+  const kept = everyRow ? design : selectRows(design, Array.from(keep, (value) => value === 1));
   const n = kept.rows;
-  const successes = new Float64Array(n);
-  const trials = new Float64Array(n);
-  const priorWeights = new Float64Array(n);
-  for (let i = 0, r = 0; i < design.rows; i += 1) {
-    if (!keep[i]) continue;
-    successes[r] = data.successes[i] as number;
-    trials[r] = data.trials[i] as number;
-    priorWeights[r] = data.priorWeights?.[i] ?? 1;
-    r += 1;
-  }
+  const select = (values: ArrayLike<number> | undefined): Float64Array => {
+    if (everyRow && values instanceof Float64Array) return values;
+    const selected = new Float64Array(n);
+    for (let i = 0, r = 0; i < design.rows; i += 1) if (keep[i] === 1) selected[r++] = values === undefined ? 1 : (values[i] as number);
+    return selected;
+  };
+  const successes = select(data.successes);
+  const trials = select(data.trials);
+  const priorWeights = select(data.priorWeights);
   const proportions = new Float64Array(n);
   const glmWeights = new Float64Array(n);
-  for (let i = 0; i < n; i += 1) {
-    proportions[i] = (successes[i] as number) / (trials[i] as number);
-    glmWeights[i] = (trials[i] as number) * (priorWeights[i] as number);
-  }
+  // sum w [y log y + (1 - y) log(1 - y)], no log at y = 0 or 1 where the terms vanish.
   let saturated = 0;
   for (let i = 0; i < n; i += 1) {
-    const proportion = proportions[i] as number;
-    const weight = glmWeights[i] as number;
-    if (proportion > 0) saturated += weight * proportion * Math.log(proportion);
-    if (proportion < 1) saturated += weight * (1 - proportion) * Math.log1p(-proportion);
+    const proportion = (successes[i] as number) / (trials[i] as number);
+    const weight = (trials[i] as number) * (priorWeights[i] as number);
+    proportions[i] = proportion;
+    glmWeights[i] = weight;
+    if (proportion > 0 && proportion < 1) saturated += weight * (proportion * Math.log(proportion) + (1 - proportion) * Math.log1p(-proportion));
   }
   const rows: GlmRows = { proportions, weights: glmWeights, saturated };
   const base = { link: linkName, names: design.names };
@@ -254,7 +253,7 @@ export function fitBinomial(data: BinomialData, options: BinomialFitOptions = {}
   warnings.push(...iteration.warnings);
   const { coefficients } = iteration;
   const linearPredictor = iteration.atEstimate?.linearPredictor ?? multiply(kept, coefficients);
-  const state = linkState(link, linearPredictor, rows);
+  const state = linkState(link, linearPredictor);
   let boundaryRows = 0;
   let stillMoving = false;
   for (let i = 0; i < n; i += 1) {
@@ -265,7 +264,7 @@ export function fitBinomial(data: BinomialData, options: BinomialFitOptions = {}
     }
   }
   // The last pass of the iteration already reduced the rows at the estimate.
-  const information = (iteration.atEstimate?.reduction ?? reduceWeightedRows(kept, squares(state.rootWeights), null, exponents)).qr;
+  const information = (iteration.atEstimate?.reduction ?? reduceWeightedRows(kept, squares(rootWeightsOf(link, linearPredictor, rows)), null, exponents)).qr;
   const weightedRankLost = iteration.weightsCollapsed || information.rank < columns;
   if (weightedRankLost && boundaryRows === 0) {
     // Numerically dependent columns that only show once weighted (e.g. tiny or subnormal entries).
@@ -350,11 +349,10 @@ export function fitBinomial(data: BinomialData, options: BinomialFitOptions = {}
   const nullMu = hasIntercept ? totalSuccessWeight / totalWeight : link.inverse(0);
   const nullComplement = hasIntercept ? (totalWeight - totalSuccessWeight) / totalWeight : link.inverseComplement(0);
   const bernoulliLogLikelihood = bernoulliLogLikelihoodOf(rows, state.mu, state.complement);
-  const nullBernoulliLogLikelihood = bernoulliLogLikelihoodOf(
-    rows,
-    new Float64Array(n).fill(nullMu),
-    new Float64Array(n).fill(nullComplement),
-  );
+  // At a constant fitted probability the log-likelihood needs only the weighted totals.
+  const nullBernoulliLogLikelihood =
+    (totalSuccessWeight > 0 ? totalSuccessWeight * Math.log(nullMu) : 0) +
+    (totalWeight - totalSuccessWeight > 0 ? (totalWeight - totalSuccessWeight) * Math.log(nullComplement) : 0);
   const parameterCount = columns;
   let deviance: number;
   let nullDeviance: number;
@@ -363,7 +361,7 @@ export function fitBinomial(data: BinomialData, options: BinomialFitOptions = {}
   let residualBase: number;
   if (likelihood === 'grouped') {
     deviance = groupedDeviance(rows, state.mu, state.complement);
-    nullDeviance = groupedDeviance(rows, new Float64Array(n).fill(nullMu), new Float64Array(n).fill(nullComplement));
+    nullDeviance = Math.max(0, 2 * (rows.saturated - nullBernoulliLogLikelihood));
     const { total, nonInteger } = logBinomialCoefficients(successes, trials, priorWeights);
     if (nonInteger) warnings.push('non-integer successes or trials: log binomial coefficients use rounded counts, as R does');
     logLikelihood = bernoulliLogLikelihood + total;
@@ -412,7 +410,7 @@ export function fitBinomial(data: BinomialData, options: BinomialFitOptions = {}
 
   let robust: BinomialRobust | null = null;
   if (data.clusters !== undefined && options.robust !== false) {
-    const { indices, count } = compactClusters(data.clusters, keep);
+    const { indices, count } = compactClusters(data.clusters, Array.from(keep, (value) => value === 1));
     const scores = new Float64Array(n * columns);
     for (let i = 0; i < n; i += 1) {
       const variance = (state.mu[i] as number) * (state.complement[i] as number);
@@ -420,7 +418,7 @@ export function fitBinomial(data: BinomialData, options: BinomialFitOptions = {}
       const factor =
         ((rows.weights[i] as number) *
           residualOf(rows.proportions[i] as number, state.mu[i] as number, state.complement[i] as number) *
-          (state.derivative[i] as number)) /
+          link.derivative(linearPredictor[i] as number)) /
         variance;
       for (let j = 0; j < columns; j += 1) scores[i * columns + j] = (kept.values[j * n + i] as number) * factor;
     }
@@ -519,28 +517,32 @@ interface GlmRows {
 interface LinkState {
   readonly mu: Float64Array;
   readonly complement: Float64Array;
-  readonly derivative: Float64Array;
-  /** sqrt of the IRLS weight w n (dmu/deta)^2 / (mu (1 - mu)); 0 where it underflows. */
-  readonly rootWeights: Float64Array;
 }
 
-function linkState(link: Link, linearPredictor: Float64Array, rows: GlmRows): LinkState {
+function linkState(link: Link, linearPredictor: Float64Array): LinkState {
   const n = linearPredictor.length;
   const mu = new Float64Array(n);
   const complement = new Float64Array(n);
-  const derivative = new Float64Array(n);
-  const rootWeights = new Float64Array(n);
   for (let i = 0; i < n; i += 1) {
     const value = linearPredictor[i] as number;
     mu[i] = link.inverse(value);
     complement[i] = link.inverseComplement(value);
-    derivative[i] = link.derivative(value);
-    const variance = (mu[i] as number) * (complement[i] as number);
-    const weight = ((rows.weights[i] as number) * (derivative[i] as number) * (derivative[i] as number)) / variance;
+  }
+  return { mu, complement };
+}
+
+/** sqrt of the IRLS weight w n (dmu/deta)^2 / (mu (1 - mu)); 0 where it underflows. */
+function rootWeightsOf(link: Link, linearPredictor: Float64Array, rows: GlmRows): Float64Array {
+  const rootWeights = new Float64Array(linearPredictor.length);
+  for (let i = 0; i < linearPredictor.length; i += 1) {
+    const value = linearPredictor[i] as number;
+    const derivative = link.derivative(value);
+    const variance = link.inverse(value) * link.inverseComplement(value);
+    const weight = ((rows.weights[i] as number) * derivative * derivative) / variance;
     // Like R's glm.fit `good` rows: a row whose dmu/deta or variance underflows carries no information.
     rootWeights[i] = variance > 0 && Number.isFinite(weight) ? Math.sqrt(weight) : 0;
   }
-  return { mu, complement, derivative, rootWeights };
+  return rootWeights;
 }
 
 function squares(rootWeights: Float64Array): Float64Array {
@@ -840,8 +842,10 @@ function iterate(
       break;
     }
   }
-  const lastLinearPredictorChange = new Float64Array(n);
+  // The change of the last accepted step, written over the older buffer (zeros before any step).
+  const lastLinearPredictorChange = previous;
   if (accepted > 0) for (let i = 0; i < n; i += 1) lastLinearPredictorChange[i] = (current[i] as number) - (previous[i] as number);
+  else lastLinearPredictorChange.fill(0);
   return {
     coefficients: coefficients ?? new Float64Array(columns),
     iterations,

@@ -34,7 +34,8 @@
  * infinity (the clipping scikit-learn's `log_loss` applies).
  *
  * Cost: (1 + factors + folds) fits, each O(iterations * rows * k^2) on the
- * collapsed rows.
+ * collapsed rows; the likelihood-ratio and fold refits start from the full
+ * fit's estimates, so they take fewer iterations.
  */
 import { type Issue, LagparityInputError, error, show, warning } from '../issues.js';
 import type { Trials } from '../formats/trials-csv.js';
@@ -356,7 +357,8 @@ export function fitModel(trials: Trials, options: FitModelOptions = {}): FitRepo
 
   const likelihoodRatioTests = options.likelihoodRatioTests === false ? [] : likelihoodRatios(prepared, fit, progress);
   const folds = options.folds ?? 5;
-  const crossValidation = folds >= 2 ? crossValidate(prepared, folds, options.seed ?? 1, warnings, progress) : null;
+  // Each fold's fit starts from the full fit's estimates.
+  const crossValidation = folds >= 2 ? crossValidate(prepared, folds, options.seed ?? 1, warnings, progress, fit.coefficients) : null;
   const calibration = calibrationTable(data, fit.fitted);
 
   return {
@@ -470,7 +472,13 @@ function structuralIssues(prepared: Prepared): { issues: Issue[]; aliased: TermN
   return { issues, aliased };
 }
 
-function runBinomial(prepared: Prepared, data: CollapsedTrials, design: TermDesign, clustered = prepared.clustered): BinomialFit {
+function runBinomial(
+  prepared: Prepared,
+  data: CollapsedTrials,
+  design: TermDesign,
+  clustered = prepared.clustered,
+  start: Float64Array | null = null,
+): BinomialFit {
   const clusters = clustered && data.player !== null ? data.player : undefined;
   return fitBinomial(
     {
@@ -480,7 +488,7 @@ function runBinomial(prepared: Prepared, data: CollapsedTrials, design: TermDesi
       priorWeights: data.weight,
       ...(clusters === undefined ? {} : { clusters }),
     },
-    { link: prepared.link, likelihood: prepared.likelihood, maxIterations: prepared.maxIterations },
+    { link: prepared.link, likelihood: prepared.likelihood, maxIterations: prepared.maxIterations, ...(start === null ? {} : { start }) },
   );
 }
 
@@ -593,7 +601,9 @@ function likelihoodRatios(prepared: Prepared, full: BinomialFitEstimated, progre
     }
     progress(`likelihood ratio: ${factor}`);
     const reducedDesign = buildDesign(prepared.data, kept, prepared.coding);
-    const reduced = runBinomial(prepared, prepared.data, reducedDesign, false);
+    // Started from the full fit's estimates of the columns it keeps (a closer start than R's, the same optimum).
+    const start = Float64Array.from(reducedDesign.matrix.names, (name) => full.coefficients[full.names.indexOf(name)] ?? 0);
+    const reduced = runBinomial(prepared, prepared.data, reducedDesign, false, start);
     if (reduced.status !== 'converged') {
       tests.push({ factor, status: 'not_tested', dropped_terms: dropped, reason: `the reduced model did not converge (${reduced.status})` });
       continue;
@@ -693,13 +703,13 @@ function predictProbabilities(prepared: Prepared, data: CollapsedTrials, coeffic
   return linear.map((value) => link.inverse(value));
 }
 
-function fitCoefficients(prepared: Prepared, data: CollapsedTrials): { status: string; coefficients: Float64Array | null } {
+function fitCoefficients(prepared: Prepared, data: CollapsedTrials, start: Float64Array | null): { status: string; coefficients: Float64Array | null } {
   const design = buildDesign(data, prepared.terms, prepared.coding);
   if (prepared.family === 'least_squares') {
     const fit = fitLeastSquares({ design: design.matrix, response: accuracy(data), weights: leastSquaresWeights(prepared, data) });
     return { status: fit.status, coefficients: fit.status === 'fitted' ? fit.coefficients : null };
   }
-  const fit = runBinomial(prepared, data, design, false);
+  const fit = runBinomial(prepared, data, design, false, start);
   return { status: fit.status, coefficients: fit.status === 'converged' ? fit.coefficients : null };
 }
 
@@ -709,6 +719,7 @@ function crossValidate(
   seed: number,
   warnings: Issue[],
   progress: (stage: string) => void,
+  start: Float64Array | null = null,
 ): CrossValidation | null {
   const { data } = prepared;
   const assignment = assignFolds(data, requestedFolds, seed);
@@ -730,7 +741,7 @@ function crossValidate(
     const players = heldOut.player === null || assignment.heldOut === 'rows' ? null : new Set(heldOut.player).size;
     let heldAttempts = 0;
     for (let i = 0; i < heldOut.rows; i += 1) heldAttempts += heldOut.attempts[i] as number;
-    const fitted = fitCoefficients(prepared, training);
+    const fitted = fitCoefficients(prepared, training, start);
     if (fitted.coefficients === null) {
       foldResults.push({ fold: fold + 1, status: fitted.status, players, held_out_attempts: heldAttempts, log_loss: null, brier: null });
       continue;
