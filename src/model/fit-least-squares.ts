@@ -3,20 +3,23 @@
  * optional cluster-robust (CR1) standard errors.
  *
  * Method: QR least squares, Golub & Van Loan (2013) §5.3.3 (never the normal
- * equations, whose squared condition number costs ~8 digits on NIST Longley);
+ * equations, whose squared condition number costs ~8 digits on NIST Longley),
+ * with the rows folded into a k-by-k triangle by Givens rotations
+ * (`numeric/row-reduction.ts`) so memory is O(k^2) beyond the inputs;
  * rank detection as R's `lm` (LINPACK `dqrdc2`, relative tolerance 1e-7);
  * CR1: Liang & Zeger (1986), Cameron & Miller (2015), see
  * `numeric/cluster-sandwich.ts`. Weighted rows are scaled by sqrt(weight);
  * rows of weight 0 are left out of the fit and of the degrees of freedom, as
  * R's `lm` does.
  *
- * Cost: O(n k^2).
+ * Cost: O(n k^2) time; O(n) memory for residuals and fitted values.
  */
 import { LagparityInputError, type Issue } from '../issues.js';
 import { checkClusters, checkFinite, checkLength } from '../numeric/array-checks.js';
 import { clusterSandwichCovariance, compactClusters } from '../numeric/cluster-sandwich.js';
-import { hasConstantColumn, selectRows, type DesignMatrix } from '../numeric/design-matrix.js';
-import { householderQr, inverseCrossProduct, solveLeastSquares } from '../numeric/householder-qr.js';
+import { hasConstantColumn, multiply, selectRows, type DesignMatrix } from '../numeric/design-matrix.js';
+import { inverseCrossProduct, solveLeastSquares } from '../numeric/householder-qr.js';
+import { reduceWeightedRows } from '../numeric/row-reduction.js';
 
 export interface LeastSquaresData {
   readonly design: DesignMatrix;
@@ -94,7 +97,9 @@ export function fitLeastSquares(data: LeastSquaresData): LeastSquaresFit {
   if (issues.length > 0) throw new LagparityInputError(issues);
 
   const keep = Array.from({ length: rows }, (_, i) => (data.weights?.[i] ?? 1) > 0);
-  const kept = selectRows(design, keep);
+  const everyRow = keep.every(Boolean);
+  // Usually every row has weight: then the design is used as it is, not copied.
+  const kept = everyRow ? design : selectRows(design, keep);
   const n = kept.rows;
   const columns = design.columns;
   const weights = new Float64Array(n);
@@ -105,12 +110,9 @@ export function fitLeastSquares(data: LeastSquaresData): LeastSquaresFit {
     response[r] = data.response[i] as number;
     r += 1;
   }
-  const root = weights.map(Math.sqrt);
-  const scaled = new Float64Array(n * columns);
-  for (let j = 0; j < columns; j += 1) {
-    for (let i = 0; i < n; i += 1) scaled[j * n + i] = (kept.values[j * n + i] as number) * (root[i] as number);
-  }
-  const qr = householderQr(scaled, n, columns);
+  // The rows folded into a k-by-k triangle (numeric/row-reduction.ts), never an n-by-k weighted copy.
+  const reduced = reduceWeightedRows(kept, weights, response);
+  const qr = reduced.qr;
   const aliased = qr.aliased.map((j) => design.names[j] as string);
   if (qr.rank < columns) {
     return {
@@ -121,17 +123,21 @@ export function fitLeastSquares(data: LeastSquaresData): LeastSquaresFit {
       warnings: [`design is rank deficient: ${aliased.map((name) => `\`${name}\``).join(', ')} aliased with earlier columns`],
     };
   }
-  const scaledResponse = response.map((value, i) => value * (root[i] as number));
-  const solution = solveLeastSquares(qr, scaledResponse);
-  const residuals = new Float64Array(n);
+  const coefficients = solveLeastSquares(qr, reduced.effects).coefficients;
+  // One step of iterative refinement (Golub & Van Loan 2013, §5.3.8; Björck 1967, BIT 7): the
+  // residuals are reduced with the same rows and weights, so the same triangle, and their
+  // least-squares solution corrects the coefficients for the rounding of the first solve.
+  let residuals = residualsOf(kept, coefficients, response);
+  const refinement = reduceWeightedRows(kept, weights, residuals);
+  const correction = solveLeastSquares(refinement.qr, refinement.effects).coefficients;
+  for (let j = 0; j < columns; j += 1) coefficients[j] = (coefficients[j] as number) + (correction[j] as number);
+  residuals = residualsOf(kept, coefficients, response);
   const fitted = new Float64Array(n);
   let residualSumOfSquares = 0;
   for (let i = 0; i < n; i += 1) {
-    const weightedResidual = solution.residuals[i] as number;
-    residualSumOfSquares += weightedResidual * weightedResidual;
-    const rootWeight = root[i] as number;
-    residuals[i] = weightedResidual / rootWeight;
-    fitted[i] = (response[i] as number) - (residuals[i] as number);
+    const residual = residuals[i] as number;
+    fitted[i] = (response[i] as number) - residual;
+    residualSumOfSquares += (weights[i] as number) * residual * residual;
   }
   const dfResidual = n - qr.rank;
   const unscaled = inverseCrossProduct(qr);
@@ -183,7 +189,7 @@ export function fitLeastSquares(data: LeastSquaresData): LeastSquaresFit {
     names: design.names,
     rank: qr.rank,
     aliased,
-    coefficients: solution.coefficients,
+    coefficients,
     standardErrors,
     covariance,
     residualStandardDeviation,
@@ -196,6 +202,12 @@ export function fitLeastSquares(data: LeastSquaresData): LeastSquaresFit {
     robust,
     warnings,
   };
+}
+
+/** y - X b, row by row. */
+function residualsOf(design: DesignMatrix, coefficients: Float64Array, response: Float64Array): Float64Array {
+  const fitted = multiply(design, coefficients);
+  return response.map((value, i) => value - (fitted[i] as number));
 }
 
 function diagonalRoots(matrix: Float64Array, size: number): Float64Array {
