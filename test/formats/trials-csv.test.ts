@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import fc from 'fast-check';
-import { detectDelimiter, parseDecimal, parseTrialsCsv, trialRowSchema } from '../../src/formats/trials-csv.js';
+import { TrialsReader, detectDelimiter, parseDecimal, parseTrialsCsv, trialRowSchema } from '../../src/formats/trials-csv.js';
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { MATCHES } from '../helpers/demo.js';
@@ -104,5 +104,72 @@ describe('detectDelimiter()', () => {
     expect(detectDelimiter('a;b;c')).toBe(';');
     expect(detectDelimiter('a\tb')).toBe('\t');
     expect(detectDelimiter('"a;b",c')).toBe(',');
+  });
+});
+
+describe('TrialsReader', () => {
+  const text =
+    '\uFEFFplayer,latency_ms,scale,difficulty,hit\r\n' +
+    'a,10.25,1,"easy, ""close""",1\r\n' +
+    '\r\n' +
+    'b,20,1.5,"two\nlines",0\n' +
+    'a,1e1,2, hard ,1\r' +
+    'c,0.125,1.25,hard,0';
+
+  /** Feed `bytes` in chunks of `size`, through one reused buffer as the file reader does. */
+  function readInChunks(bytes: Buffer, size: number) {
+    const reader = new TrialsReader('chunks.csv', ',');
+    const buffer = Buffer.alloc(size);
+    for (let start = 0; start < bytes.length; start += size) {
+      const count = bytes.copy(buffer, 0, start, Math.min(bytes.length, start + size));
+      if (!reader.push(buffer.subarray(0, count))) break;
+    }
+    return reader.finish();
+  }
+
+  it('reads the same columns whatever the chunk size, through a reused chunk buffer', () => {
+    const whole = parseTrialsCsv(text, 'chunks.csv');
+    expect(whole.ok).toBe(true);
+    if (!whole.ok) return;
+    expect(Array.from(whole.value.latency)).toEqual([10.25, 20, 10, 0.125]);
+    expect(whole.value.difficulty).toEqual({ kind: 'levels', levels: ['easy, "close"', 'two\nlines', 'hard'], codes: Int32Array.from([0, 1, 2, 2]) });
+    expect(whole.value.player?.ids).toEqual(['a', 'b', 'c']);
+    for (const size of [1, 2, 3, 7, 64, 4096]) {
+      const chunked = readInChunks(Buffer.from(text, 'utf8'), size);
+      expect(chunked, `chunks of ${size} bytes`).toEqual(whole);
+    }
+  });
+
+  it('names the line a record starts on after a quoted field spanning lines', () => {
+    const result = parseTrialsCsv('latency_ms,scale,difficulty,hit\n10,1,"a\nb",1\n11,x,a,1\n', 'lines.csv');
+    expect(result.ok).toBe(false);
+    if (!result.ok) expect(result.issues[0]?.location).toBe('lines.csv:4:scale');
+  });
+
+  it.each([
+    ['latency_ms,scale,difficulty,hit\n10,1,a"b,1\n', 'invalid_csv', 'trials.csv:2'],
+    ['latency_ms,scale,difficulty,hit\n10,1,"a"b,1\n', 'invalid_csv', 'trials.csv:2'],
+    [`latency_ms,scale,difficulty,hit\n10,1,"${'q'.repeat(70_000)}",1\n`, 'line_too_long', 'trials.csv:2'],
+  ])('refuses %# with %s at %s', (input, code, location) => {
+    const issue = failure(input);
+    expect(issue?.code).toBe(code);
+    expect(issue?.location).toBe(location);
+  });
+
+  it('reads plain decimals from bytes to the same double as Number() (fast-check, 500 runs, seed 11)', () => {
+    const decimal = fc
+      .tuple(fc.constantFrom('', '+', '-'), fc.stringMatching(/^\d{1,9}$/), fc.stringMatching(/^(\.\d{0,9})?$/))
+      .map(([sign, whole, fraction]) => `${sign}${whole}${fraction}`);
+    fc.assert(
+      fc.property(fc.array(decimal, { minLength: 1, maxLength: 20 }), (values) => {
+        const result = parseTrialsCsv(`latency_ms,scale,difficulty,hit\n${values.map((value) => `1,${value},a,1`).join('\n')}\n`);
+        const expected = values.map(Number);
+        if (expected.every((value) => value > 0)) {
+          expect(result.ok).toBe(true);
+          if (result.ok) expect(Array.from(result.value.scale)).toEqual(expected);
+        } else expect(result.ok).toBe(false);
+      }),
+      { seed: 11, numRuns: 500 },
+    );
   });
 });
