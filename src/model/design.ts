@@ -70,7 +70,7 @@ function finalise(hash: number): number {
  * difficulty, prior weight[, player]) points, in order of first appearance.
  *
  * Cost: O(rows) expected time; memory a 4-byte group index per source row,
- * a table of 2 to 4 slots of 8 bytes per group and the collapsed columns.
+ * a table of 4/3 to 8/3 slots of 8 bytes per group and the collapsed columns.
  *
  * @example
  * const collapsed = collapseTrials(trials); // 1,000,000 attempts at 20 conditions -> 20 rows
@@ -96,7 +96,7 @@ export function collapseTrials(trials: Trials, options: CollapseOptions = {}): C
     };
   }
   // Pass 1: open addressing on (group + 1, 32-bit hash) pairs, kept at most
-  // half full and doubled as groups appear, so its size follows the groups;
+  // three-quarters full and doubled as groups appear, so its size follows the groups;
   // a row takes the group whose stored hash equals its own, and a new group
   // appends its key to `records`. Pass 2 checks every row's key against its
   // group's exactly and adds its counts there: one record per group holds
@@ -111,7 +111,7 @@ export function collapseTrials(trials: Trials, options: CollapseOptions = {}): C
   const playerAt = hasWeight ? 6 : 5;
   let capacity = 1 << 12;
   let table: Int32Array<ArrayBufferLike> = new Int32Array(capacity * 2);
-  const groupOf = new Int32Array(rows);
+  let groupOf = new Int32Array(rows);
   const latencies = trials.latency;
   const scales = trials.scale;
   // The hashes first, in a loop of their own (held in `groupOf` until pass 1 replaces them by groups).
@@ -133,7 +133,7 @@ export function collapseTrials(trials: Trials, options: CollapseOptions = {}): C
     for (;;) {
       const stored = table[2 * slot] as number;
       if (stored === 0) {
-        if (2 * (groups + 1) > capacity) {
+        if (4 * (groups + 1) > 3 * capacity) {
           table = rehash(table, capacity);
           capacity *= 2;
           slot = full & (capacity - 1);
@@ -198,6 +198,7 @@ export function collapseTrials(trials: Trials, options: CollapseOptions = {}): C
     records[base + 3] = (records[base + 3] as number) + (trials.successes[i] as number);
     records[base + 4] = (records[base + 4] as number) + (trials.attempts[i] as number);
   }
+  groupOf = new Int32Array(0);
   const column = (offset: number): Float64Array => {
     const target = new Float64Array(groups);
     for (let g = 0; g < groups; g += 1) target[g] = records[g * stride + offset] as number;

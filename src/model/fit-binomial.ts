@@ -32,7 +32,10 @@
  * inverse expected information, as R `sandwich` does for a glm; Liang & Zeger
  * (1986), Cameron & Miller (2015); see `numeric/cluster-sandwich.ts`.
  *
- * Cost: O(iterations * n * k^2).
+ * Cost: O(iterations * n * k^2) time, one fused pass over the rows per
+ * iteration (linear predictor, link, working weights and response, row
+ * reduction together; no per-iteration arrays of length n), O(n) memory for a
+ * few per-row vectors and O(k^2) for the reduction.
  */
 import { LagparityInputError, error, show, type Issue } from '../issues.js';
 import { checkClusters, checkFinite, checkLength } from '../numeric/array-checks.js';
@@ -219,21 +222,27 @@ export function fitBinomial(data: BinomialData, options: BinomialFitOptions = {}
   const trials = select(data.trials);
   const priorWeights = select(data.priorWeights);
   const proportions = new Float64Array(n);
-  const glmWeights = new Float64Array(n);
+  // With prior weights of 1 the GLM weights are the trials themselves: no copy.
+  let unitPriors = true;
+  for (let i = 0; i < n && unitPriors; i += 1) unitPriors = priorWeights[i] === 1;
+  const glmWeights = unitPriors ? trials : new Float64Array(n);
   // sum w [y log y + (1 - y) log(1 - y)], no log at y = 0 or 1 where the terms vanish.
   let saturated = 0;
   for (let i = 0; i < n; i += 1) {
     const proportion = (successes[i] as number) / (trials[i] as number);
     const weight = (trials[i] as number) * (priorWeights[i] as number);
     proportions[i] = proportion;
-    glmWeights[i] = weight;
+    if (!unitPriors) glmWeights[i] = weight;
     if (proportion > 0 && proportion < 1) saturated += weight * (proportion * Math.log(proportion) + (1 - proportion) * Math.log1p(-proportion));
   }
   const rows: GlmRows = { proportions, weights: glmWeights, saturated };
   const base = { link: linkName, names: design.names };
   const exponents = columnExponents(kept);
 
-  const structural = reduceWeightedRows(kept, null, null, exponents).qr;
+  // The first IRLS pass (at R's starting values, weights n mu (1 - mu) > 0 on every row) already
+  // reduces the design; its rank is the design's rank, so no separate pass is needed then.
+  const initial = options.start === undefined ? initialPass(kept, rows, link, exponents) : null;
+  const structural = initial?.reduction.qr ?? reduceWeightedRows(kept, null, null, exponents).qr;
   if (structural.rank < columns) {
     const aliased = structural.aliased.map((j) => design.names[j] as string);
     return {
@@ -249,7 +258,7 @@ export function fitBinomial(data: BinomialData, options: BinomialFitOptions = {}
     };
   }
 
-  const iteration = iterate(kept, rows, link, maxIterations, tolerance, exponents, options.start);
+  const iteration = iterate(kept, rows, link, maxIterations, tolerance, exponents, options.start, initial);
   warnings.push(...iteration.warnings);
   const { coefficients } = iteration;
   const linearPredictor = iteration.atEstimate?.linearPredictor ?? multiply(kept, coefficients);
@@ -731,6 +740,21 @@ function genericPass(
   return deviance;
 }
 
+interface InitialPass {
+  readonly linearPredictor: Float64Array;
+  readonly deviance: number;
+  readonly reduction: ReducedLeastSquares;
+}
+
+/** The pass at R's starting values mu = (w y + 0.5) / (w + 1). */
+function initialPass(design: DesignMatrix, rows: GlmRows, link: Link, exponents: Int32Array): InitialPass {
+  const linearPredictor = new Float64Array(design.rows);
+  const triangle = new RowTriangle(design.columns);
+  const factors = Float64Array.from(exponents, (exponent) => 2 ** exponent);
+  const deviance = fusedPass(design, rows, link, null, linearPredictor, triangle, factors);
+  return { linearPredictor, deviance, reduction: finishReduction(triangle, exponents) };
+}
+
 /** Fisher scoring / IRLS (McCullagh & Nelder 1989, §2.5), R's starting values and step control; one fused pass per iteration. */
 function iterate(
   design: DesignMatrix,
@@ -740,19 +764,20 @@ function iterate(
   tolerance: number,
   exponents: Int32Array,
   start: ArrayLike<number> | undefined,
+  initial: InitialPass | null,
 ): IterationResult {
   const n = design.rows;
   const columns = design.columns;
   const warnings: string[] = [];
   const factors = Float64Array.from(exponents, (exponent) => 2 ** exponent);
   // Three linear-predictor buffers for the whole fit: the accepted iterate, the one before it, a candidate.
-  let current: Float64Array<ArrayBufferLike> = new Float64Array(n);
+  let current: Float64Array<ArrayBufferLike> = initial?.linearPredictor ?? new Float64Array(n);
   let previous: Float64Array<ArrayBufferLike> = new Float64Array(n);
   let candidatePredictor: Float64Array<ArrayBufferLike> = new Float64Array(n);
   let newtonPredictor: Float64Array<ArrayBufferLike> | null = null;
   let triangle = new RowTriangle(columns);
-  let previousDeviance = fusedPass(design, rows, link, start ?? null, current, triangle, factors);
-  let reduction = finishReduction(triangle, exponents);
+  let previousDeviance = initial?.deviance ?? fusedPass(design, rows, link, start ?? null, current, triangle, factors);
+  let reduction = initial?.reduction ?? finishReduction(triangle, exponents);
   let coefficients: Float64Array | null = null;
   let lastStep: Float64Array = new Float64Array(columns);
   let accepted = 0;
