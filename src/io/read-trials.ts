@@ -10,7 +10,7 @@ import { type Result, error, fail } from '../issues.js';
 import { type Trials, MAX_CSV_LINE_BYTES, TrialsReader, detectDelimiter } from '../formats/trials-csv.js';
 
 /** Bytes read per chunk. */
-const CHUNK_BYTES = 1 << 20;
+const CHUNK_BYTES = 1 << 18;
 
 async function readHead(path: string): Promise<{ head: string; size: number }> {
   const handle = await open(path, 'r');

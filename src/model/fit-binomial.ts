@@ -262,13 +262,13 @@ export function fitBinomial(data: BinomialData, options: BinomialFitOptions = {}
   warnings.push(...iteration.warnings);
   const { coefficients } = iteration;
   const linearPredictor = iteration.atEstimate?.linearPredictor ?? multiply(kept, coefficients);
-  const state = linkState(link, linearPredictor);
+  const state = linkState(link, linearPredictor, iteration.spares);
   let boundaryRows = 0;
   let stillMoving = false;
   for (let i = 0; i < n; i += 1) {
     if ((state.mu[i] as number) < BOUNDARY || (state.complement[i] as number) < BOUNDARY) {
       boundaryRows += 1;
-      const change = Math.abs(iteration.lastLinearPredictorChange[i] as number);
+      const change = Math.abs(iteration.lastLinearPredictorChange(i));
       if (change > DIVERGING_STEP * Math.max(1, Math.abs(linearPredictor[i] as number))) stillMoving = true;
     }
   }
@@ -528,10 +528,14 @@ interface LinkState {
   readonly complement: Float64Array;
 }
 
-function linkState(link: Link, linearPredictor: Float64Array): LinkState {
+function linkState(link: Link, linearPredictor: Float64Array, spares: readonly Float64Array[] = []): LinkState {
   const n = linearPredictor.length;
-  const mu = new Float64Array(n);
-  const complement = new Float64Array(n);
+  const buffer = (k: number) => {
+    const spare = spares[k];
+    return spare !== undefined && spare.length === n ? spare : new Float64Array(n);
+  };
+  const complement = buffer(0);
+  const mu = buffer(1);
   for (let i = 0; i < n; i += 1) {
     const value = linearPredictor[i] as number;
     mu[i] = link.inverse(value);
@@ -569,9 +573,12 @@ interface IterationResult {
   /** Original indices aliased in the weighted design when it lost rank. */
   readonly collapsedAliased: { readonly aliased: readonly number[] };
   readonly lastStep: Float64Array;
-  readonly lastLinearPredictorChange: Float64Array;
+  /** Change of row i's linear predictor in the last accepted step (0 before any). */
+  readonly lastLinearPredictorChange: (row: number) => number;
   /** X b at `coefficients` and the weighted reduction there (the expected information), when an iterate was accepted. */
   readonly atEstimate: { readonly linearPredictor: Float64Array; readonly reduction: ReducedLeastSquares } | null;
+  /** Buffers of length n the iteration no longer needs (reused for mu and 1 - mu). */
+  readonly spares: readonly Float64Array[];
   readonly warnings: string[];
 }
 
@@ -868,9 +875,21 @@ function iterate(
     }
   }
   // The change of the last accepted step, written over the older buffer (zeros before any step).
-  const lastLinearPredictorChange = previous;
-  if (accepted > 0) for (let i = 0; i < n; i += 1) lastLinearPredictorChange[i] = (current[i] as number) - (previous[i] as number);
-  else lastLinearPredictorChange.fill(0);
+  // After two or more steps the last change is X (b_t - b_{t-1}), so the older buffer is free;
+  // after one it is measured from the starting linear predictor, still in that buffer.
+  const older = previous;
+  const step = lastStep;
+  const values = design.values;
+  const lastLinearPredictorChange =
+    accepted === 0
+      ? () => 0
+      : accepted === 1
+        ? (row: number) => (current[row] as number) - (older[row] as number)
+        : (row: number) => {
+            let change = 0;
+            for (let j = 0; j < columns; j += 1) change += (values[j * n + row] as number) * (step[j] as number);
+            return change;
+          };
   return {
     coefficients: coefficients ?? new Float64Array(columns),
     iterations,
@@ -880,6 +899,7 @@ function iterate(
     lastStep,
     lastLinearPredictorChange,
     atEstimate: accepted > 0 ? { linearPredictor: current, reduction } : null,
+    spares: accepted === 1 ? [candidatePredictor] : [candidatePredictor, previous],
     warnings,
   };
 }
