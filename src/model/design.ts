@@ -296,19 +296,34 @@ export function buildDesign(
   const n = data.rows;
   const values = new Float64Array(n * columns.length);
   const scaleTerm = new Float64Array(n);
-  for (let i = 0; i < n; i += 1) scaleTerm[i] = scaleTermValue(form, data.scale[i] as number);
+  // Scales repeat (a few settings), so the last one's term is reused rather than recomputed.
+  let lastScale = Number.NaN;
+  let lastTerm = 0;
+  for (let i = 0; i < n; i += 1) {
+    const scale = data.scale[i] as number;
+    if (scale !== lastScale) {
+      lastScale = scale;
+      lastTerm = scaleTermValue(form, scale);
+    }
+    scaleTerm[i] = lastTerm;
+  }
+  const { latency, difficulty } = data;
   columns.forEach((column, j) => {
     const offset = j * n;
     const levelCode =
       column.difficulty !== null && column.difficulty !== 'value' && coding.kind === 'levels'
         ? coding.levels.indexOf(column.difficulty.level)
         : -1;
+    const usesLatency = column.latency;
+    const usesScale = column.scale;
+    const usesValue = column.difficulty === 'value';
+    const usesLevel = column.difficulty !== null && !usesValue;
     for (let i = 0; i < n; i += 1) {
       let value = 1;
-      if (column.latency) value *= data.latency[i] as number;
-      if (column.scale) value *= scaleTerm[i] as number;
-      if (column.difficulty === 'value') value *= data.difficulty[i] as number;
-      else if (column.difficulty !== null) value = data.difficulty[i] === levelCode ? value : 0;
+      if (usesLatency) value *= latency[i] as number;
+      if (usesScale) value *= scaleTerm[i] as number;
+      if (usesValue) value *= difficulty[i] as number;
+      else if (usesLevel) value = difficulty[i] === levelCode ? value : 0;
       values[offset + i] = value;
     }
   });
