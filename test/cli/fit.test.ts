@@ -80,6 +80,25 @@ describe('lagparity fit', () => {
     expect(run.stderr).toMatch(/^--terms: error unknown_term: /m);
   });
 
+  it('fits the main model alone with --folds 0 --lr-tests none --no-baseline, with the same estimates', () => {
+    const alone = runCli(['fit', trials, '--json', '--folds', '0', '--lr-tests', 'none', '--no-baseline', '--cluster', 'none']);
+    const full = runCli(['fit', trials, '--json', '--folds', '0', '--cluster', 'none']);
+    expect(alone.status, alone.stderr).toBe(0);
+    expect(full.status, full.stderr).toBe(0);
+    type Result = { report: { likelihood_ratio_tests: unknown[]; baseline: unknown; coefficients: { estimate: number; std_error: number }[] } };
+    const a = (JSON.parse(alone.stdout) as Result).report;
+    const b = (JSON.parse(full.stdout) as Result).report;
+    expect(a.likelihood_ratio_tests).toEqual([]);
+    expect(a.baseline).toBeNull();
+    expect(b.likelihood_ratio_tests.length).toBe(3);
+    expect(b.baseline).not.toBeNull();
+    expect(a.coefficients).toEqual(b.coefficients);
+    const help = runCli(['fit', '--help']).stdout;
+    expect(help).toMatch(/--lr-tests <which>/);
+    expect(help).toMatch(/--no-baseline/);
+    expect(runCli(['fit', trials, '--lr-tests', 'some']).stderr).toMatch(/--lr-tests: error invalid_option: `--lr-tests` requires all or none, got "some"/);
+  });
+
   it('documents the --compare syntax with a worked example in --help', () => {
     const run = runCli(['fit', '--help']);
     expect(run.status).toBe(0);
