@@ -128,12 +128,12 @@ const POWERS_OF_TEN = Float64Array.from({ length: 23 }, (_, k) => 10 ** k);
 
 /**
  * A plain decimal (`[+-]digits[.digits]`, at most 15 digits) read from bytes,
- * or NaN when the field needs the full rules of {@link parseDecimal}. With at
+ * or undefined when the field needs the full rules of {@link parseDecimal}. With at
  * most 15 digits the mantissa and 10^f are exact doubles, so one correctly
  * rounded division gives the same double as `Number(text)` (Clinger 1990,
  * How to read floating point numbers accurately, PLDI, the fast path).
  */
-function plainDecimal(bytes: Uint8Array, start: number, end: number): number {
+function plainDecimal(bytes: Uint8Array, start: number, end: number): number | undefined {
   let k = start;
   let negative = false;
   const first = bytes[k];
@@ -152,9 +152,9 @@ function plainDecimal(bytes: Uint8Array, start: number, end: number): number {
       digits += 1;
       if (dot) fraction += 1;
     } else if (byte === 0x2e && !dot) dot = true;
-    else return Number.NaN;
+    else return undefined;
   }
-  if (digits === 0 || digits > 15) return Number.NaN;
+  if (digits === 0 || digits > 15) return undefined;
   const value = mantissa / (POWERS_OF_TEN[fraction] as number);
   return negative ? -value : value;
 }
@@ -373,7 +373,7 @@ export class TrialsBuilder {
     const end = record.ends[index] as number;
     if (record.quoting[index] !== 2) {
       const fast = plainDecimal(record.bytes, start, end);
-      if (fast === fast) return fast; // not NaN
+      if (fast !== undefined) return fast;
     }
     const text = record.text(index);
     const value = parseDecimal(text);

@@ -297,11 +297,11 @@ export function buildDesign(
   const values = new Float64Array(n * columns.length);
   const scaleTerm = new Float64Array(n);
   // Scales repeat (a few settings), so the last one's term is reused rather than recomputed.
-  let lastScale = Number.NaN;
+  let lastScale = 0;
   let lastTerm = 0;
   for (let i = 0; i < n; i += 1) {
     const scale = data.scale[i] as number;
-    if (scale !== lastScale) {
+    if (i === 0 || scale !== lastScale) {
       lastScale = scale;
       lastTerm = scaleTermValue(form, scale);
     }
