@@ -290,19 +290,7 @@ export function fitModel(trials: Trials, options: FitModelOptions = {}): FitRepo
     training,
     cluster: { by: prepared.clustered ? ('player' as const) : ('none' as const), clusters: clusterCount },
   };
-  const empty = {
-    usable_for_compensation: false,
-    covariance_kind: 'model' as const,
-    coefficients: [],
-    covariance: null,
-    robust_covariance: null,
-    statistics: null,
-    likelihood_ratio_tests: [],
-    cross_validation: null,
-    calibration: [],
-    scale_effect: null,
-    baseline: null,
-  };
+  const empty = { ...noEstimates(), baseline: null };
 
   const structural = structuralIssues(prepared);
   if (structural.issues.length > 0) {
@@ -807,6 +795,22 @@ function accuracy(data: CollapsedTrials): Float64Array {
 }
 
 /** Per-round files: one row per round (prior weights only); per-attempt files: attempt-weighted, i.e. OLS on the 0/1 attempts. */
+/** The fields of a report whose fit gave no estimates (a fresh object each time: its arrays are the caller's). */
+function noEstimates() {
+  return {
+    usable_for_compensation: false,
+    covariance_kind: 'model' as const,
+    coefficients: [],
+    covariance: null,
+    robust_covariance: null,
+    statistics: null,
+    likelihood_ratio_tests: [],
+    cross_validation: null,
+    calibration: [],
+    scale_effect: null,
+  };
+}
+
 function leastSquaresWeights(prepared: Prepared, data: CollapsedTrials): Float64Array {
   return prepared.likelihood === 'bernoulli' ? data.weight.map((value, i) => value * (data.attempts[i] as number)) : data.weight;
 }
@@ -846,17 +850,8 @@ function leastSquaresReport(
   if (fit.status !== 'fitted' || fit.standardErrors === null || fit.covariance === null) {
     const aliased = fit.status === 'fitted' ? [] : termsOfColumns(design, fit.aliased);
     return {
+      ...noEstimates(),
       status: 'rank_deficient',
-      usable_for_compensation: false,
-      covariance_kind: 'model',
-      coefficients: [],
-      covariance: null,
-      robust_covariance: null,
-      statistics: null,
-      likelihood_ratio_tests: [],
-      cross_validation: null,
-      calibration: [],
-      scale_effect: null,
       aliased_terms: aliased,
       warnings: [
         ...warnings,
