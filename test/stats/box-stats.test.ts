@@ -1,31 +1,9 @@
-import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
+import { listOf, numberOf, readBoxplotReferences } from '../helpers/stats-fixtures.js';
 import { boxStats, fiveNumber } from '../../src/stats/box-stats.js';
 
 // R 4.2.2 boxplot.stats(x), fivenum(x), IQR(x); see test/fixtures/stats/README.md.
-interface Reference {
-  readonly values: number[];
-  readonly quantities: Map<string, string>;
-}
-
-const references = new Map<string, Reference>();
-for (const line of readFileSync(new URL('../fixtures/stats/boxplot_stats_r.csv', import.meta.url), 'utf8').trim().split('\n').slice(1)) {
-  const [vector = '', values = '', quantity = '', value = ''] = line.split(',');
-  const reference = references.get(vector) ?? { values: values.split(' ').map(Number), quantities: new Map<string, string>() };
-  reference.quantities.set(quantity, value);
-  references.set(vector, reference);
-}
-
-function numberOf(reference: Reference, quantity: string): number {
-  const text = reference.quantities.get(quantity);
-  if (text === undefined) throw new Error(`fixture has no ${quantity}`);
-  return Number(text);
-}
-
-function listOf(reference: Reference, quantity: string): number[] {
-  const text = reference.quantities.get(quantity) ?? '';
-  return text === '' ? [] : text.split(' ').map(Number);
-}
+const references = readBoxplotReferences();
 
 describe('boxStats() against R 4.2.2 boxplot.stats (boxplot_stats_r.csv)', () => {
   it('read the four reference vectors A–D', () => {

@@ -1,35 +1,16 @@
 import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
+import { listOf, numberOf, readBoxplotReferences } from '../helpers/stats-fixtures.js';
 import { parseTrialsCsv, type Trials } from '../../src/formats/trials-csv.js';
 import { parseFactorList, summarizeTrials, type TrialsSummary } from '../../src/summary/summarize-trials.js';
 import { createRandomSource } from '../../src/random.js';
 
 // R 4.2.2 boxplot.stats(x), IQR(x) and quantile(x, type = 7); see test/fixtures/stats/README.md.
-interface Reference {
-  readonly values: number[];
-  readonly quantities: Map<string, string>;
-}
-const references = new Map<string, Reference>();
-for (const line of readFileSync(new URL('../fixtures/stats/boxplot_stats_r.csv', import.meta.url), 'utf8').trim().split('\n').slice(1)) {
-  const [vector = '', values = '', quantity = '', value = ''] = line.split(',');
-  const reference = references.get(vector) ?? { values: values.split(' ').map(Number), quantities: new Map<string, string>() };
-  reference.quantities.set(quantity, value);
-  references.set(vector, reference);
-}
+const references = readBoxplotReferences();
 const quantilesType7 = new Map<number, number>();
 for (const line of readFileSync(new URL('../fixtures/stats/quantiles_r.csv', import.meta.url), 'utf8').trim().split('\n').slice(1)) {
   const [type, p, value] = line.split(',').map(Number);
   if (type === 7) quantilesType7.set(p as number, value as number);
-}
-
-function numberOf(reference: Reference, quantity: string): number {
-  const text = reference.quantities.get(quantity);
-  if (text === undefined) throw new Error(`fixture has no ${quantity}`);
-  return Number(text);
-}
-function listOf(reference: Reference, quantity: string): number[] {
-  const text = reference.quantities.get(quantity) ?? '';
-  return text === '' ? [] : text.split(' ').map(Number);
 }
 
 function trialsOf(csv: string): Trials {
