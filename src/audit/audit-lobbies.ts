@@ -75,17 +75,11 @@ export function auditLobby(lobby: LobbyFile, model: CompiledModel, rules: Compil
   // uniform shift, reported as `worst_shift_gain` and bounded only by server-side measurement).
   const spikeGain = new Map<string, number | null>();
   for (const entry of exploit?.players ?? []) spikeGain.set(entry.id, entry.spike_gain);
-  // Duels among eligible players only: an ineligible player is not scaled and fails the lobby on eligibility.
-  const eligibleIds = new Set(result.players.filter((player) => player.eligible).map((player) => player.id));
-  const duelPairs = (duel?.pairs ?? []).filter((pair) => eligibleIds.has(pair.a) && eligibleIds.has(pair.b));
+  // The duel view holds eligible players only (an ineligible player fails the lobby on eligibility).
   const deviation = (value: number) => Math.abs(value - 0.5);
-  let worstPair = duelPairs[0];
-  let worstBefore = 0;
-  for (const pair of duelPairs) {
-    worstBefore = Math.max(worstBefore, deviation(pair.a_wins_before));
-    if (worstPair === undefined || deviation(pair.a_wins_after) > deviation(worstPair.a_wins_after)) worstPair = pair;
-  }
-  const worstDuel = worstPair === undefined ? 0 : deviation(worstPair.a_wins_after);
+  let worstPair = duel?.pairs[0];
+  for (const pair of duel?.pairs ?? []) if (worstPair === undefined || deviation(pair.a_wins_after) > deviation(worstPair.a_wins_after)) worstPair = pair;
+  const worstDuel = duel?.worst_deviation_after ?? 0;
 
   for (const player of result.players) {
     if (!player.eligible) {
@@ -136,7 +130,7 @@ export function auditLobby(lobby: LobbyFile, model: CompiledModel, rules: Compil
       jain_after: summary.jain_after,
       team_gap_before: summary.team_gap_before,
       team_gap_after: summary.team_gap_after,
-      worst_duel_deviation_before: worstBefore,
+      worst_duel_deviation_before: duel?.worst_deviation_before ?? 0,
       worst_duel_deviation_after: worstDuel,
       worst_spike_gain: exploit?.worst_spike_gain ?? 0,
       worst_shift_gain: exploit?.worst_shift_gain ?? 0,

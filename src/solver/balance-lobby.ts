@@ -258,7 +258,8 @@ export function balanceLobby(lobby: LobbyFile, model: CompiledModel, rules: Comp
   const asked = options.views;
   if (asked === undefined || !(asked.duel || asked.exploit || asked.uncertainty)) return result;
   const views: { duel?: DuelView; exploit?: ExploitView; uncertainty?: UncertaintyView } = {};
-  if (asked.duel) views.duel = duelView(players, rules);
+  // Ineligible players are never scaled and are left out of every fairness figure, duels included.
+  if (asked.duel) views.duel = duelView(players.filter((player) => player.eligible), rules);
   if (asked.exploit) views.exploit = exploitView(lobby, model, rules, solved);
   if (asked.uncertainty) views.uncertainty = uncertaintyView(lobby, model, rules, solved, asked.uncertainty === true ? {} : asked.uncertainty);
   return { ...result, views };

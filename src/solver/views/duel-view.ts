@@ -47,7 +47,8 @@ function opposing(left: DuelPlayer, right: DuelPlayer): boolean {
 }
 
 /**
- * The duel view of a balanced lobby's players.
+ * The duel view of a balanced lobby's players (`balanceLobby` passes the
+ * eligible ones: an ineligible player is never scaled).
  *
  * With `alternating` volleys the first player of a pair shoots first, so even
  * equal hit probabilities do not give even odds; the deviation reported is

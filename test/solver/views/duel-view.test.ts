@@ -19,6 +19,15 @@ describe('duelView()', () => {
     expect(solvedLobby([10, 40, 70, 100], undefined).duel.pairs).toHaveLength(6); // C(4, 2)
   });
 
+  it('leaves out a player above the eligibility limit (never scaled, outside every fairness figure)', () => {
+    const rules = rulesOf({ scale_cap: 2, latency_limit_ms: 120, duel: { hits_to_win: 3, volleys: 'simultaneous' } });
+    const { result, duel } = solvedLobby([10, 40, 70, 300], undefined, rules);
+    const ineligible = result.players.find((player) => !player.eligible);
+    expect(ineligible).toBeDefined();
+    expect(duel.pairs).toHaveLength(3); // C(3, 2): the three eligible players
+    expect(duel.pairs.some((pair) => pair.a === ineligible?.id || pair.b === ineligible?.id)).toBe(false);
+  });
+
   it('gives for each pair what duelOutcome gives for the players\' hit probabilities, a tie counted as half', () => {
     const { result, duel } = solvedLobby([10, 40, 70, 150], ['red', 'blue', 'red', 'blue']);
     const byId = new Map(result.players.map((player) => [player.id, player]));
