@@ -30,9 +30,10 @@ export async function runBalance(paths: string[], options: BalanceOptions): Prom
     const name = file === '-' ? 'stdin' : basename(file);
     const warnings = result.warnings.map((issue) => ({ ...issue, location: at(name, issue.location) }));
     // Under --strict, a prediction outside the model's training range is an error, not a warning.
-    const strictErrors = options.strict ? warnings.filter((issue) => issue.code === 'outside_training_range').map((issue) => ({ ...issue, severity: 'error' as const })) : [];
-    if (strictErrors.length > 0) extrapolated = true;
-    reportIssues([...strictErrors, ...warnings.filter((issue) => !strictErrors.some((strict) => strict.location === issue.location && strict.message === issue.message))]);
+    const judged = warnings.map((issue) => (options.strict && issue.code === 'outside_training_range' ? { ...issue, severity: 'error' as const } : issue));
+    const errors = judged.filter((issue) => issue.severity === 'error');
+    if (errors.length > 0) extrapolated = true;
+    reportIssues([...errors, ...judged.filter((issue) => issue.severity !== 'error')]);
     // A solver issue located at `model.<field>` is about the model file; the others name a place in the lobby.
     const modelName = basename(options.model);
     const place = (location: string) => (location.startsWith('model.') ? at(modelName, location.slice('model.'.length)) : at(name, location));
