@@ -1,7 +1,6 @@
 /** `lagparity fit`: fit the hit-probability model to a trials file and write the model file. */
 import { createHash } from 'node:crypto';
 import { basename } from 'node:path';
-import Table from 'cli-table3';
 import type { Command } from 'commander';
 import { type Issue, LagparityInputError, error, show } from '../issues.js';
 import { readTrialsFile } from '../io/read-trials.js';
@@ -10,7 +9,7 @@ import { type FitFamily, type FitModelOptions, type FitReport, fitModel } from '
 import { LINK_NAMES, type LinkName } from '../model/links.js';
 import { type TermName, parseTermList } from '../model/terms.js';
 import { toModelFile } from '../model/to-model-file.js';
-import { COMPACT_CHARS } from './render-balance.js';
+import { compactTable } from './table.js';
 import { EXIT_BAD_INPUT, EXIT_OK, fixed, reportIssues, writeOut } from './output.js';
 
 export const FIT_RESULT_FORMAT = 'lagparity/fit-result@1';
@@ -122,12 +121,10 @@ export function renderFit(report: FitReport): string {
   ];
   if (report.coefficients.length === 0) return lines.join('\n');
   const robust = report.coefficients.some((row) => row.robust !== null);
-  const table = new Table({
-    head: ['term', 'estimate', 'SE', 'z', 'p', '95% interval', ...(robust ? ['robust SE', 'robust 95% interval'] : [])],
-    style: { head: [], border: [] },
-    chars: COMPACT_CHARS,
-    colAligns: ['left', 'right', 'right', 'right', 'right', 'right', 'right', 'right'],
-  });
+  const table = compactTable(
+    ['term', 'estimate', 'SE', 'z', 'p', '95% interval', ...(robust ? ['robust SE', 'robust 95% interval'] : [])],
+    ['left', 'right', 'right', 'right', 'right', 'right', 'right', 'right'],
+  );
   for (const row of report.coefficients) {
     table.push([
       row.name,
@@ -186,12 +183,7 @@ interface Ranked {
 }
 
 function renderComparison(ranked: readonly Ranked[]): string {
-  const table = new Table({
-    head: ['rank', 'candidate', 'status', 'held-out log loss', 'Brier', 'calibration error', 'AIC'],
-    style: { head: [], border: [] },
-    chars: COMPACT_CHARS,
-    colAligns: ['right', 'left', 'left', 'right', 'right', 'right', 'right'],
-  });
+  const table = compactTable(['rank', 'candidate', 'status', 'held-out log loss', 'Brier', 'calibration error', 'AIC'], ['right', 'left', 'left', 'right', 'right', 'right', 'right']);
   ranked.forEach((entry, index) => {
     table.push([String(index + 1), entry.spec, entry.status, fixed(entry.log_loss, 4), fixed(entry.brier, 4), fixed(entry.calibration_error, 4), fixed(entry.aic, 1)]);
   });

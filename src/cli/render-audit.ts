@@ -1,7 +1,7 @@
 /** The audit as tables (for people) or Markdown (for a report or a ticket). */
-import Table from 'cli-table3';
 import type { AuditReport, LobbyAudit, SweepReport } from '../audit/audit-schema.js';
-import { COMPACT_CHARS, PLAYER_ALIGN, PLAYER_HEAD, playerCells } from './render-balance.js';
+import { PLAYER_ALIGN, PLAYER_HEAD, playerCells } from './render-balance.js';
+import { compactTable } from './table.js';
 import { fixed } from './output.js';
 
 type Style = 'table' | 'markdown';
@@ -11,7 +11,7 @@ function grid(head: string[], rows: string[][], style: Style, align: ('left' | '
     const line = (cells: string[]) => `| ${cells.map((cell) => cell.replace(/\|/g, '\\|')).join(' | ')} |`;
     return [line(head), `|${align.map((side) => (side === 'right' ? '---:' : ':---')).join('|')}|`, ...rows.map(line)].join('\n');
   }
-  const table = new Table({ head, style: { head: [], border: [] }, chars: COMPACT_CHARS, colAligns: align });
+  const table = compactTable(head, align);
   table.push(...rows);
   return table.toString();
 }

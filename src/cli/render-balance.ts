@@ -1,11 +1,8 @@
 /** The balance result as tables for people. */
-import Table from 'cli-table3';
+import { compactTable } from './table.js';
 import type { BalanceResult, PlayerBalance } from '../solver/balance-lobby.js';
 import { fixed } from './output.js';
 
-const PLAIN = { head: [] as string[], border: [] as string[] };
-/** Box lines without a rule between body rows. */
-export const COMPACT_CHARS = { mid: '', 'left-mid': '', 'mid-mid': '', 'right-mid': '' };
 
 /** The per-player columns every lobby table shows (balance and audit). */
 export const PLAYER_HEAD = ['player', 'team', 'latency ms', 'scale', 'P(hit) before', 'P(hit) after', 'gap to target', 'held by'] as const;
@@ -32,7 +29,7 @@ export function renderBalance(result: BalanceResult): string {
   if (result.status === 'rejected') {
     return `${result.match_id}: rejected\n${result.issues.map((issue) => `  ${issue.location}: ${issue.message}`).join('\n')}`;
   }
-  const table = new Table({ head: [...PLAYER_HEAD], style: PLAIN, chars: COMPACT_CHARS, colAligns: [...PLAYER_ALIGN] });
+  const table = compactTable(PLAYER_HEAD, PLAYER_ALIGN);
   for (const player of result.players) table.push(playerCells(player));
   const summary = result.summary;
   const lines = [

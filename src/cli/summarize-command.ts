@@ -1,11 +1,10 @@
 /** `lagparity summarize`: per-condition counts, mean accuracy and box statistics of a trials file. */
-import Table from 'cli-table3';
 import type { Command } from 'commander';
 import type { Issue } from '../issues.js';
 import { readTrialsFile } from '../io/read-trials.js';
 import { parseBinSpec } from '../summary/bins.js';
 import { type TrialsSummary, parseFactorList, summarizeTrials } from '../summary/summarize-trials.js';
-import { COMPACT_CHARS } from './render-balance.js';
+import { compactTable } from './table.js';
 import { EXIT_BAD_INPUT, EXIT_OK, fixed, reportIssues, writeOut } from './output.js';
 
 interface SummarizeCommandOptions {
@@ -14,17 +13,14 @@ interface SummarizeCommandOptions {
   json?: boolean;
 }
 
-const PLAIN = { head: [] as string[], border: [] as string[] };
 
 /** The summary as a table for people, with the bins and the box definition stated. */
 export function renderSummary(summary: TrialsSummary): string {
   const factorHeads = summary.by.map((factor) => (factor === 'latency' ? 'latency' : factor));
-  const table = new Table({
-    head: [...factorHeads, 'rounds', 'attempts', 'mean acc', 'low whisker', 'lower hinge', 'median', 'upper hinge', 'high whisker', 'outliers'],
-    style: PLAIN,
-    chars: COMPACT_CHARS,
-    colAligns: [...summary.by.map(() => 'left' as const), ...Array.from({ length: 9 }, () => 'right' as const)],
-  });
+  const table = compactTable(
+    [...factorHeads, 'rounds', 'attempts', 'mean acc', 'low whisker', 'lower hinge', 'median', 'upper hinge', 'high whisker', 'outliers'],
+    [...summary.by.map(() => 'left' as const), ...Array.from({ length: 9 }, () => 'right' as const)],
+  );
   for (const condition of summary.conditions) {
     const box = condition.accuracy;
     table.push([
