@@ -1,6 +1,5 @@
 /** `lagparity report`: one self-contained HTML page of the playtest, the model and the lobbies. */
 import { createHash } from 'node:crypto';
-import { createReadStream } from 'node:fs';
 import { basename } from 'node:path';
 import type { Command } from 'commander';
 import { readTrialsFile } from '../io/read-trials.js';
@@ -19,20 +18,12 @@ interface ReportOptions {
   latencyBins: string;
 }
 
-async function sha256OfFile(path: string): Promise<string | undefined> {
-  try {
-    const hash = createHash('sha256');
-    for await (const chunk of createReadStream(path)) hash.update(chunk as Buffer);
-    return hash.digest('hex');
-  } catch {
-    return undefined;
-  }
-}
-
 export async function runReport(options: ReportOptions): Promise<number> {
   const bins = parseBinSpec(options.latencyBins, '--latency-bins');
+  // The digest is taken from the same bytes the reader parses: one read of the file.
+  const hash = createHash('sha256');
   const [trials, model, rules, lobbies] = await Promise.all([
-    readTrialsFile(options.trials),
+    readTrialsFile(options.trials, { onChunk: (bytes) => hash.update(bytes) }),
     loadModel(options.model),
     loadRules(options.rules),
     options.lobbies === undefined || options.lobbies.length === 0 ? Promise.resolve(undefined) : loadLobbies(options.lobbies),
@@ -53,7 +44,7 @@ export async function runReport(options: ReportOptions): Promise<number> {
     lobbies: lobbies?.ok ? lobbies.value.map(({ path, lobby }) => ({ name: path === '-' ? 'stdin' : basename(path), lobby })) : [],
     rules: rules.value,
     rulesName: options.rules === undefined ? 'the default rules' : basename(options.rules),
-    trialsSha256: await sha256OfFile(options.trials),
+    trialsSha256: hash.digest('hex'),
     latencyBins: bins.value,
   });
   if (!report.ok) {
