@@ -10,7 +10,7 @@ export interface CliRun {
 }
 
 export function runCli(args: readonly string[], options: { input?: string; env?: Record<string, string> } = {}): CliRun {
-  const result = spawnSync(process.execPath, [join(ROOT, 'dist', 'cli', 'main.js'), ...args], {
+  const result = spawnSync(process.execPath, [join(ROOT, 'dist', 'bin', 'lagparity.js'), ...args], {
     cwd: ROOT,
     encoding: 'utf8',
     input: options.input ?? '',

@@ -31,7 +31,7 @@ import { pathToFileURL } from 'node:url';
 import { createRandomSource, standardNormalDraw } from '../../src/random.js';
 
 const root = join(import.meta.dirname, '..', '..');
-const cli = join(root, 'dist', 'cli', 'main.js');
+const cli = join(root, 'dist', 'bin', 'lagparity.js');
 const args = process.argv.slice(2);
 const sizesArgument = args[args.indexOf('--sizes') + 1];
 const sizes = args.includes('--sizes') && sizesArgument !== undefined ? sizesArgument.split(',').map(Number) : [1_000_000, 5_000_000];
