@@ -7,22 +7,29 @@
  * The row grammar is `trialRowSchema` (zod) below; the reader applies the same
  * rules by hand in its loop for speed, and a test checks the two agree.
  *
- * The CSV itself (RFC 4180: quoted fields with `""` escapes, LF, CRLF or CR
- * line ends, a UTF-8 byte-order mark) is scanned byte by byte by
- * {@link CsvScanner}: each record is a list of field byte ranges over the
- * chunk being read, plain decimal fields are read into the typed-array
- * columns straight from the bytes, and only fields that need it (a level
- * name not seen before, a number with an exponent or spaces, an error
- * message) are decoded to strings. Memory is the columns plus one chunk.
+ * The CSV itself is scanned byte by byte by `CsvScanner` (RFC 4180, see
+ * `csv-scanner.ts`). Two ways in, with the same result:
+ * - a plain line (unquoted fields, plain decimals of at most 15 digits, names
+ *   seen before, LF or CRLF) is read in one pass by
+ *   {@link TrialsBuilder.readPlainLine}, straight from the bytes into the
+ *   typed-array columns: the common case of a large telemetry file;
+ * - any other line (quotes, spaces, an exponent, a new name, a bad value)
+ *   goes through the scanner's field ranges to {@link TrialsBuilder.row},
+ *   which applies the full rules and reports the first bad row.
+ * Only fields that need it (a name not seen before, a number with an exponent
+ * or spaces, an error message) are decoded to strings. Memory is the columns
+ * plus one chunk.
  */
 import { z } from 'zod';
 import { type Issue, type Result, error, fail, ok, show, warning } from '../issues.js';
+import { CARRIAGE_RETURN, type CsvRecord, CsvScanner, LINE_FEED, MAX_CSV_LINE_BYTES, type PlainLineReader } from './csv-scanner.js';
 import { MAX_LATENCY_MS } from './lobby-file.js';
+import { NameCodes } from './name-codes.js';
 
 export const TRIALS_FORMAT = 'lagparity/trials@1';
 
-/** Documented limits: one line at most 64 KiB, a file at most 50 million rows. */
-export const MAX_CSV_LINE_BYTES = 64 * 1024;
+export { MAX_CSV_LINE_BYTES } from './csv-scanner.js';
+/** Documented limit: a file at most 50 million rows (and one line at most {@link MAX_CSV_LINE_BYTES}). */
 export const MAX_TRIAL_ROWS = 50_000_000;
 
 const finite = z.number({ error: 'a finite number' });
@@ -159,43 +166,6 @@ function plainDecimal(bytes: Uint8Array, start: number, end: number): number | u
   return negative ? -value : value;
 }
 
-/** One CSV record: field byte ranges over the bytes being scanned (valid only during the callback). */
-export class CsvRecord {
-  bytes: Uint8Array = new Uint8Array(0);
-  count = 0;
-  starts = new Int32Array(16);
-  ends = new Int32Array(16);
-  /** 0: unquoted, 1: quoted, 2: quoted with `""` escapes. */
-  quoting = new Uint8Array(16);
-
-  /** Append a field (used by the scanner). */
-  add(start: number, end: number, quoting: number): void {
-    if (this.count === this.starts.length) {
-      const grow = <T extends Int32Array | Uint8Array>(old: T, next: T): T => {
-        next.set(old);
-        return next;
-      };
-      this.starts = grow(this.starts, new Int32Array(this.count * 2));
-      this.ends = grow(this.ends, new Int32Array(this.count * 2));
-      this.quoting = grow(this.quoting, new Uint8Array(this.count * 2));
-    }
-    this.starts[this.count] = start;
-    this.ends[this.count] = end;
-    this.quoting[this.count] = quoting;
-    this.count += 1;
-  }
-
-  /** Field `index` as text (UTF-8, `""` unescaped). */
-  text(index: number): string {
-    const text = Buffer.from(this.bytes.buffer, this.bytes.byteOffset, this.bytes.byteLength).toString('utf8', this.starts[index], this.ends[index]);
-    return this.quoting[index] === 2 ? text.replaceAll('""', '"') : text;
-  }
-
-  texts(): string[] {
-    return Array.from({ length: this.count }, (_, index) => this.text(index));
-  }
-}
-
 /** Whether a field's bytes need no trimming and no unescaping (first and last byte visible ASCII). */
 function plainField(record: CsvRecord, index: number): boolean {
   const start = record.starts[index] as number;
@@ -207,77 +177,52 @@ function plainField(record: CsvRecord, index: number): boolean {
 }
 
 /**
- * Names interned to codes in order of first appearance, looked up from a
- * record's bytes: the last name and up to 16 names are compared as bytes, so
- * the usual few difficulty levels never become a string per row.
- */
-class NameCodes {
-  readonly names: string[] = [];
-  private readonly index = new Map<string, number>();
-  private readonly known: Uint8Array[] = [];
-  private last = -1;
-  private codes: Int32Array;
-  length = 0;
-
-  constructor(capacity: number) {
-    this.codes = new Int32Array(Math.max(16, capacity));
-  }
-
-  private pushCode(code: number): void {
-    if (this.length === this.codes.length) {
-      const next = new Int32Array(this.codes.length * 2);
-      next.set(this.codes);
-      this.codes = next;
-    }
-    this.codes[this.length] = code;
-    this.length += 1;
-  }
-
-  private matches(code: number, bytes: Uint8Array, start: number, end: number): boolean {
-    const name = this.known[code];
-    if (name === undefined || name.length !== end - start) return false;
-    for (let k = 0; k < name.length; k += 1) if (name[k] !== bytes[start + k]) return false;
-    return true;
-  }
-
-  /** Push a plain field (see {@link plainField}) by its bytes. */
-  pushBytes(bytes: Uint8Array, start: number, end: number): void {
-    if (this.last >= 0 && this.matches(this.last, bytes, start, end)) return this.pushCode(this.last);
-    for (let code = 0; code < this.known.length; code += 1) {
-      if (this.matches(code, bytes, start, end)) {
-        this.last = code;
-        return this.pushCode(code);
-      }
-    }
-    const name = Buffer.from(bytes.buffer, bytes.byteOffset, bytes.byteLength).toString('utf8', start, end);
-    this.push(name);
-    const code = this.codes[this.length - 1] as number;
-    if (code === this.known.length && this.known.length < 16) this.known.push(new Uint8Array(bytes.subarray(start, end)));
-    this.last = code < this.known.length ? code : -1;
-  }
-
-  push(name: string): void {
-    let code = this.index.get(name);
-    if (code === undefined) {
-      code = this.names.length;
-      this.names.push(name);
-      this.index.set(name, code);
-    }
-    this.pushCode(code);
-  }
-
-  finish(): Int32Array {
-    const filled = this.codes.subarray(0, this.length);
-    return this.length * 8 >= this.codes.length * 7 ? filled : filled.slice();
-  }
-}
-
-/**
  * Accumulates trial rows into columns. Feed it the header, then each record
  * with its line number; it stops at the first bad row.
  */
-export class TrialsBuilder {
+/** What the plain-line reader does with each field, by its column (see {@link TrialsBuilder.readPlainLine}). */
+const enum Role {
+  Skip,
+  Latency,
+  Scale,
+  Difficulty,
+  Hit,
+  Hits,
+  Attempts,
+  Weight,
+  Player,
+}
+
+const ROLE_OF: Record<KnownColumn, Role> = {
+  latency_ms: Role.Latency,
+  scale: Role.Scale,
+  difficulty: Role.Difficulty,
+  player: Role.Player,
+  hit: Role.Hit,
+  hits: Role.Hits,
+  attempts: Role.Attempts,
+  weight: Role.Weight,
+};
+
+const MINUS = 0x2d;
+const PLUS = 0x2b;
+const DOT = 0x2e;
+const DIGIT_0 = 0x30;
+const DIGIT_9 = 0x39;
+const QUOTE_BYTE = 0x22;
+
+/** Whether a name field's first and last bytes are visible ASCII (so it needs no trimming). */
+function visible(byte: number): boolean {
+  return byte > 0x20 && byte < 0x7f;
+}
+
+export class TrialsBuilder implements PlainLineReader {
   readonly file: string;
+  /** Called with the number of rows read, every million rows. */
+  onProgress: ((rows: number) => void) | undefined;
+  /** The role of each field, from the header. */
+  private roles = new Uint8Array(0);
+  private delimiterByte = 0x2c;
   private columnIndex = new Map<KnownColumn, number>();
   private shape: 'per_attempt' | 'per_round' = 'per_attempt';
   private readonly latency: FloatColumn;
@@ -335,6 +280,11 @@ export class TrialsBuilder {
       } else unknown.push(name);
     });
     this.fieldCount = fields.length;
+    this.delimiterByte = delimiter.charCodeAt(0);
+    this.roles = Uint8Array.from(fields, (_, index) => {
+      const entry = [...this.columnIndex].find(([, at]) => at === index);
+      return entry === undefined ? Role.Skip : ROLE_OF[entry[0]];
+    });
     if (this.failure) return false;
     const missing = (['latency_ms', 'scale', 'difficulty'] as const).filter((name) => !this.columnIndex.has(name));
     const hasHit = this.columnIndex.has('hit');
@@ -466,7 +416,102 @@ export class TrialsBuilder {
     this.attempts.push(attempts);
     if (this.weightAt >= 0) this.weight.push(weight);
     this.rows += 1;
+    if (this.onProgress !== undefined && this.rows % 1_000_000 === 0) this.onProgress(this.rows);
     return true;
+  }
+
+  /**
+   * Read one plain line straight from the bytes (see {@link PlainLineReader}):
+   * every field unquoted, numbers `[+-]digits[.digits]` of at most 15 digits
+   * (read as {@link plainDecimal} reads them), names already known by their
+   * bytes, every value in range, and the line ending in LF or CRLF within
+   * `length`. Returns the index past the line end, or -1 with nothing taken,
+   * so that {@link row} reads the line by the full rules (and reports it if
+   * it is bad). The same row comes out either way.
+   */
+  readPlainLine(bytes: Uint8Array, start: number, length: number): number {
+    if (this.rows >= MAX_TRIAL_ROWS) return -1;
+    const roles = this.roles;
+    const last = roles.length - 1;
+    const delimiter = this.delimiterByte;
+    let latency = -1;
+    let scale = 0;
+    let successes = -1;
+    let attempts = 1;
+    let weight = 1;
+    let difficulty = -1;
+    let player = -1;
+    let i = start;
+    for (let field = 0; field <= last; field += 1) {
+      const role = roles[field] as Role;
+      const fieldStart = i;
+      if (role === Role.Difficulty || role === Role.Player || role === Role.Skip) {
+        while (i < length) {
+          const byte = bytes[i] as number;
+          if (byte === delimiter || byte === LINE_FEED || byte === CARRIAGE_RETURN || byte === QUOTE_BYTE) break;
+          i += 1;
+        }
+        if (role !== Role.Skip) {
+          if (i === fieldStart || !visible(bytes[fieldStart] as number) || !visible(bytes[i - 1] as number)) return -1;
+          const code = (role === Role.Difficulty ? this.difficulty : this.player).codeOfBytes(bytes, fieldStart, i);
+          if (code < 0) return -1;
+          if (role === Role.Difficulty) difficulty = code;
+          else player = code;
+        }
+      } else {
+        let negative = false;
+        const sign = bytes[i];
+        if (sign === MINUS) {
+          negative = true;
+          i += 1;
+        } else if (sign === PLUS) i += 1;
+        let mantissa = 0;
+        let digits = 0;
+        let fraction = 0;
+        let dot = false;
+        for (; i < length; i += 1) {
+          const byte = bytes[i] as number;
+          if (byte >= DIGIT_0 && byte <= DIGIT_9) {
+            mantissa = mantissa * 10 + (byte - DIGIT_0);
+            digits += 1;
+            if (dot) fraction += 1;
+          } else if (byte === DOT && !dot) dot = true;
+          else break;
+        }
+        if (digits === 0 || digits > 15) return -1;
+        const magnitude = mantissa / (POWERS_OF_TEN[fraction] as number);
+        const value = negative ? -magnitude : magnitude;
+        if (role === Role.Latency) latency = value;
+        else if (role === Role.Scale) scale = value;
+        else if (role === Role.Hit || role === Role.Hits) successes = value;
+        else if (role === Role.Attempts) attempts = value;
+        else weight = value;
+      }
+      if (i >= length) return -1;
+      const next = bytes[i] as number;
+      if (field < last) {
+        if (next !== delimiter) return -1;
+        i += 1;
+      } else if (next === LINE_FEED) i += 1;
+      else if (next === CARRIAGE_RETURN && i + 1 < length && bytes[i + 1] === LINE_FEED) i += 2;
+      else return -1;
+    }
+    if (i - start > MAX_CSV_LINE_BYTES) return -1;
+    // The checks of `row` and `rest`; a value that fails one is left to them to report.
+    if (!(latency >= 0 && latency <= MAX_LATENCY_MS) || !(scale > 0) || !(weight >= 0)) return -1;
+    if (this.shape === 'per_attempt') {
+      if (successes !== 0 && successes !== 1) return -1;
+    } else if (!Number.isInteger(attempts) || attempts < 1 || !Number.isInteger(successes) || successes < 0 || successes > attempts) return -1;
+    this.latency.push(latency);
+    this.scale.push(scale);
+    this.successes.push(successes);
+    this.attempts.push(attempts);
+    if (this.weightAt >= 0) this.weight.push(weight);
+    this.difficulty.pushCode(difficulty);
+    if (this.playerAt >= 0) this.player.pushCode(player);
+    this.rows += 1;
+    if (this.onProgress !== undefined && this.rows % 1_000_000 === 0) this.onProgress(this.rows);
+    return i;
   }
   /** The columns, or the failure with the number of rows read before it. */
   finish(): Result<Trials> {
@@ -506,204 +551,31 @@ export class TrialsBuilder {
   }
 }
 
-const QUOTE = 0x22;
-const LINE_FEED = 0x0a;
-const CARRIAGE_RETURN = 0x0d;
-
-/**
- * A streaming RFC 4180 scanner over UTF-8 bytes: feed it chunks in order
- * ({@link push}), then {@link end}. Each record goes to `onRecord` with the
- * line it starts on; empty lines are skipped; a record longer than
- * {@link MAX_CSV_LINE_BYTES} is refused as soon as that many bytes are seen.
- * Only the unfinished last record of a chunk is kept (copied) for the next.
- */
-export class CsvScanner {
-  private readonly file: string;
-  private readonly delimiter: number;
-  private readonly onRecord: (record: CsvRecord, line: number) => boolean;
-  private readonly record = new CsvRecord();
-  private carry: Uint8Array | null = null;
-  private work = new Uint8Array(0);
-  private line = 1;
-  private first = true;
-  private stopped = false;
-  failure: Issue | undefined;
-
-  constructor(file: string, delimiter: ',' | ';' | '\t', onRecord: (record: CsvRecord, line: number) => boolean) {
-    this.file = file;
-    this.delimiter = delimiter.charCodeAt(0);
-    this.onRecord = onRecord;
-  }
-
-  /** Scan one chunk; false once scanning has stopped (a failure, or `onRecord` returned false). */
-  push(chunk: Uint8Array): boolean {
-    if (this.stopped) return false;
-    let bytes = chunk;
-    if (this.carry !== null) {
-      // The unfinished record, then the chunk, in one reused buffer.
-      const needed = this.carry.length + chunk.length;
-      if (this.work.length < needed) this.work = new Uint8Array(needed + (needed >> 2));
-      this.work.set(this.carry);
-      this.work.set(chunk, this.carry.length);
-      bytes = this.work.subarray(0, needed);
-      this.carry = null;
-    }
-    this.scan(bytes, false);
-    return !this.stopped;
-  }
-
-  /** The end of the input: the last record may lack a line end. */
-  end(): boolean {
-    if (this.stopped) return false;
-    const bytes = this.carry ?? new Uint8Array(0);
-    this.carry = null;
-    this.scan(bytes, true);
-    return !this.stopped;
-  }
-
-  private fail(code: string, line: number, message: string): void {
-    this.failure = error(code, `${this.file}:${line}`, message);
-    this.stopped = true;
-  }
-
-  private scan(bytes: Uint8Array, final: boolean): void {
-    let position = 0;
-    if (this.first) {
-      if (bytes.length < 3 && !final) {
-        this.carry = new Uint8Array(bytes); // a copy (Buffer#slice would be a view)
-        return;
-      }
-      this.first = false;
-      if (bytes[0] === 0xef && bytes[1] === 0xbb && bytes[2] === 0xbf) position = 3;
-    }
-    const length = bytes.length;
-    const delimiter = this.delimiter;
-    const record = this.record;
-    record.bytes = bytes;
-    while (position < length) {
-      const recordStart = position;
-      const startLine = this.line;
-      let lines = 0;
-      record.count = 0;
-      let i = position;
-      let complete = false;
-      const limit = recordStart + MAX_CSV_LINE_BYTES;
-      // One field per turn.
-      for (;;) {
-        if (bytes[i] === QUOTE && i < length) {
-          i += 1;
-          const start = i;
-          let quoting = 1;
-          let closed = -1;
-          while (i < length) {
-            const byte = bytes[i] as number;
-            if (byte === QUOTE) {
-              if (bytes[i + 1] === QUOTE) {
-                quoting = 2;
-                i += 2;
-                continue;
-              }
-              if (i + 1 >= length && !final) break; // the next byte decides
-              closed = i;
-              i += 1;
-              break;
-            }
-            if (byte === LINE_FEED) lines += 1;
-            i += 1;
-            if (i > limit) break;
-          }
-          if (i > limit) {
-            this.fail('line_too_long', startLine, `a line requires at most ${MAX_CSV_LINE_BYTES} bytes (the documented limit), got a longer one`);
-            return;
-          }
-          if (closed < 0) {
-            if (final) this.fail('invalid_csv', startLine, 'the file requires well-formed CSV: a quoted field is not closed before the end of the file');
-            break;
-          }
-          record.add(start, closed, quoting);
-        } else {
-          const start = i;
-          const stop = Math.min(length, limit + 1);
-          while (i < stop) {
-            const byte = bytes[i] as number;
-            if (byte === delimiter || byte === LINE_FEED || byte === CARRIAGE_RETURN) break;
-            if (byte === QUOTE) {
-              this.fail('invalid_csv', startLine, 'the file requires well-formed CSV: a quote may only open a field, got one inside an unquoted field');
-              return;
-            }
-            i += 1;
-          }
-          if (i > limit) {
-            this.fail('line_too_long', startLine, `a line requires at most ${MAX_CSV_LINE_BYTES} bytes (the documented limit), got a longer one`);
-            return;
-          }
-          record.add(start, i, 0);
-        }
-        if (i >= length) {
-          complete = final;
-          break;
-        }
-        const next = bytes[i] as number;
-        if (next === delimiter) {
-          i += 1;
-          continue;
-        }
-        if (next === LINE_FEED) {
-          i += 1;
-          lines += 1;
-          complete = true;
-          break;
-        }
-        if (next === CARRIAGE_RETURN) {
-          if (i + 1 >= length && !final) break; // a CRLF split across chunks
-          i += bytes[i + 1] === LINE_FEED ? 2 : 1;
-          lines += 1;
-          complete = true;
-          break;
-        }
-        this.fail('invalid_csv', startLine, 'the file requires well-formed CSV: a closing quote must be followed by a delimiter or a line end');
-        return;
-      }
-      if (this.stopped) return;
-      if (!complete) {
-        if (i - recordStart > MAX_CSV_LINE_BYTES) {
-          this.fail('line_too_long', startLine, `a line requires at most ${MAX_CSV_LINE_BYTES} bytes (the documented limit), got a longer one`);
-          return;
-        }
-        this.carry = new Uint8Array(bytes.subarray(recordStart)); // a copy: the caller may reuse the chunk
-        return;
-      }
-      this.line = startLine + lines;
-      position = i;
-      // An empty line is one empty unquoted field.
-      if (record.count === 1 && record.quoting[0] === 0 && record.starts[0] === record.ends[0]) continue;
-      if (!this.onRecord(record, startLine)) {
-        this.stopped = true;
-        return;
-      }
-    }
-  }
-}
-
 /** Scan trials CSV bytes, chunk by chunk, into a builder. */
 export class TrialsReader {
   readonly builder: TrialsBuilder;
   private readonly scanner: CsvScanner;
   private headerSeen = false;
-  private readonly onProgress: ((rows: number) => void) | undefined;
 
-  constructor(file: string, delimiter: ',' | ';' | '\t', options: { capacity?: number; onProgress?: (rows: number) => void } = {}) {
-    this.builder = new TrialsBuilder(file, options.capacity);
-    this.onProgress = options.onProgress;
-    this.scanner = new CsvScanner(file, delimiter, (record, line) => {
-      if (!this.headerSeen) {
-        this.headerSeen = true;
-        return this.builder.header(record.texts(), line, delimiter);
-      }
-      if (!this.builder.row(record, line)) return false;
-      if (this.onProgress !== undefined && this.builder.rows % 1_000_000 === 0) this.onProgress(this.builder.rows);
+  /**
+   * `capacity`: expected rows; `onProgress`: called every million rows;
+   * `plainLines` (default true): read plain lines in one pass (see
+   * {@link TrialsBuilder.readPlainLine}); false sends every line through the
+   * full rules, with the same result, more slowly (a test compares the two).
+   */
+  constructor(file: string, delimiter: ',' | ';' | '\t', options: { capacity?: number; onProgress?: (rows: number) => void; plainLines?: boolean } = {}) {
+    const builder = new TrialsBuilder(file, options.capacity);
+    builder.onProgress = options.onProgress;
+    this.builder = builder;
+    const scanner = new CsvScanner(file, delimiter, (record, line) => {
+      if (this.headerSeen) return builder.row(record, line);
+      this.headerSeen = true;
+      if (!builder.header(record.texts(), line, delimiter)) return false;
+      // From here on the builder reads plain lines itself; the scanner keeps the rest.
+      if (options.plainLines !== false) scanner.plainLines = builder;
       return true;
     });
+    this.scanner = scanner;
   }
 
   push(chunk: Uint8Array): boolean {

@@ -10,7 +10,7 @@
 import { describe, expect, it } from 'vitest';
 import fc from 'fast-check';
 import { parse } from 'csv-parse/sync';
-import { CsvScanner } from '../../src/formats/trials-csv.js';
+import { CsvScanner } from '../../src/formats/csv-scanner.js';
 
 function scan(text: string, delimiter: ',' | ';' | '\t', chunkSize: number): string[][] {
   const records: string[][] = [];

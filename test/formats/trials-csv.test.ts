@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import fc from 'fast-check';
+import { parse } from 'csv-parse/sync';
 import { TrialsReader, detectDelimiter, parseDecimal, parseTrialsCsv, trialRowSchema } from '../../src/formats/trials-csv.js';
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
@@ -170,6 +171,124 @@ describe('TrialsReader', () => {
         } else expect(result.ok).toBe(false);
       }),
       { seed: 11, numRuns: 500 },
+    );
+  });
+});
+
+describe('TrialsReader plain lines', () => {
+  /** Every kind of field a line can hold: plain ones the one-pass reader takes, and ones it must leave to the full rules. */
+  /** Mostly plain fields, some valid ones the one-pass reader must leave to the full rules, a few bad ones (which end the file). */
+  const mix = (plain: fc.Arbitrary<string>, unusual: readonly string[], bad: readonly string[]) =>
+    fc.oneof({ arbitrary: plain, weight: 40 }, { arbitrary: fc.constantFrom(...unusual), weight: 8 }, { arbitrary: fc.constantFrom(...bad), weight: 1 });
+  const latencies = mix(
+    fc.integer({ min: 0, max: 50_000 }).map((hundredths) => (hundredths / 100).toFixed(hundredths % 3)),
+    ['0', '+7', '-0', '.5', '12.', ' 12.5', '"12.5"', '1.2e1', '60000', '1234567890123456', '123456789012345'],
+    ['', '-3', '60000.01', 'x', '1..2'],
+  );
+  const scales = mix(fc.constantFrom('1', '1.25', '1.5', '2'), ['1e0', ' 1', '"2"', '001.50', '+1'], ['0', '-1', '1.5.1']);
+  const names = mix(fc.constantFrom('easy', 'hard', 'mid level', '3', '2.5'), ['"quoted, name"', ' padded ', 'ünï', '"easy"', 'new'], ['', 'a"b']);
+  const players = mix(fc.integer({ min: 0, max: 40 }).map((id) => `p${id}`), ['"p1"', ' p2', 'p41 '], ['']);
+  const hits = mix(fc.constantFrom('0', '1'), [' 1', '"1"', '1e0', '1.0', '+0'], ['2', '0.5', '']);
+  const counts = mix(fc.constantFrom('1', '3', '10'), ['0', '"4"', '3.0'], ['2.5', '-1']);
+  const weights = mix(fc.constantFrom('1', '0.5', '0', '2'), ['1e-1', ' 2'], ['-1', '']);
+  const layouts = fc.record({
+    perRound: fc.boolean(),
+    player: fc.boolean(),
+    weight: fc.boolean(),
+    extra: fc.boolean(),
+    order: fc.integer({ min: 0, max: 5 }),
+  });
+
+  function generated() {
+    return layouts.chain((layout) => {
+      const columns: [string, fc.Arbitrary<string>][] = [
+        ['latency_ms', latencies],
+        ['scale', scales],
+        ['difficulty', names],
+        ...(layout.perRound ? ([['hits', counts], ['attempts', counts]] as [string, fc.Arbitrary<string>][]) : ([['hit', hits]] as [string, fc.Arbitrary<string>][])),
+        ...(layout.player ? ([['player', players]] as [string, fc.Arbitrary<string>][]) : []),
+        ...(layout.weight ? ([['weight', weights]] as [string, fc.Arbitrary<string>][]) : []),
+        ...(layout.extra ? ([['note', fc.constantFrom('x', '', '"a, b"', 'say "hi"')]] as [string, fc.Arbitrary<string>][]) : []),
+      ];
+      // A rotation of the columns, so no field is always first or last.
+      const ordered = columns.map((_, k) => columns[(k + layout.order) % columns.length] as [string, fc.Arbitrary<string>]);
+      const row = fc.tuple(...ordered.map(([, values]) => values));
+      return fc.record({
+        header: fc.constant(ordered.map(([name]) => name).join(',')),
+        rows: fc.array(fc.tuple(row, fc.constantFrom('\n', '\n', '\n', '\r\n', '\r')), { minLength: 1, maxLength: 60 }),
+        finalEnd: fc.boolean(),
+        chunk: fc.integer({ min: 1, max: 64 }),
+      });
+    });
+  }
+
+  function read(bytes: Buffer, chunk: number, plainLines: boolean) {
+    const reader = new TrialsReader('mixed.csv', ',', { plainLines });
+    for (let start = 0; start < bytes.length; start += chunk) if (!reader.push(bytes.subarray(start, start + chunk))) break;
+    return reader.finish();
+  }
+
+  it('reads the same columns, warnings and first failure as the full rules alone (fast-check, 400 runs, seed 23)', () => {
+    fc.assert(
+      fc.property(generated(), ({ header, rows, finalEnd, chunk }) => {
+        const body = rows.map(([fields, end], k) => `${fields.join(',')}${k < rows.length - 1 || finalEnd ? end : ''}`).join('');
+        const bytes = Buffer.from(`${header}\n${body}`, 'utf8');
+        const plain = read(bytes, chunk, true);
+        expect(plain).toEqual(read(bytes, chunk, false));
+        expect(plain).toEqual(read(bytes, bytes.length, true));
+      }),
+      { seed: 23, numRuns: 400 },
+    );
+  });
+
+  it.each([
+    ['the latency limit', 'latency_ms,scale,difficulty,hit\n60000,1,a,1\n60000.01,1,a,1\n'],
+    ['a negative zero and signs', 'latency_ms,scale,difficulty,hit\n-0,+1,a,+0\n-1,1,a,1\n'],
+    ['15 and 16 digits', 'latency_ms,scale,difficulty,hit\n1,123456789012345,a,1\n1,9007199254740995,a,1\n1,0.1000000000000001,a,1\n'],
+    ['a bare CR, then CRLF split by the chunk end', 'latency_ms,scale,difficulty,hit\r1,1,a,1\r2,1,a,0\r\n3,1,a,1\r\n'],
+    ['a scale of zero', 'latency_ms,scale,difficulty,hit\n1,1,a,1\n1,0,a,1\n'],
+    ['a hit of 2', 'latency_ms,scale,difficulty,hit\n1,1,a,1\n1,1,a,2\n'],
+    ['hits above attempts', 'latency_ms,scale,difficulty,hits,attempts\n1,1,a,2,3\n1,1,a,4,3\n'],
+    ['a fractional attempt count', 'latency_ms,scale,difficulty,hits,attempts\n1,1,a,2,3\n1,1,a,1,2.5\n'],
+    ['a negative weight', 'latency_ms,scale,difficulty,hit,weight\n1,1,a,1,0\n1,1,a,1,-1\n'],
+    ['an empty player', 'latency_ms,scale,difficulty,hit,player\n1,1,a,1,p\n1,1,a,1,\n'],
+    ['one field too many', 'latency_ms,scale,difficulty,hit\n1,1,a,1\n1,1,a,1,\n'],
+    ['one field too few', 'latency_ms,scale,difficulty,hit\n1,1,a,1\n1,1,a\n'],
+    ['a quote inside a name', 'latency_ms,scale,difficulty,hit\n1,1,a,1\n1,1,a"b,1\n'],
+    ['a name padded after it was seen plain', 'latency_ms,scale,difficulty,hit\n1,1,a,1\n1,1, a ,1\n1,1,a,0\n'],
+  ])('reads %s the same with and without plain lines, at every chunk size', (_, text) => {
+    const bytes = Buffer.from(text, 'utf8');
+    const expected = read(bytes, bytes.length, false);
+    for (let chunk = 1; chunk <= bytes.length; chunk += 1) {
+      expect(read(bytes, chunk, true), `chunks of ${chunk}`).toEqual(expected);
+    }
+  });
+
+  it('reads plain lines to the values csv-parse and Number() give (fast-check, 200 runs, seed 29)', () => {
+    const plainRow = fc.tuple(
+      fc.integer({ min: 0, max: 5_000_000 }).map((hundredths) => (hundredths / 100).toFixed(2)),
+      fc.constantFrom('1', '1.25', '1.5', '2'),
+      fc.constantFrom('easy', 'hard', 'elite'),
+      fc.constantFrom('0', '1'),
+      fc.integer({ min: 0, max: 9 }).map((id) => `p${id}`),
+    );
+    fc.assert(
+      fc.property(fc.array(plainRow, { minLength: 1, maxLength: 200 }), fc.constantFrom('\n', '\r\n'), (rows, end) => {
+        const text = `latency_ms,scale,difficulty,hit,player${end}${rows.map((row) => row.join(',')).join(end)}${end}`;
+        const result = read(Buffer.from(text, 'utf8'), 1 << 16, true);
+        expect(result.ok).toBe(true);
+        if (!result.ok) return;
+        // Reference: csv-parse (the npm registry's streaming CSV parser) and Number().
+        const records = parse(text, { columns: true }) as Record<string, string>[];
+        expect(Array.from(result.value.latency)).toEqual(records.map((record) => Number(record.latency_ms)));
+        expect(Array.from(result.value.scale)).toEqual(records.map((record) => Number(record.scale)));
+        expect(Array.from(result.value.successes)).toEqual(records.map((record) => Number(record.hit)));
+        const { difficulty, player } = result.value;
+        if (difficulty.kind !== 'levels' || player === null) throw new Error('expected named levels and players');
+        expect(Array.from(difficulty.codes, (code) => difficulty.levels[code])).toEqual(records.map((record) => record.difficulty));
+        expect(Array.from(player.codes, (code) => player.ids[code])).toEqual(records.map((record) => record.player));
+      }),
+      { seed: 29, numRuns: 200 },
     );
   });
 });

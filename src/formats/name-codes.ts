@@ -1,0 +1,109 @@
+/**
+ * Names (difficulty levels, player ids) interned to integer codes in order of
+ * first appearance, looked up from raw field bytes so that a repeated name
+ * never becomes a string per row.
+ *
+ * The byte lookup is an open-addressing table (linear probing, Knuth, TAOCP
+ * vol. 3, §6.4) on an FNV-1a hash of the bytes, holding each name's UTF-8
+ * bytes for an exact comparison; it is kept at most half full and doubled as
+ * names arrive. Names past {@link MAX_BYTE_NAMES} are found by their string
+ * only (a file of that many distinct players is rare and still correct).
+ */
+
+/** Names held in the byte table; later names are looked up as strings. */
+const MAX_BYTE_NAMES = 1 << 16;
+
+function hashBytes(bytes: Uint8Array, start: number, end: number): number {
+  let hash = 0x811c9dc5;
+  for (let k = start; k < end; k += 1) hash = Math.imul(hash ^ (bytes[k] as number), 0x01000193);
+  return hash >>> 0;
+}
+
+export class NameCodes {
+  readonly names: string[] = [];
+  private readonly index = new Map<string, number>();
+  /** UTF-8 bytes of each name in the byte table, by code. */
+  private readonly known: Uint8Array[] = [];
+  /** Slots of code + 1 (0: empty). */
+  private table = new Int32Array(32);
+  private last = -1;
+  private codes: Int32Array;
+  length = 0;
+
+  constructor(capacity: number) {
+    this.codes = new Int32Array(Math.max(16, capacity));
+  }
+
+  /** Append a code to the column. */
+  pushCode(code: number): void {
+    if (this.length === this.codes.length) {
+      const next = new Int32Array(this.codes.length * 2);
+      next.set(this.codes);
+      this.codes = next;
+    }
+    this.codes[this.length] = code;
+    this.length += 1;
+  }
+
+  private matches(code: number, bytes: Uint8Array, start: number, end: number): boolean {
+    const name = this.known[code];
+    if (name === undefined || name.length !== end - start) return false;
+    for (let k = 0; k < name.length; k += 1) if (name[k] !== bytes[start + k]) return false;
+    return true;
+  }
+
+  /** The code of the name whose UTF-8 bytes are `bytes[start, end)`, or -1 if the byte table does not hold it. */
+  codeOfBytes(bytes: Uint8Array, start: number, end: number): number {
+    const last = this.last;
+    if (last >= 0 && this.matches(last, bytes, start, end)) return last;
+    const mask = this.table.length - 1;
+    for (let slot = hashBytes(bytes, start, end) & mask; ; slot = (slot + 1) & mask) {
+      const entry = this.table[slot] as number;
+      if (entry === 0) return -1;
+      if (this.matches(entry - 1, bytes, start, end)) {
+        this.last = entry - 1;
+        return entry - 1;
+      }
+    }
+  }
+
+  private remember(code: number, bytes: Uint8Array): void {
+    if (code !== this.known.length || code >= MAX_BYTE_NAMES) return;
+    this.known.push(bytes);
+    if (2 * this.known.length > this.table.length) {
+      this.table = new Int32Array(this.table.length * 2);
+      this.known.forEach((name, known) => this.place(known, name));
+    } else this.place(code, bytes);
+  }
+
+  private place(code: number, bytes: Uint8Array): void {
+    const mask = this.table.length - 1;
+    let slot = hashBytes(bytes, 0, bytes.length) & mask;
+    while (this.table[slot] !== 0) slot = (slot + 1) & mask;
+    this.table[slot] = code + 1;
+  }
+
+  /** Push a plain field (no trimming or unescaping needed) by its bytes. */
+  pushBytes(bytes: Uint8Array, start: number, end: number): void {
+    const code = this.codeOfBytes(bytes, start, end);
+    if (code >= 0) return this.pushCode(code);
+    this.push(Buffer.from(bytes.buffer, bytes.byteOffset, bytes.byteLength).toString('utf8', start, end));
+  }
+
+  /** Push a name by its text. */
+  push(name: string): void {
+    let code = this.index.get(name);
+    if (code === undefined) {
+      code = this.names.length;
+      this.names.push(name);
+      this.index.set(name, code);
+      this.remember(code, Buffer.from(name, 'utf8'));
+    }
+    this.pushCode(code);
+  }
+
+  finish(): Int32Array {
+    const filled = this.codes.subarray(0, this.length);
+    return this.length * 8 >= this.codes.length * 7 ? filled : filled.slice();
+  }
+}
