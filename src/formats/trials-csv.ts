@@ -133,37 +133,55 @@ class FloatColumn {
 /** Powers of ten that are exact in a double (10^0 .. 10^22). */
 const POWERS_OF_TEN = Float64Array.from({ length: 23 }, (_, k) => 10 ** k);
 
+const MINUS = 0x2d;
+const PLUS = 0x2b;
+const DOT = 0x2e;
+const DIGIT_0 = 0x30;
+const DIGIT_9 = 0x39;
+
+/** The value of the last successful {@link scanDecimal}. */
+let scannedDecimal = 0;
+
 /**
- * A plain decimal (`[+-]digits[.digits]`, at most 15 digits) read from bytes,
- * or undefined when the field needs the full rules of {@link parseDecimal}. With at
- * most 15 digits the mantissa and 10^f are exact doubles, so one correctly
- * rounded division gives the same double as `Number(text)` (Clinger 1990,
- * How to read floating point numbers accurately, PLDI, the fast path).
+ * Scan a plain decimal (`[+-]digits[.digits]`, at most 15 digits) from
+ * `bytes[start]`, stopping at the first byte that is not part of one (or at
+ * `end`): returns the index after it, with the value in `scannedDecimal`, or
+ * -1 when there is none or it needs the full rules of {@link parseDecimal}.
+ * With at most 15 digits the mantissa and 10^f are exact doubles, so one
+ * correctly rounded division gives the same double as `Number(text)`
+ * (Clinger 1990, How to read floating point numbers accurately, PLDI, the
+ * fast path).
  */
-function plainDecimal(bytes: Uint8Array, start: number, end: number): number | undefined {
+function scanDecimal(bytes: Uint8Array, start: number, end: number): number {
   let k = start;
   let negative = false;
   const first = bytes[k];
-  if (first === 0x2d) {
+  if (first === MINUS) {
     negative = true;
     k += 1;
-  } else if (first === 0x2b) k += 1;
+  } else if (first === PLUS) k += 1;
   let mantissa = 0;
   let digits = 0;
   let fraction = 0;
   let dot = false;
   for (; k < end; k += 1) {
     const byte = bytes[k] as number;
-    if (byte >= 0x30 && byte <= 0x39) {
-      mantissa = mantissa * 10 + (byte - 0x30);
+    if (byte >= DIGIT_0 && byte <= DIGIT_9) {
+      mantissa = mantissa * 10 + (byte - DIGIT_0);
       digits += 1;
       if (dot) fraction += 1;
-    } else if (byte === 0x2e && !dot) dot = true;
-    else return undefined;
+    } else if (byte === DOT && !dot) dot = true;
+    else break;
   }
-  if (digits === 0 || digits > 15) return undefined;
+  if (digits === 0 || digits > 15) return -1;
   const value = mantissa / (POWERS_OF_TEN[fraction] as number);
-  return negative ? -value : value;
+  scannedDecimal = negative ? -value : value;
+  return k;
+}
+
+/** A field that is exactly a plain decimal (see {@link scanDecimal}), or undefined. */
+function plainDecimal(bytes: Uint8Array, start: number, end: number): number | undefined {
+  return scanDecimal(bytes, start, end) === end ? scannedDecimal : undefined;
 }
 
 /** Whether a field's bytes need no trimming and no unescaping (first and last byte visible ASCII). */
@@ -204,11 +222,6 @@ const ROLE_OF: Record<KnownColumn, Role> = {
   weight: Role.Weight,
 };
 
-const MINUS = 0x2d;
-const PLUS = 0x2b;
-const DOT = 0x2e;
-const DIGIT_0 = 0x30;
-const DIGIT_9 = 0x39;
 const QUOTE_BYTE = 0x22;
 
 /** Whether a name field's first and last bytes are visible ASCII (so it needs no trimming). */
@@ -459,28 +472,9 @@ export class TrialsBuilder implements PlainLineReader {
           else player = code;
         }
       } else {
-        let negative = false;
-        const sign = bytes[i];
-        if (sign === MINUS) {
-          negative = true;
-          i += 1;
-        } else if (sign === PLUS) i += 1;
-        let mantissa = 0;
-        let digits = 0;
-        let fraction = 0;
-        let dot = false;
-        for (; i < length; i += 1) {
-          const byte = bytes[i] as number;
-          if (byte >= DIGIT_0 && byte <= DIGIT_9) {
-            mantissa = mantissa * 10 + (byte - DIGIT_0);
-            digits += 1;
-            if (dot) fraction += 1;
-          } else if (byte === DOT && !dot) dot = true;
-          else break;
-        }
-        if (digits === 0 || digits > 15) return -1;
-        const magnitude = mantissa / (POWERS_OF_TEN[fraction] as number);
-        const value = negative ? -magnitude : magnitude;
+        i = scanDecimal(bytes, i, length);
+        if (i < 0) return -1;
+        const value = scannedDecimal;
         if (role === Role.Latency) latency = value;
         else if (role === Role.Scale) scale = value;
         else if (role === Role.Hit || role === Role.Hits) successes = value;
