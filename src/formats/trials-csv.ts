@@ -139,13 +139,16 @@ const DOT = 0x2e;
 const DIGIT_0 = 0x30;
 const DIGIT_9 = 0x39;
 
-/** The value of the last successful {@link scanDecimal}. */
-let scannedDecimal = 0;
+/**
+ * The value of the last successful {@link scanDecimal}, in a typed array: a
+ * double stored in a module variable would be boxed on every store.
+ */
+const scanned = new Float64Array(1);
 
 /**
  * Scan a plain decimal (`[+-]digits[.digits]`, at most 15 digits) from
  * `bytes[start]`, stopping at the first byte that is not part of one (or at
- * `end`): returns the index after it, with the value in `scannedDecimal`, or
+ * `end`): returns the index after it, with the value in `scanned[0]`, or
  * -1 when there is none or it needs the full rules of {@link parseDecimal}.
  * With at most 15 digits the mantissa and 10^f are exact doubles, so one
  * correctly rounded division gives the same double as `Number(text)`
@@ -175,13 +178,13 @@ function scanDecimal(bytes: Uint8Array, start: number, end: number): number {
   }
   if (digits === 0 || digits > 15) return -1;
   const value = mantissa / (POWERS_OF_TEN[fraction] as number);
-  scannedDecimal = negative ? -value : value;
+  scanned[0] = negative ? -value : value;
   return k;
 }
 
 /** A field that is exactly a plain decimal (see {@link scanDecimal}), or undefined. */
 function plainDecimal(bytes: Uint8Array, start: number, end: number): number | undefined {
-  return scanDecimal(bytes, start, end) === end ? scannedDecimal : undefined;
+  return scanDecimal(bytes, start, end) === end ? (scanned[0] as number) : undefined;
 }
 
 /** Whether a field's bytes need no trimming and no unescaping (first and last byte visible ASCII). */
@@ -474,7 +477,7 @@ export class TrialsBuilder implements PlainLineReader {
       } else {
         i = scanDecimal(bytes, i, length);
         if (i < 0) return -1;
-        const value = scannedDecimal;
+        const value = scanned[0] as number;
         if (role === Role.Latency) latency = value;
         else if (role === Role.Scale) scale = value;
         else if (role === Role.Hit || role === Role.Hits) successes = value;

@@ -22,9 +22,14 @@
  * the deviance; the fixed point (score = 0) is the same, only reached faster.
  *
  * Covariance: the inverse of the expected (Fisher) information X'WX with
- * W = n (dmu/deta)^2 / (mu (1 - mu)), evaluated AT the final estimate (R's
- * `summary.glm` uses the weights of the last iteration, i.e. of the previous
- * iterate). For the logit link expected and observed information coincide;
+ * W = n (dmu/deta)^2 / (mu (1 - mu)). For probit and cloglog it is evaluated
+ * AT the final estimate (R's `summary.glm` uses the weights of the last
+ * iteration, i.e. of the previous iterate). For the logit link, whose Fisher
+ * steps are Newton steps, the last step (at most `tolerance` standard errors)
+ * is taken without a pass at its result, so the information is that of the
+ * iterate it stepped from, as in R, and differs from the one at the estimate
+ * by O(tolerance); the estimate, fitted values and likelihood are at the
+ * estimate. For the logit link expected and observed information coincide;
  * for probit and cloglog this is R's / `sandwich`'s convention, not Stata's
  * or statsmodels' observed information.
  *
@@ -262,7 +267,7 @@ export function fitBinomial(data: BinomialData, options: BinomialFitOptions = {}
   warnings.push(...iteration.warnings);
   const { coefficients } = iteration;
   const linearPredictor = iteration.atEstimate?.linearPredictor ?? multiply(kept, coefficients);
-  const state = linkState(link, linearPredictor, iteration.spares);
+  const state = linkState(link, linearPredictor, rows, iteration.spares);
   let boundaryRows = 0;
   let stillMoving = false;
   for (let i = 0; i < n; i += 1) {
@@ -357,7 +362,7 @@ export function fitBinomial(data: BinomialData, options: BinomialFitOptions = {}
   }
   const nullMu = hasIntercept ? totalSuccessWeight / totalWeight : link.inverse(0);
   const nullComplement = hasIntercept ? (totalWeight - totalSuccessWeight) / totalWeight : link.inverseComplement(0);
-  const bernoulliLogLikelihood = bernoulliLogLikelihoodOf(rows, state.mu, state.complement);
+  const bernoulliLogLikelihood = state.logLikelihood;
   // At a constant fitted probability the log-likelihood needs only the weighted totals.
   const nullBernoulliLogLikelihood =
     (totalSuccessWeight > 0 ? totalSuccessWeight * Math.log(nullMu) : 0) +
@@ -526,9 +531,16 @@ interface GlmRows {
 interface LinkState {
   readonly mu: Float64Array;
   readonly complement: Float64Array;
+  /** sum w [y log mu + (1 - y) log(1 - mu)] over `rows`. */
+  readonly logLikelihood: number;
 }
 
-function linkState(link: Link, linearPredictor: Float64Array, spares: readonly Float64Array[] = []): LinkState {
+/**
+ * mu and 1 - mu at `linearPredictor`, and the Bernoulli-level log-likelihood
+ * of `rows` there. For the logit link one exp and one log1p per row, as in
+ * {@link logitPass}; otherwise through the link object.
+ */
+function linkState(link: Link, linearPredictor: Float64Array, rows: GlmRows, spares: readonly Float64Array[] = []): LinkState {
   const n = linearPredictor.length;
   const buffer = (k: number) => {
     const spare = spares[k];
@@ -536,12 +548,31 @@ function linkState(link: Link, linearPredictor: Float64Array, spares: readonly F
   };
   const complement = buffer(0);
   const mu = buffer(1);
-  for (let i = 0; i < n; i += 1) {
-    const value = linearPredictor[i] as number;
-    mu[i] = link.inverse(value);
-    complement[i] = link.inverseComplement(value);
+  if (link.name !== 'logit') {
+    for (let i = 0; i < n; i += 1) {
+      const value = linearPredictor[i] as number;
+      mu[i] = link.inverse(value);
+      complement[i] = link.inverseComplement(value);
+    }
+    return { mu, complement, logLikelihood: bernoulliLogLikelihoodOf(rows, mu, complement) };
   }
-  return { mu, complement };
+  const { proportions, weights } = rows;
+  let logLikelihood = 0;
+  for (let i = 0; i < n; i += 1) {
+    const eta = linearPredictor[i] as number;
+    const exponential = Math.exp(-Math.abs(eta));
+    const inverse = 1 / (1 + exponential);
+    const small = exponential * inverse;
+    const softplus = Math.log1p(exponential);
+    const positive = eta >= 0;
+    mu[i] = positive ? inverse : small;
+    complement[i] = positive ? small : inverse;
+    const proportion = proportions[i] as number;
+    const weight = weights[i] as number;
+    if (proportion > 0) logLikelihood += weight * proportion * (positive ? -softplus : eta - softplus);
+    if (proportion < 1) logLikelihood += weight * (1 - proportion) * (positive ? -eta - softplus : -softplus);
+  }
+  return { mu, complement, logLikelihood };
 }
 
 /** sqrt of the IRLS weight w n (dmu/deta)^2 / (mu (1 - mu)); 0 where it underflows. */
@@ -601,7 +632,7 @@ function fusedPass(
   triangle: RowTriangle,
   factors: Float64Array,
 ): number {
-  return link.name === 'logit' && coefficients !== null
+  return link.name === 'logit'
     ? logitPass(design, rows, coefficients, linearPredictor, triangle, factors)
     : genericPass(design, rows, link, coefficients, linearPredictor, triangle, factors);
 }
@@ -619,7 +650,7 @@ function fusedPass(
 function logitPass(
   design: DesignMatrix,
   rows: GlmRows,
-  coefficients: ArrayLike<number>,
+  coefficients: ArrayLike<number> | null,
   linearPredictor: Float64Array,
   triangle: RowTriangle,
   factors: Float64Array,
@@ -633,16 +664,22 @@ function logitPass(
   const diagonal = triangle.diagonal;
   const upper = triangle.upper;
   const theta = triangle.theta;
-  const beta = Float64Array.from(coefficients);
+  const atStart = coefficients === null;
+  const beta = atStart ? new Float64Array(columns) : Float64Array.from(coefficients);
   let logLikelihood = 0;
   let residualSumOfSquares = 0;
   for (let i = 0; i < n; i += 1) {
     const weight = glmWeights[i] as number;
     const proportion = proportions[i] as number;
     let eta = 0;
-    for (let j = 0; j < columns; j += 1) {
-      const coefficient = beta[j] as number;
-      if (coefficient !== 0) eta += (values[j * n + i] as number) * coefficient;
+    if (atStart) {
+      // R's start mu = (w y + 0.5) / (w + 1): eta = log(mu / (1 - mu)).
+      eta = Math.log((weight * proportion + 0.5) / (weight * (1 - proportion) + 0.5));
+    } else {
+      for (let j = 0; j < columns; j += 1) {
+        const coefficient = beta[j] as number;
+        if (coefficient !== 0) eta += (values[j * n + i] as number) * coefficient;
+      }
     }
     linearPredictor[i] = eta;
     const exponential = Math.exp(-Math.abs(eta));
@@ -803,6 +840,23 @@ function iterate(
       break;
     }
     let candidate = solveLeastSquares(qr, reduction.effects).coefficients;
+    // Standard errors at the accepted iterate, the scale of its step.
+    const unscaled = inverseCrossProduct(qr);
+    if (coefficients !== null && link.name === 'logit') {
+      // Logit Fisher steps are Newton steps: once the step from the accepted iterate is
+      // below the tolerance, its result is the estimate, and the pass there is not run;
+      // the information stays that of the iterate it stepped from (as R's summary.glm
+      // takes it), which differs from the one at the estimate by O(tolerance).
+      const step = stepSize(candidate, coefficients, unscaled, lastStep);
+      if (step <= tolerance) {
+        coefficients = candidate;
+        multiply(design, candidate, previous);
+        [previous, current] = [current, previous];
+        accepted += 1;
+        converged = true;
+        break;
+      }
+    }
     triangle = new RowTriangle(columns);
     let deviance = fusedPass(design, rows, link, candidate, candidatePredictor, triangle, factors);
     // Near the optimum, a non-canonical link switches to Newton-Raphson steps
@@ -841,16 +895,9 @@ function iterate(
       warnings.push('step halving could not find coefficients with a finite deviance');
       break;
     }
-    const unscaled = inverseCrossProduct(qr);
     let stepInStandardErrors = Infinity;
     if (coefficients !== null) {
-      stepInStandardErrors = 0;
-      for (let j = 0; j < columns; j += 1) {
-        const step = (candidate[j] as number) - (coefficients[j] as number);
-        lastStep[j] = step;
-        const standardError = Math.sqrt(unscaled[j * columns + j] as number);
-        stepInStandardErrors = Math.max(stepInStandardErrors, Math.abs(step) / standardError);
-      }
+      stepInStandardErrors = stepSize(candidate, coefficients, unscaled, lastStep);
     } else {
       lastStep = Float64Array.from(candidate);
     }
@@ -1011,6 +1058,18 @@ function logBinomialCoefficients(
  * 1 - mu from the link's accurate complement, so a fitted probability that
  * rounds to 1 still leaves its true residual.
  */
+/** The largest |candidate - coefficients| in standard errors (sqrt of the diagonal of `unscaled`); the step is written to `step`. */
+function stepSize(candidate: Float64Array, coefficients: Float64Array, unscaled: Float64Array, step: Float64Array): number {
+  const columns = candidate.length;
+  let largest = 0;
+  for (let j = 0; j < columns; j += 1) {
+    const change = (candidate[j] as number) - (coefficients[j] as number);
+    step[j] = change;
+    largest = Math.max(largest, Math.abs(change) / Math.sqrt(unscaled[j * columns + j] as number));
+  }
+  return largest;
+}
+
 function residualOf(proportion: number, mu: number, complement: number): number {
   return proportion >= 0.5 ? complement - (1 - proportion) : proportion - mu;
 }

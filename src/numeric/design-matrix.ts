@@ -55,8 +55,9 @@ export function entry(design: DesignMatrix, row: number, column: number): number
 }
 
 /** The matrix-vector product X b, one value per row. Cost O(rows * columns). */
-export function multiply(design: DesignMatrix, coefficients: ArrayLike<number>): Float64Array {
-  const product = new Float64Array(design.rows);
+export function multiply(design: DesignMatrix, coefficients: ArrayLike<number>, target?: Float64Array): Float64Array {
+  const product = target ?? new Float64Array(design.rows);
+  if (target !== undefined) product.fill(0, 0, design.rows);
   for (let j = 0; j < design.columns; j += 1) {
     const coefficient = coefficients[j] as number;
     if (coefficient === 0) continue;
