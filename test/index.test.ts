@@ -67,6 +67,7 @@ describe('the package entry points', () => {
         "fitModel",
         "fiveNumber",
         "formatIssue",
+        "groupTrials",
         "jainIndex",
         "jsonSchemas",
         "linkFor",

@@ -2,9 +2,10 @@
 import { createHash } from 'node:crypto';
 import { basename } from 'node:path';
 import type { Command } from 'commander';
-import { type Issue, LagparityInputError, error, show } from '../issues.js';
+import { type Issue, LagparityInputError, type Result, error, ok, show } from '../issues.js';
 import { readTrialsFile } from '../io/read-trials.js';
 import { writeFileAtomic } from '../io/write-file.js';
+import { type GroupedTrials, groupTrials } from '../model/collapse.js';
 import { type FitFamily, type FitModelOptions, type FitReport, fitModel } from '../model/fit-model.js';
 import { LINK_NAMES, type LinkName } from '../model/links.js';
 import { type TermName, parseTermList } from '../model/terms.js';
@@ -190,6 +191,21 @@ function renderComparison(ranked: readonly Ranked[]): string {
   return `comparison, best held-out log loss first:\n${table.toString()}`;
 }
 
+/**
+ * Read the trials file (hashing its bytes in the same pass) and group it for
+ * fitting. The per-row columns are dropped on return: only the groups, a
+ * fraction of them on telemetry, stay in memory during the fit.
+ */
+async function readGrouped(path: string, progress: ReturnType<typeof progressLine>): Promise<Result<{ grouped: GroupedTrials; sha256: string }>> {
+  const hash = createHash('sha256');
+  const read = await readTrialsFile(path, {
+    onProgress: (rows) => progress.update(`read ${rows.toLocaleString('en-GB')} rows`),
+    onChunk: (bytes) => hash.update(bytes),
+  });
+  if (!read.ok) return read;
+  return ok({ grouped: groupTrials(read.value), sha256: hash.digest('hex') }, read.warnings);
+}
+
 export async function runFit(path: string, options: FitOptions): Promise<number> {
   const issues: Issue[] = [];
   if (!(LINK_NAMES as readonly string[]).includes(options.link)) {
@@ -223,18 +239,13 @@ export async function runFit(path: string, options: FitOptions): Promise<number>
   }
 
   const progress = progressLine();
-  const hash = createHash('sha256');
-  const read = await readTrialsFile(path, {
-    onProgress: (rows) => progress.update(`read ${rows.toLocaleString('en-GB')} rows`),
-    onChunk: (bytes) => hash.update(bytes),
-  });
+  const read = await readGrouped(path, progress);
   if (!read.ok) {
     progress.done();
     reportIssues(read.issues);
     return EXIT_BAD_INPUT;
   }
-  const trials = read.value;
-  const sha256 = hash.digest('hex');
+  const { grouped, sha256 } = read.value;
   const common: FitModelOptions = {
     link: options.link as LinkName,
     family: options.family as FitFamily,
@@ -248,9 +259,9 @@ export async function runFit(path: string, options: FitOptions): Promise<number>
   let report: FitReport;
   const ranked: Ranked[] = [];
   try {
-    report = fitModel(trials, { ...common, likelihoodRatioTests: options.lrTests === 'all', onProgress: (stage) => progress.update(stage) });
+    report = fitModel(grouped, { ...common, likelihoodRatioTests: options.lrTests === 'all', onProgress: (stage) => progress.update(stage) });
     for (const candidate of compare?.candidates ?? []) {
-      const fitted = fitModel(trials, {
+      const fitted = fitModel(grouped, {
         ...common,
         family: candidate.family,
         link: candidate.link,
@@ -271,7 +282,7 @@ export async function runFit(path: string, options: FitOptions): Promise<number>
   } catch (cause) {
     progress.done();
     if (cause instanceof LagparityInputError) {
-      reportIssues(cause.issues.map((issue) => ({ ...issue, location: issue.location.startsWith(trials.file) ? issue.location : `--${issue.location}` })));
+      reportIssues(cause.issues.map((issue) => ({ ...issue, location: issue.location.startsWith(grouped.file) ? issue.location : `--${issue.location}` })));
       return EXIT_BAD_INPUT;
     }
     throw cause;
@@ -284,7 +295,7 @@ export async function runFit(path: string, options: FitOptions): Promise<number>
   let written: string | null = null;
   let exit = estimated && (report.status === 'converged' || report.status === 'fitted') ? EXIT_OK : EXIT_BAD_INPUT;
   if (options.out !== undefined && exit === EXIT_OK) {
-    const model = toModelFile(report, { file: basename(path), rows: trials.rows, sha256, created_by: 'lagparity fit 0.1.0' });
+    const model = toModelFile(report, { file: basename(path), rows: grouped.groups.sourceRows, sha256, created_by: 'lagparity fit 0.1.0' });
     if (!model.ok) {
       reportIssues(model.issues);
       exit = EXIT_BAD_INPUT;
@@ -299,7 +310,7 @@ export async function runFit(path: string, options: FitOptions): Promise<number>
     reportIssues([error('not_written', options.out, `writing a model requires a converged fit, got status ${report.status}; nothing was written`)]);
   }
   if (options.json) {
-    writeOut(JSON.stringify({ format: FIT_RESULT_FORMAT, report, comparison: compare === null ? null : ranked, written, provenance: { file: basename(path), rows: trials.rows, sha256 } }, null, 2));
+    writeOut(JSON.stringify({ format: FIT_RESULT_FORMAT, report, comparison: compare === null ? null : ranked, written, provenance: { file: basename(path), rows: grouped.groups.sourceRows, sha256 } }, null, 2));
   } else {
     writeOut(renderFit(report) + (compare === null ? '' : `\n\n${renderComparison(ranked)}`) + (written === null ? '' : `\n\nwrote ${written}`));
   }

@@ -2,7 +2,7 @@
  * `fitModel(trials, options)`: the whole fit a reviewer needs, from columnar
  * trials to one JSON-ready report.
  *
- * - The binomial GLM (`fitBinomial`) on collapsed rows (`design.ts`):
+ * - The binomial GLM (`fitBinomial`) on collapsed rows (`collapse.ts`):
  *   per-attempt files with the Bernoulli likelihood, per-round files with the
  *   grouped one, prior weights from the `weight` column.
  * - Model-based standard errors, z, two-sided p and Wald 95% intervals; CR1
@@ -43,14 +43,8 @@ import { multiply } from '../numeric/design-matrix.js';
 import { createRandomSource } from '../random.js';
 import { chiSquareUpperTail, normalQuantile, twoSidedNormalPValue } from '../stats/distributions.js';
 import { predictorLine } from './compile.js';
-import {
-  type CollapsedTrials,
-  type TermDesign,
-  buildDesign,
-  collapseTrials,
-  difficultyCodingOf,
-  selectCollapsed,
-} from './design.js';
+import { type CollapsedTrials, type GroupedTrials, groupTrials, selectCollapsed } from './collapse.js';
+import { type TermDesign, buildDesign, difficultyCodingOf } from './design.js';
 import { type BinomialFit, type BinomialFitEstimated, type BinomialLikelihood, fitBinomial } from './fit-binomial.js';
 import { fitLeastSquares } from './fit-least-squares.js';
 import { LINK_NAMES, type LinkName, linkFor } from './links.js';
@@ -234,7 +228,7 @@ export interface FitReport {
 }
 
 interface Prepared {
-  readonly trials: Trials;
+  readonly source: GroupedTrials;
   readonly family: FitFamily;
   readonly link: LinkName;
   readonly terms: readonly TermName[];
@@ -259,13 +253,14 @@ interface Prepared {
  * const report = fitModel(trials, { link: 'logit', folds: 5, seed: 1 });
  * report.coefficients.map((row) => [row.name, row.estimate, row.robust?.std_error]);
  */
-export function fitModel(trials: Trials, options: FitModelOptions = {}): FitReport {
-  const prepared = prepare(trials, options);
-  const { data, terms, coding } = prepared;
+export function fitModel(trials: Trials | GroupedTrials, options: FitModelOptions = {}): FitReport {
+  const prepared = prepare('groups' in trials ? trials : groupTrials(trials), options);
+  const { data, terms, coding, source } = prepared;
   const progress = options.onProgress ?? (() => undefined);
   const warnings: Issue[] = [];
-  const file = trials.file;
-  const players = trials.player === null ? null : countDistinct(trials.player.codes);
+  const file = source.file;
+  // Players are kept apart in the groups, so the groups hold every player who has a row.
+  const players = data.player === null ? null : countDistinct(data.player);
   const clusterCount = prepared.clustered ? players : null;
   if (prepared.clustered && players !== null && players < FEW_CLUSTERS) {
     warnings.push(
@@ -278,7 +273,7 @@ export function fitModel(trials: Trials, options: FitModelOptions = {}): FitRepo
       ),
     );
   }
-  const training = trainingRanges(trials, coding, players);
+  const training = trainingRanges(data, coding, players);
   const base = {
     format: FIT_REPORT_FORMAT,
     family: prepared.family,
@@ -286,7 +281,7 @@ export function fitModel(trials: Trials, options: FitModelOptions = {}): FitRepo
     likelihood: prepared.family === 'binomial' ? prepared.likelihood : null,
     terms,
     difficulty: coding,
-    data: { file, shape: trials.shape, rows: trials.rows, fitted_rows: data.rows, attempts: training.attempts, players },
+    data: { file, shape: source.shape, rows: data.sourceRows, fitted_rows: data.rows, attempts: training.attempts, players },
     training,
     cluster: { by: prepared.clustered ? ('player' as const) : ('none' as const), clusters: clusterCount },
   };
@@ -383,7 +378,7 @@ export function fitModel(trials: Trials, options: FitModelOptions = {}): FitRepo
   };
 }
 
-function prepare(trials: Trials, options: FitModelOptions): Prepared {
+function prepare(trials: GroupedTrials, options: FitModelOptions): Prepared {
   const issues: Issue[] = [];
   const family = options.family ?? 'binomial';
   if (family !== 'binomial' && family !== 'least_squares') {
@@ -396,9 +391,9 @@ function prepare(trials: Trials, options: FitModelOptions): Prepared {
   if (unknown.length > 0) issues.push(error('unknown_term', 'terms', `\`terms\` requires names from ${TERM_NAMES.join(', ')}, got ${show(unknown.join(','))}`));
   const checked = checkTerms(terms, 'terms');
   if (!checked.ok) issues.push(...checked.issues);
-  const cluster = options.cluster ?? (trials.player === null ? 'none' : 'player');
+  const cluster = options.cluster ?? (trials.players === null ? 'none' : 'player');
   if (cluster !== 'player' && cluster !== 'none') issues.push(error('invalid_option', 'cluster', `\`cluster\` requires player or none, got ${show(cluster)}`));
-  if (cluster === 'player' && trials.player === null) {
+  if (cluster === 'player' && trials.players === null) {
     issues.push(error('invalid_option', 'cluster', `\`cluster\` player requires a \`player\` column in ${show(trials.file)}, got none`));
   }
   const folds = options.folds ?? 5;
@@ -418,10 +413,10 @@ function prepare(trials: Trials, options: FitModelOptions): Prepared {
   }
   if (issues.length > 0) throw new LagparityInputError(issues);
   const clustered = cluster === 'player';
-  // Players kept apart whenever there are players: clusters and player-wise folds both need it.
-  const data = collapseTrials(trials, { byPlayer: trials.player !== null });
+  // The groups keep players apart whenever there are players: clusters and player-wise folds both need it.
+  const data = trials.groups;
   return {
-    trials,
+    source: trials,
     family,
     link,
     terms,
@@ -435,7 +430,7 @@ function prepare(trials: Trials, options: FitModelOptions): Prepared {
 
 /** Factors the terms need but the data cannot identify: fewer than two distinct values. */
 function structuralIssues(prepared: Prepared): { issues: Issue[]; aliased: TermName[] } {
-  const { trials, terms } = prepared;
+  const { source, data, terms } = prepared;
   const issues: Issue[] = [];
   const aliased: TermName[] = [];
   const needs = (factor: 'latency' | 'scale' | 'difficulty') => terms.filter((term) => term !== 'intercept' && termFactors(term)[factor]);
@@ -446,16 +441,17 @@ function structuralIssues(prepared: Prepared): { issues: Issue[]; aliased: TermN
     issues.push(
       error(
         'rank_deficient',
-        `${trials.file}:${column}`,
+        `${source.file}:${column}`,
         `the term list requires at least two ${what} in the data for ${using.map((term) => `\`${term}\``).join(', ')}, got one (${example}); drop ${using.length > 1 ? 'those terms' : 'that term'} or add data`,
       ),
     );
   };
-  check('latency', 'latency_ms', countDistinct(trials.latency, 2), `${show(trials.latency[0])} ms`, 'distinct latencies');
-  check('scale', 'scale', countDistinct(trials.scale, 2), show(trials.scale[0]), 'distinct scales');
-  const difficulty = trials.difficulty;
-  const difficultyCount = difficulty.kind === 'numeric' ? countDistinct(difficulty.values, 2) : difficulty.levels.length;
-  const difficultyExample = difficulty.kind === 'numeric' ? show(difficulty.values[0]) : show(difficulty.levels[0]);
+  // The groups hold the distinct values of the rows, in order of first appearance.
+  check('latency', 'latency_ms', countDistinct(data.latency, 2), `${show(data.latency[0])} ms`, 'distinct latencies');
+  check('scale', 'scale', countDistinct(data.scale, 2), show(data.scale[0]), 'distinct scales');
+  const difficulty = source.difficulty;
+  const difficultyCount = difficulty.kind === 'numeric' ? countDistinct(data.difficulty, 2) : difficulty.levels.length;
+  const difficultyExample = difficulty.kind === 'numeric' ? show(data.difficulty[0]) : show(difficulty.levels[0]);
   check('difficulty', 'difficulty', difficultyCount, difficultyExample, difficulty.kind === 'numeric' ? 'distinct difficulties' : 'difficulty levels');
   return { issues, aliased };
 }
@@ -528,7 +524,7 @@ function countDistinct(values: ArrayLike<number>, stopAt = Infinity): number {
   return seen.size;
 }
 
-function trainingRanges(trials: Trials, coding: DifficultyCoding, players: number | null): TrainingRanges {
+function trainingRanges(data: CollapsedTrials, coding: DifficultyCoding, players: number | null): TrainingRanges {
   const extent = (values: ArrayLike<number>) => {
     let min = Infinity;
     let max = -Infinity;
@@ -540,12 +536,12 @@ function trainingRanges(trials: Trials, coding: DifficultyCoding, players: numbe
     return { min, max };
   };
   let attempts = 0;
-  for (let i = 0; i < trials.rows; i += 1) attempts += trials.attempts[i] as number;
+  for (let i = 0; i < data.rows; i += 1) attempts += data.attempts[i] as number;
   return {
-    latency_ms: extent(trials.latency),
-    scale: extent(trials.scale),
-    difficulty: coding.kind === 'levels' ? [...coding.levels] : extent(trials.difficulty.kind === 'numeric' ? trials.difficulty.values : []),
-    rows: trials.rows,
+    latency_ms: extent(data.latency),
+    scale: extent(data.scale),
+    difficulty: coding.kind === 'levels' ? [...coding.levels] : extent(data.difficulty),
+    rows: data.sourceRows,
     attempts,
     ...(players === null ? {} : { players }),
   };
@@ -711,7 +707,7 @@ function crossValidate(
 ): CrossValidation | null {
   const { data } = prepared;
   const assignment = assignFolds(data, requestedFolds, seed);
-  const file = prepared.trials.file;
+  const file = prepared.source.file;
   if (assignment.heldOut === 'rows') {
     warnings.push(
       warning('folds_by_row', `${file}:player`, 'cross-validation by player requires a `player` column with at least 2 players; folds hold out collapsed rows at random instead, so held-out scores are optimistic'),
@@ -856,12 +852,12 @@ function leastSquaresReport(
       warnings: [
         ...warnings,
         fit.status === 'fitted'
-          ? error('no_residual_df', prepared.trials.file, `least squares requires more rows than coefficients, got ${fit.observations} rows for ${design.matrix.columns} coefficients`)
-          : error('rank_deficient', prepared.trials.file, `the terms require linearly independent design columns, got ${fit.aliased.map((name) => `\`${name}\``).join(', ')} aliased with earlier columns`),
+          ? error('no_residual_df', prepared.source.file, `least squares requires more rows than coefficients, got ${fit.observations} rows for ${design.matrix.columns} coefficients`)
+          : error('rank_deficient', prepared.source.file, `the terms require linearly independent design columns, got ${fit.aliased.map((name) => `\`${name}\``).join(', ')} aliased with earlier columns`),
       ],
     };
   }
-  warnings.push(warning('normal_approximation', prepared.trials.file, 'least-squares p-values and intervals use the normal approximation (many rows), and per-row accuracy is not normal: this family is a baseline, not a model for compensation'));
+  warnings.push(warning('normal_approximation', prepared.source.file, 'least-squares p-values and intervals use the normal approximation (many rows), and per-row accuracy is not normal: this family is a baseline, not a model for compensation'));
   const critical = normalQuantile(0.975);
   const size = design.matrix.columns;
   const standardErrors = fit.standardErrors;

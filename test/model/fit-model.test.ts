@@ -6,7 +6,7 @@ import { describe, expect, it } from 'vitest';
 import { type Trials, parseTrialsCsv } from '../../src/formats/trials-csv.js';
 import { unwrap } from '../../src/issues.js';
 import { compileModel } from '../../src/model/compile.js';
-import { collapseTrials } from '../../src/model/design.js';
+import { collapseTrials, groupTrials } from '../../src/model/collapse.js';
 import { type BinomialFitEstimated, fitBinomial } from '../../src/model/fit-binomial.js';
 import { fitModel } from '../../src/model/fit-model.js';
 import { toModelFile } from '../../src/model/to-model-file.js';
@@ -156,6 +156,16 @@ describe('fitModel() on the demo playtest', () => {
   it('reports the least-squares baseline with R² between 0 and 1', () => {
     expect(report.baseline?.r_squared).toBeGreaterThan(0);
     expect(report.baseline?.r_squared).toBeLessThan(1);
+  });
+});
+
+describe('fitModel() on grouped trials', () => {
+  it('gives the same report from groupTrials(trials) as from the trials, per-attempt and per-round', () => {
+    const rounds = unwrap(parseTrialsCsv('latency_ms,scale,difficulty,hits,attempts,player\n10,1,1,3,10,a\n20,1.5,2,6,10,b\n30,2,1,8,10,a\n40,1,2,2,10,b\n50,1.5,1,7,12,c\n15,2,2,9,11,c\n', 'rounds.csv'));
+    for (const trials of [demo, rounds]) {
+      const options = { folds: trials === demo ? 5 : 0, seed: 3 };
+      expect(fitModel(groupTrials(trials), options)).toEqual(fitModel(trials, options));
+    }
   });
 });
 
