@@ -3,9 +3,9 @@ import { createHash } from 'node:crypto';
 import { basename } from 'node:path';
 import type { Command } from 'commander';
 import { type Issue, LagparityInputError, type Result, error, ok, show } from '../issues.js';
-import { readTrialsFile } from '../io/read-trials.js';
+import { readGroupedTrialsFile } from '../io/read-trials.js';
 import { writeFileAtomic } from '../io/write-file.js';
-import { type GroupedTrials, groupTrials } from '../model/collapse.js';
+import type { GroupedTrials } from '../model/collapse.js';
 import { type FitFamily, type FitModelOptions, type FitReport, fitModel } from '../model/fit-model.js';
 import { LINK_NAMES, type LinkName } from '../model/links.js';
 import { type TermName, parseTermList } from '../model/terms.js';
@@ -191,19 +191,15 @@ function renderComparison(ranked: readonly Ranked[]): string {
   return `comparison, best held-out log loss first:\n${table.toString()}`;
 }
 
-/**
- * Read the trials file (hashing its bytes in the same pass) and group it for
- * fitting. The per-row columns are dropped on return: only the groups, a
- * fraction of them on telemetry, stay in memory during the fit.
- */
+/** Read the trials file straight into groups for fitting, hashing its bytes in the same pass. */
 async function readGrouped(path: string, progress: ReturnType<typeof progressLine>): Promise<Result<{ grouped: GroupedTrials; sha256: string }>> {
   const hash = createHash('sha256');
-  const read = await readTrialsFile(path, {
+  const read = await readGroupedTrialsFile(path, {
     onProgress: (rows) => progress.update(`read ${rows.toLocaleString('en-GB')} rows`),
     onChunk: (bytes) => hash.update(bytes),
   });
   if (!read.ok) return read;
-  return ok({ grouped: groupTrials(read.value), sha256: hash.digest('hex') }, read.warnings);
+  return ok({ grouped: read.value, sha256: hash.digest('hex') }, read.warnings);
 }
 
 export async function runFit(path: string, options: FitOptions): Promise<number> {

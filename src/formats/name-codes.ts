@@ -102,6 +102,11 @@ export class NameCodes {
     this.pushCode(code);
   }
 
+  /** The code buffer itself (its first `length` entries are the column). */
+  codesView(): Int32Array {
+    return this.codes;
+  }
+
   finish(): Int32Array {
     const filled = this.codes.subarray(0, this.length);
     return this.length * 8 >= this.codes.length * 7 ? filled : filled.slice();

@@ -124,6 +124,11 @@ class FloatColumn {
     this.length += 1;
   }
 
+  /** The buffer itself (its first `length` entries are the column). */
+  view(): Float64Array {
+    return this.buffer;
+  }
+
   finish(): Float64Array {
     const filled = this.buffer.subarray(0, this.length);
     return this.length * 8 >= this.buffer.length * 7 ? filled : filled.slice();
@@ -201,6 +206,51 @@ function plainField(record: CsvRecord, index: number): boolean {
  * Accumulates trial rows into columns. Feed it the header, then each record
  * with its line number; it stops at the first bad row.
  */
+/** What a trials file holds besides its rows: what a {@link TrialRowSink} needs to interpret the codes. */
+export interface TrialsLayout {
+  readonly file: string;
+  readonly shape: Trials['shape'];
+  readonly weight: boolean;
+  readonly player: boolean;
+}
+
+/** A batch of rows handed to a sink: the first `count` entries of each column; valid only during the call. */
+export interface TrialBatch {
+  readonly latency: Float64Array;
+  readonly scale: Float64Array;
+  /** Difficulty level codes (indices into the file's level names, in order of first appearance). */
+  readonly difficulty: Int32Array;
+  readonly weight: Float64Array | null;
+  /** Player codes (indices into the player ids), or null without a player column. */
+  readonly player: Int32Array | null;
+  readonly successes: Float64Array;
+  readonly attempts: Float64Array;
+}
+
+/** Takes rows in batches instead of the builder keeping every row (e.g. to collapse them as they are read). */
+export interface TrialRowSink {
+  addRows(batch: TrialBatch, count: number): void;
+}
+
+/** How to hand rows to a sink: batches of `batchRows`, the sink opened once the header is read. */
+export interface TrialSinkOptions {
+  readonly batchRows: number;
+  open(layout: TrialsLayout): TrialRowSink;
+}
+
+/** The file's names and counts once every row went to a sink. */
+export interface TrialsSource {
+  readonly file: string;
+  readonly shape: Trials['shape'];
+  readonly rows: number;
+  /** Difficulty level names, by code. */
+  readonly levels: readonly string[];
+  /** The number of each level when every level name is a number, else null. */
+  readonly numericLevels: readonly number[] | null;
+  /** Player ids, by code, or null without a player column. */
+  readonly players: readonly string[] | null;
+}
+
 /** What the plain-line reader does with each field, by its column (see {@link TrialsBuilder.readPlainLine}). */
 const enum Role {
   Skip,
@@ -234,6 +284,9 @@ function visible(byte: number): boolean {
 
 export class TrialsBuilder implements PlainLineReader {
   readonly file: string;
+  /** Rows go to this sink in batches when set (see {@link TrialSinkOptions}); else the builder keeps them. */
+  private readonly sinkOptions: TrialSinkOptions | null;
+  private sink: TrialRowSink | null = null;
   /** Called with the number of rows read, every million rows. */
   onProgress: ((rows: number) => void) | undefined;
   /** The role of each field, from the header. */
@@ -263,10 +316,14 @@ export class TrialsBuilder implements PlainLineReader {
   failure: Issue | undefined;
   rows = 0;
 
-  /** `capacity`: expected rows (e.g. from the file size), so the columns rarely grow. */
-  constructor(file: string, capacity = 1024) {
+  /**
+   * `capacity`: expected rows (e.g. from the file size), so the columns rarely
+   * grow; `sink`: hand the rows over in batches instead of keeping them.
+   */
+  constructor(file: string, capacity = 1024, sink: TrialSinkOptions | null = null) {
     this.file = file;
-    const size = Math.max(16, Math.min(MAX_TRIAL_ROWS, Math.ceil(capacity)));
+    this.sinkOptions = sink;
+    const size = sink === null ? Math.max(16, Math.min(MAX_TRIAL_ROWS, Math.ceil(capacity))) : sink.batchRows;
     this.capacity = size;
     this.latency = new FloatColumn(size);
     this.scale = new FloatColumn(size);
@@ -328,6 +385,7 @@ export class TrialsBuilder implements PlainLineReader {
     this.weightAt = at('weight');
     this.playerAt = at('player');
     if (this.weightAt >= 0) this.weight = new FloatColumn(this.capacity);
+    this.sink = this.sinkOptions?.open({ file: this.file, shape: this.shape, weight: this.weightAt >= 0, player: this.playerAt >= 0 }) ?? null;
     if (unknown.length > 0) {
       this.warnings.push(warning('unknown_column', this.where(line), `columns ignored: ${unknown.map((name) => show(name)).join(', ')}`));
     }
@@ -389,7 +447,7 @@ export class TrialsBuilder implements PlainLineReader {
       return false;
     }
     if (!this.rest(record, line, latency, scale)) {
-      this.difficulty.length = this.rows;
+      this.difficulty.length = this.latency.length;
       return false;
     }
     return true;
@@ -431,9 +489,40 @@ export class TrialsBuilder implements PlainLineReader {
     this.successes.push(successes);
     this.attempts.push(attempts);
     if (this.weightAt >= 0) this.weight.push(weight);
+    this.counted();
+    return true;
+  }
+
+  /** After a row is pushed: the count, progress, and a full batch to the sink. */
+  private counted(): void {
     this.rows += 1;
     if (this.onProgress !== undefined && this.rows % 1_000_000 === 0) this.onProgress(this.rows);
-    return true;
+    if (this.sink !== null && this.latency.length === this.capacity) this.flush();
+  }
+
+  /** Hand the rows held to the sink and start the next batch. */
+  private flush(): void {
+    const count = this.latency.length;
+    if (this.sink === null || count === 0) return;
+    this.sink.addRows(
+      {
+        latency: this.latency.view(),
+        scale: this.scale.view(),
+        difficulty: this.difficulty.codesView(),
+        weight: this.weightAt >= 0 ? this.weight.view() : null,
+        player: this.playerAt >= 0 ? this.player.codesView() : null,
+        successes: this.successes.view(),
+        attempts: this.attempts.view(),
+      },
+      count,
+    );
+    this.latency.length = 0;
+    this.scale.length = 0;
+    this.successes.length = 0;
+    this.attempts.length = 0;
+    this.weight.length = 0;
+    this.difficulty.length = 0;
+    this.player.length = 0;
   }
 
   /**
@@ -506,19 +595,40 @@ export class TrialsBuilder implements PlainLineReader {
     if (this.weightAt >= 0) this.weight.push(weight);
     this.difficulty.pushCode(difficulty);
     if (this.playerAt >= 0) this.player.pushCode(player);
-    this.rows += 1;
-    if (this.onProgress !== undefined && this.rows % 1_000_000 === 0) this.onProgress(this.rows);
+    this.counted();
     return i;
   }
+  /** The failure with the number of rows read before it, or no rows, or null. */
+  private finalIssue(): Issue | null {
+    if (this.failure) return { ...this.failure, message: `${this.failure.message} (stopped after ${this.rows} good rows)` };
+    if (this.rows === 0) return error('no_rows', this.file, 'a trials file requires at least one data row after the header, got none');
+    return null;
+  }
+
+  /** With a sink: the last batch goes to it, then the names and counts (or the failure). */
+  finishSource(): Result<TrialsSource> {
+    const issue = this.finalIssue();
+    if (issue !== null) return fail([issue]);
+    this.flush();
+    const levels = [...this.difficulty.names];
+    const numericLevels = levels.map(parseDecimal);
+    return ok(
+      {
+        file: this.file,
+        shape: this.shape,
+        rows: this.rows,
+        levels,
+        numericLevels: numericLevels.every((value) => value !== undefined) ? (numericLevels as number[]) : null,
+        players: this.playerAt >= 0 ? [...this.player.names] : null,
+      },
+      this.warnings,
+    );
+  }
+
   /** The columns, or the failure with the number of rows read before it. */
   finish(): Result<Trials> {
-    if (this.failure) {
-      const failure = { ...this.failure, message: `${this.failure.message} (stopped after ${this.rows} good rows)` };
-      return fail([failure]);
-    }
-    if (this.rows === 0) {
-      return fail([error('no_rows', this.file, 'a trials file requires at least one data row after the header, got none')]);
-    }
+    const issue = this.finalIssue();
+    if (issue !== null) return fail([issue]);
     const levels = this.difficulty.names;
     const codes = this.difficulty.finish();
     const numericLevels = levels.map(parseDecimal);
@@ -560,8 +670,12 @@ export class TrialsReader {
    * {@link TrialsBuilder.readPlainLine}); false sends every line through the
    * full rules, with the same result, more slowly (a test compares the two).
    */
-  constructor(file: string, delimiter: ',' | ';' | '\t', options: { capacity?: number; onProgress?: (rows: number) => void; plainLines?: boolean } = {}) {
-    const builder = new TrialsBuilder(file, options.capacity);
+  constructor(
+    file: string,
+    delimiter: ',' | ';' | '\t',
+    options: { capacity?: number; onProgress?: (rows: number) => void; plainLines?: boolean; sink?: TrialSinkOptions } = {},
+  ) {
+    const builder = new TrialsBuilder(file, options.capacity, options.sink ?? null);
     builder.onProgress = options.onProgress;
     this.builder = builder;
     const scanner = new CsvScanner(file, delimiter, (record, line) => {
@@ -581,11 +695,21 @@ export class TrialsReader {
 
   /** The columns, or the first failure (with the number of good rows before it). */
   finish(): Result<Trials> {
+    const issue = this.end();
+    return issue === null ? this.builder.finish() : fail([issue]);
+  }
+
+  /** With the `sink` option: the names and counts, or the first failure. */
+  finishSource(): Result<TrialsSource> {
+    const issue = this.end();
+    return issue === null ? this.builder.finishSource() : fail([issue]);
+  }
+
+  private end(): Issue | null {
     this.scanner.end();
-    const file = this.builder.file;
-    if (this.scanner.failure !== undefined) return fail([this.scanner.failure]);
-    if (!this.headerSeen) return fail([error('empty_file', file, 'a trials file requires a header line and rows, got an empty file')]);
-    return this.builder.finish();
+    if (this.scanner.failure !== undefined) return this.scanner.failure;
+    if (!this.headerSeen) return error('empty_file', this.builder.file, 'a trials file requires a header line and rows, got an empty file');
+    return null;
   }
 }
 

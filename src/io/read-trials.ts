@@ -1,13 +1,14 @@
 /**
  * Reading a trials file from disk as a stream: memory stays proportional to
- * the columns, never to the text, and the size limits are enforced while
- * reading, not after. The bytes go through the CSV scanner of
+ * the columns (or, read straight into groups, to the distinct points), never
+ * to the text, and the size limits are enforced while reading, not after. The bytes go through the CSV scanner of
  * `formats/trials-csv.ts` one chunk at a time; no chunk is kept.
  */
 import { open, stat } from 'node:fs/promises';
 import { basename } from 'node:path';
-import { type Result, error, fail } from '../issues.js';
-import { type Trials, MAX_CSV_LINE_BYTES, TrialsReader, detectDelimiter } from '../formats/trials-csv.js';
+import { type Result, error, fail, ok } from '../issues.js';
+import { type Trials, type TrialSinkOptions, MAX_CSV_LINE_BYTES, TrialsReader, detectDelimiter } from '../formats/trials-csv.js';
+import { COLLAPSE_BATCH_ROWS, GroupAccumulator, type GroupedTrials, mergeGroups } from '../model/collapse.js';
 
 /** Bytes read per chunk. */
 const CHUNK_BYTES = 1 << 18;
@@ -32,15 +33,61 @@ function expectedRows(head: string, size: number): number {
   return Math.ceil((size / meanBytes) * 1.02) + 16;
 }
 
+/** Options of {@link readTrialsFile} and {@link readGroupedTrialsFile}. */
+export interface ReadTrialsOptions {
+  /** Called with the number of rows read, about every million rows. */
+  readonly onProgress?: (rows: number) => void;
+  /** Sees every chunk of the file's bytes in order, e.g. to hash the file in the same pass. */
+  readonly onChunk?: (bytes: Buffer) => void;
+}
+
+/** Read a trials CSV file into columns. */
+export async function readTrialsFile(path: string, options: ReadTrialsOptions = {}): Promise<Result<Trials>> {
+  const read = await scanFile(path, options, null);
+  return read.ok ? read.value.finish() : read;
+}
+
 /**
- * Read a trials CSV file. `onProgress` (optional) is called with the number of
- * rows read, about every million rows; `onChunk` (optional) sees every chunk of
- * the file's bytes in order, e.g. to hash the file in the same pass.
+ * Read a trials CSV file straight into groups for fitting (see
+ * `groupTrials`): rows are collapsed batch by batch as they are read, so
+ * memory follows the distinct points, not the rows. The same groups as
+ * `groupTrials(readTrialsFile(path))`, in the same order with named levels;
+ * with numeric levels (keyed by code while reading, by value there) the
+ * points found through a hash collision may come in another order, which
+ * changes a fit's sums only in their last bits.
  */
-export async function readTrialsFile(
-  path: string,
-  options: { onProgress?: (rows: number) => void; onChunk?: (bytes: Buffer) => void } = {},
-): Promise<Result<Trials>> {
+export async function readGroupedTrialsFile(path: string, options: ReadTrialsOptions = {}): Promise<Result<GroupedTrials>> {
+  let accumulator: GroupAccumulator | null = null;
+  const sink: TrialSinkOptions = {
+    batchRows: COLLAPSE_BATCH_ROWS,
+    open: (layout) => {
+      accumulator = new GroupAccumulator({ weight: layout.weight, player: layout.player, merge: layout.shape === 'per_attempt' });
+      return accumulator;
+    },
+  };
+  const read = await scanFile(path, options, sink);
+  if (!read.ok) return read;
+  const source = read.value.finishSource();
+  if (!source.ok) return source;
+  const { file, shape, levels, numericLevels, players } = source.value;
+  const opened = accumulator as GroupAccumulator | null;
+  if (opened === null) return fail([error('empty_file', file, 'a trials file requires a header line and rows, got an empty file')]);
+  let groups = opened.finish(numericLevels === null ? undefined : (code) => numericLevels[code] as number);
+  if (numericLevels !== null && new Set(numericLevels).size < numericLevels.length) groups = mergeGroups(groups);
+  return ok(
+    {
+      file,
+      shape,
+      difficulty: numericLevels === null ? { kind: 'levels', levels } : { kind: 'numeric' },
+      players,
+      groups,
+    },
+    source.warnings,
+  );
+}
+
+/** Scan the file through a trials reader (with a sink or without); the reader is left to finish. */
+async function scanFile(path: string, options: ReadTrialsOptions, sink: TrialSinkOptions | null): Promise<Result<TrialsReader>> {
   const file = basename(path);
   let head: string;
   let size: number;
@@ -55,6 +102,7 @@ export async function readTrialsFile(
   const reader = new TrialsReader(file, delimiter, {
     capacity: expectedRows(head, size),
     ...(options.onProgress === undefined ? {} : { onProgress: options.onProgress }),
+    ...(sink === null ? {} : { sink }),
   });
   // One buffer, read into again and again: no chunk outlives its scan.
   const onChunk = options.onChunk;
@@ -78,5 +126,5 @@ export async function readTrialsFile(
   } finally {
     await handle.close();
   }
-  return reader.finish();
+  return ok(reader);
 }

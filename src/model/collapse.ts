@@ -47,14 +47,24 @@ export interface CollapseOptions {
 const scratch = new Float64Array(1);
 const scratchWords = new Uint32Array(scratch.buffer);
 
-/** Mix one double's bits into a 32-bit hash (FNV-1a over two words, then a murmur finaliser). */
-function mix(hash: number, value: number): number {
-  scratch[0] = value === 0 ? 0 : value; // -0 and 0 are the same covariate
-  let h = Math.imul(hash ^ (scratchWords[0] as number), 0x01000193);
-  h = Math.imul(h ^ (scratchWords[1] as number), 0x01000193);
-  return h;
+/**
+ * One 32-bit word into the hash: an FNV-1a step. It collides more often than
+ * a random hash on structured keys (whole milliseconds, small codes), which
+ * the exact key check absorbs; a stronger mix (MurmurHash3's block step) was
+ * measured about a third slower on a million rows, since structured keys that
+ * hash near each other also share cache lines of the table.
+ */
+function block(hash: number, word: number): number {
+  return Math.imul(hash ^ word, 0x01000193);
 }
 
+/** Mix one double's bits (both words) into the hash. */
+function mix(hash: number, value: number): number {
+  scratch[0] = value === 0 ? 0 : value; // -0 and 0 are the same covariate
+  return block(block(hash, scratchWords[0] as number), scratchWords[1] as number);
+}
+
+/** The MurmurHash3 finaliser, so that the low bits used for the slot depend on every input bit. */
 function finalise(hash: number): number {
   let h = hash ^ (hash >>> 16);
   h = Math.imul(h, 0x85ebca6b);
@@ -63,12 +73,219 @@ function finalise(hash: number): number {
   return (h ^ (h >>> 16)) >>> 0;
 }
 
+/** Rows added to a {@link GroupAccumulator} at a time; group order depends on it (see there), so every caller uses this one. */
+export const COLLAPSE_BATCH_ROWS = 1 << 14;
+
+/** Columns of rows to collapse (the first `count` entries of each are read). */
+export interface RowColumns {
+  readonly latency: Float64Array;
+  readonly scale: Float64Array;
+  /** Numeric difficulty or level codes. */
+  readonly difficulty: Float64Array | Int32Array;
+  /** Prior weights, or null for weight 1. */
+  readonly weight: Float64Array | null;
+  /** Player codes, or null when players are not kept apart. */
+  readonly player: Int32Array | null;
+  readonly successes: Float64Array;
+  readonly attempts: Float64Array;
+}
+
+/**
+ * Collapses rows, batch by batch, into groups at distinct (latency, scale,
+ * difficulty[, prior weight][, player]) points. Feed it rows with
+ * {@link addRows} (a file reader does, one batch of at most
+ * {@link COLLAPSE_BATCH_ROWS} rows at a time, so a large file is never held
+ * row by row), then {@link finish}.
+ *
+ * Per batch: the hashes first, in a loop of their own; then pass 1 over an
+ * open-addressing table of (group + 1, 32-bit hash) pairs, kept at most
+ * three-quarters full and doubled as groups appear: a row takes the group
+ * whose stored hash equals its own, and a new point appends its key to
+ * `records`; then pass 2 checks every row's key against its group's exactly
+ * and adds its counts there (one record per group holds the key and the
+ * counts side by side, so a row touches one record). The rare row whose hash
+ * collided with another point's is grouped by its exact key in a map instead.
+ * Within a pass the rows' table and record loads are independent, which the
+ * processor overlaps.
+ *
+ * Groups come in order of first appearance, except that a point found only
+ * through a hash collision comes after the other new points of its batch.
+ *
+ * Cost: O(rows) expected time; memory a table of 4/3 to 8/3 slots of 8 bytes
+ * and a record of 5 to 7 doubles per group, and 4 bytes per row of a batch.
+ */
+export class GroupAccumulator {
+  private readonly weightAt: number;
+  private readonly playerAt: number;
+  /** Record: latency, scale, difficulty, successes, attempts[, weight][, player]. */
+  private readonly stride: number;
+  private readonly hasWeight: boolean;
+  private readonly hasPlayer: boolean;
+  private readonly merge: boolean;
+  private capacity = 1 << 12;
+  private table: Int32Array<ArrayBufferLike> = new Int32Array(2 << 12);
+  private records: Float64Array;
+  private groupOf = new Int32Array(0);
+  private collided: Map<string, number> | null = null;
+  groups = 0;
+  sourceRows = 0;
+
+  /** `weight` / `player`: whether rows carry prior weights and player codes (part of the key); `merge`: false keeps every row as its own group. */
+  constructor(layout: { readonly weight: boolean; readonly player: boolean; readonly merge: boolean }) {
+    this.hasWeight = layout.weight;
+    this.hasPlayer = layout.player;
+    this.merge = layout.merge;
+    this.stride = 5 + (layout.weight ? 1 : 0) + (layout.player ? 1 : 0);
+    this.weightAt = 5;
+    this.playerAt = layout.weight ? 6 : 5;
+    this.records = new Float64Array(this.stride << 12);
+  }
+
+  /** Add the first `count` rows of `columns` (at most {@link COLLAPSE_BATCH_ROWS} for the documented group order). */
+  addRows(columns: RowColumns, count: number): void {
+    const { latency, scale, difficulty, weight, player, successes, attempts } = columns;
+    const stride = this.stride;
+    const weightAt = this.weightAt;
+    const playerAt = this.playerAt;
+    this.sourceRows += count;
+    if (!this.merge) {
+      for (let i = 0; i < count; i += 1) {
+        const base = this.append(columns, i) * stride;
+        this.records[base + 3] = successes[i] as number;
+        this.records[base + 4] = attempts[i] as number;
+      }
+      return;
+    }
+    if (this.groupOf.length < count) this.groupOf = new Int32Array(Math.max(count, COLLAPSE_BATCH_ROWS));
+    const groupOf = this.groupOf;
+    const weights = this.hasWeight ? weight : null;
+    const players = this.hasPlayer ? player : null;
+    for (let i = 0; i < count; i += 1) {
+      let hash = 0x811c9dc5;
+      hash = mix(hash, latency[i] as number);
+      hash = mix(hash, scale[i] as number);
+      hash = mix(hash, difficulty[i] as number);
+      if (weights !== null) hash = mix(hash, weights[i] as number);
+      if (players !== null) hash = block(hash, players[i] as number);
+      groupOf[i] = finalise(hash) | 0;
+    }
+    // Pass 1: a group for every row, by its hash.
+    let table = this.table;
+    let capacity = this.capacity;
+    for (let i = 0; i < count; i += 1) {
+      const full = groupOf[i] as number;
+      let slot = full & (capacity - 1);
+      for (;;) {
+        const stored = table[2 * slot] as number;
+        if (stored === 0) {
+          if (4 * (this.groups + 1) > 3 * capacity) {
+            table = rehash(table, capacity);
+            capacity *= 2;
+            this.table = table;
+            this.capacity = capacity;
+            slot = full & (capacity - 1);
+            while (table[2 * slot] !== 0) slot = (slot + 1) & (capacity - 1);
+          }
+          const group = this.append(columns, i);
+          table[2 * slot] = group + 1;
+          table[2 * slot + 1] = full;
+          groupOf[i] = group;
+          break;
+        }
+        if (table[2 * slot + 1] === full) {
+          groupOf[i] = stored - 1;
+          break;
+        }
+        slot = (slot + 1) & (capacity - 1);
+      }
+    }
+    // Pass 2: the exact key, then the counts.
+    for (let i = 0; i < count; i += 1) {
+      const records = this.records;
+      let base = (groupOf[i] as number) * stride;
+      if (
+        records[base] !== latency[i] ||
+        records[base + 1] !== scale[i] ||
+        records[base + 2] !== difficulty[i] ||
+        (weights !== null && records[base + weightAt] !== weights[i]) ||
+        (players !== null && records[base + playerAt] !== players[i])
+      ) {
+        this.collided ??= new Map();
+        const key = `${latency[i]} ${scale[i]} ${difficulty[i]} ${weights?.[i] ?? 1} ${players?.[i] ?? 0}`;
+        let group = this.collided.get(key);
+        if (group === undefined) {
+          group = this.append(columns, i);
+          this.collided.set(key, group);
+        }
+        base = group * stride;
+      }
+      const target = this.records;
+      target[base + 3] = (target[base + 3] as number) + (successes[i] as number);
+      target[base + 4] = (target[base + 4] as number) + (attempts[i] as number);
+    }
+  }
+
+  /** A new group with row `i`'s key and no counts yet. */
+  private append(columns: RowColumns, i: number): number {
+    const group = this.groups;
+    const stride = this.stride;
+    const base = group * stride;
+    if (base + stride > this.records.length) {
+      const next = new Float64Array(this.records.length * 2);
+      next.set(this.records);
+      this.records = next;
+    }
+    const records = this.records;
+    records[base] = columns.latency[i] as number;
+    records[base + 1] = columns.scale[i] as number;
+    records[base + 2] = columns.difficulty[i] as number;
+    if (this.hasWeight) records[base + this.weightAt] = columns.weight?.[i] ?? 1;
+    if (this.hasPlayer) records[base + this.playerAt] = columns.player?.[i] ?? 0;
+    this.groups = group + 1;
+    return group;
+  }
+
+  /** The groups as columns, in order; `difficultyValue` maps a stored difficulty (a level code) to the value to report. */
+  finish(difficultyValue?: (stored: number) => number): CollapsedTrials {
+    const groups = this.groups;
+    const stride = this.stride;
+    const records = this.records;
+    const column = (offset: number): Float64Array => {
+      const target = new Float64Array(groups);
+      for (let g = 0; g < groups; g += 1) target[g] = records[g * stride + offset] as number;
+      return target;
+    };
+    const difficulty = column(2);
+    if (difficultyValue !== undefined) for (let g = 0; g < groups; g += 1) difficulty[g] = difficultyValue(difficulty[g] as number);
+    let player: Int32Array | null = null;
+    if (this.hasPlayer) {
+      player = new Int32Array(groups);
+      for (let g = 0; g < groups; g += 1) player[g] = records[g * stride + this.playerAt] as number;
+    }
+    const collapsed: CollapsedTrials = {
+      rows: groups,
+      latency: column(0),
+      scale: column(1),
+      difficulty,
+      player,
+      successes: column(3),
+      attempts: column(4),
+      weight: this.hasWeight ? column(this.weightAt) : new Float64Array(groups).fill(1),
+      sourceRows: this.sourceRows,
+    };
+    this.records = new Float64Array(0);
+    this.table = new Int32Array(0);
+    this.groupOf = new Int32Array(0);
+    return collapsed;
+  }
+}
+
 /**
  * Collapse trials into binomial counts at distinct (latency, scale,
- * difficulty, prior weight[, player]) points, in order of first appearance.
- *
- * Cost: O(rows) expected time; memory a 4-byte group index per source row,
- * a table of 4/3 to 8/3 slots of 8 bytes per group and the collapsed columns.
+ * difficulty, prior weight[, player]) points, in order of first appearance
+ * (see {@link GroupAccumulator} for the one exception), in batches of
+ * {@link COLLAPSE_BATCH_ROWS} rows as a file reader feeding an accumulator
+ * does, so that both give the same groups in the same order.
  *
  * @example
  * const collapsed = collapseTrials(trials); // 1,000,000 attempts at 20 conditions -> 20 rows
@@ -93,134 +310,23 @@ export function collapseTrials(trials: Trials, options: CollapseOptions = {}): C
       sourceRows: rows,
     };
   }
-  // Pass 1: open addressing on (group + 1, 32-bit hash) pairs, kept at most
-  // three-quarters full and doubled as groups appear, so its size follows the groups;
-  // a row takes the group whose stored hash equals its own, and a new group
-  // appends its key to `records`. Pass 2 checks every row's key against its
-  // group's exactly and adds its counts there: one record per group holds
-  // the key and the counts side by side, so a row touches one record. The
-  // rare row whose hash collided with another point's is grouped by its exact
-  // key in a map instead.
-  const hasWeight = weights !== null;
-  const hasPlayer = playerCodes !== null;
-  // Record: latency, scale, difficulty, successes, attempts[, weight][, player].
-  const stride = 5 + (hasWeight ? 1 : 0) + (hasPlayer ? 1 : 0);
-  const weightAt = 5;
-  const playerAt = hasWeight ? 6 : 5;
-  let capacity = 1 << 12;
-  let table: Int32Array<ArrayBufferLike> = new Int32Array(capacity * 2);
-  let groupOf = new Int32Array(rows);
-  const latencies = trials.latency;
-  const scales = trials.scale;
-  // The hashes first, in a loop of their own (held in `groupOf` until pass 1 replaces them by groups).
-  for (let i = 0; i < rows; i += 1) {
-    let hash = 0x811c9dc5;
-    hash = mix(hash, latencies[i] as number);
-    hash = mix(hash, scales[i] as number);
-    hash = mix(hash, difficulty[i] as number);
-    if (weights !== null) hash = mix(hash, weights[i] as number);
-    if (playerCodes !== null) hash = Math.imul(hash ^ (playerCodes[i] as number), 0x01000193);
-    groupOf[i] = finalise(hash) | 0;
+  const accumulator = new GroupAccumulator({ weight: weights !== null, player: playerCodes !== null, merge: true });
+  for (let start = 0; start < rows; start += COLLAPSE_BATCH_ROWS) {
+    const end = Math.min(rows, start + COLLAPSE_BATCH_ROWS);
+    accumulator.addRows(
+      {
+        latency: trials.latency.subarray(start, end),
+        scale: trials.scale.subarray(start, end),
+        difficulty: difficulty.subarray(start, end),
+        weight: weights === null ? null : weights.subarray(start, end),
+        player: playerCodes === null ? null : playerCodes.subarray(start, end),
+        successes: trials.successes.subarray(start, end),
+        attempts: trials.attempts.subarray(start, end),
+      },
+      end - start,
+    );
   }
-  // Pass 1 keeps only each group's first row; the key records are filled once the number of groups is known.
-  let representative = new Int32Array(1 << 12);
-  let groups = 0;
-  for (let i = 0; i < rows; i += 1) {
-    const full = groupOf[i] as number;
-    let slot = full & (capacity - 1);
-    for (;;) {
-      const stored = table[2 * slot] as number;
-      if (stored === 0) {
-        if (4 * (groups + 1) > 3 * capacity) {
-          table = rehash(table, capacity);
-          capacity *= 2;
-          slot = full & (capacity - 1);
-          while (table[2 * slot] !== 0) slot = (slot + 1) & (capacity - 1);
-        }
-        table[2 * slot] = groups + 1;
-        table[2 * slot + 1] = full;
-        if (groups === representative.length) {
-          const grown = new Int32Array(groups * 2);
-          grown.set(representative);
-          representative = grown;
-        }
-        representative[groups] = i;
-        groupOf[i] = groups;
-        groups += 1;
-        break;
-      }
-      if (table[2 * slot + 1] === full) {
-        groupOf[i] = stored - 1;
-        break;
-      }
-      slot = (slot + 1) & (capacity - 1);
-    }
-  }
-  table = new Int32Array(0);
-  let records: Float64Array<ArrayBufferLike> = new Float64Array(groups * stride);
-  const fill = (group: number, i: number): void => {
-    const base = group * stride;
-    records[base] = latencies[i] as number;
-    records[base + 1] = scales[i] as number;
-    records[base + 2] = difficulty[i] as number;
-    if (weights !== null) records[base + weightAt] = weights[i] as number;
-    if (playerCodes !== null) records[base + playerAt] = playerCodes[i] as number;
-  };
-  for (let group = 0; group < groups; group += 1) fill(group, representative[group] as number);
-  representative = new Int32Array(0);
-  const append = (i: number): number => {
-    if ((groups + 1) * stride > records.length) records = grow(records, (groups + 1) * stride);
-    fill(groups, i);
-    groups += 1;
-    return groups - 1;
-  };
-  let collided: Map<string, number> | null = null;
-  for (let i = 0; i < rows; i += 1) {
-    let base = (groupOf[i] as number) * stride;
-    if (
-      records[base] !== latencies[i] ||
-      records[base + 1] !== scales[i] ||
-      records[base + 2] !== difficulty[i] ||
-      (weights !== null && records[base + weightAt] !== weights[i]) ||
-      (playerCodes !== null && records[base + playerAt] !== playerCodes[i])
-    ) {
-      collided ??= new Map();
-      const key = `${latencies[i]} ${scales[i]} ${difficulty[i]} ${weights?.[i] ?? 1} ${playerCodes?.[i] ?? 0}`;
-      let group = collided.get(key);
-      if (group === undefined) {
-        group = append(i);
-        collided.set(key, group);
-      }
-      base = group * stride;
-    }
-    records[base + 3] = (records[base + 3] as number) + (trials.successes[i] as number);
-    records[base + 4] = (records[base + 4] as number) + (trials.attempts[i] as number);
-  }
-  groupOf = new Int32Array(0);
-  const column = (offset: number): Float64Array => {
-    const target = new Float64Array(groups);
-    for (let g = 0; g < groups; g += 1) target[g] = records[g * stride + offset] as number;
-    return target;
-  };
-  const player = new Int32Array(hasPlayer ? groups : 0);
-  for (let g = 0; g < player.length; g += 1) player[g] = records[g * stride + playerAt] as number;
-  return {
-    rows: groups,
-    latency: column(0),
-    scale: column(1),
-    difficulty: column(2),
-    player: hasPlayer ? player : null,
-    successes: column(3),
-    attempts: column(4),
-    weight: hasWeight ? column(weightAt) : new Float64Array(groups).fill(1),
-    sourceRows: rows,
-  };
-}
-
-function grow(values: Float64Array<ArrayBufferLike>, atLeast: number): Float64Array<ArrayBufferLike> {
-  const next = new Float64Array(Math.max(atLeast, values.length * 2));
-  next.set(values);
-  return next;
+  return accumulator.finish();
 }
 
 /** The (group + 1, hash) table doubled, every entry re-inserted by its stored hash. */
@@ -293,4 +399,28 @@ export function groupTrials(trials: Trials): GroupedTrials {
     players: trials.player === null ? null : trials.player.ids,
     groups: collapseTrials(trials, { byPlayer: trials.player !== null }),
   };
+}
+
+/**
+ * Merge groups that share a key: after level codes are replaced by their
+ * numbers, two level names with one value (`1` and `1.0`) are one point.
+ */
+export function mergeGroups(data: CollapsedTrials): CollapsedTrials {
+  const accumulator = new GroupAccumulator({ weight: true, player: data.player !== null, merge: true });
+  for (let start = 0; start < data.rows; start += COLLAPSE_BATCH_ROWS) {
+    const end = Math.min(data.rows, start + COLLAPSE_BATCH_ROWS);
+    accumulator.addRows(
+      {
+        latency: data.latency.subarray(start, end),
+        scale: data.scale.subarray(start, end),
+        difficulty: data.difficulty.subarray(start, end),
+        weight: data.weight.subarray(start, end),
+        player: data.player === null ? null : data.player.subarray(start, end),
+        successes: data.successes.subarray(start, end),
+        attempts: data.attempts.subarray(start, end),
+      },
+      end - start,
+    );
+  }
+  return { ...accumulator.finish(), sourceRows: data.sourceRows };
 }
