@@ -104,7 +104,8 @@ async function scanFile(path: string, options: ReadTrialsOptions, sink: TrialSin
     ...(options.onProgress === undefined ? {} : { onProgress: options.onProgress }),
     ...(sink === null ? {} : { sink }),
   });
-  // One buffer, read into again and again: no chunk outlives its scan.
+  // Two buffers read into in turn: the next chunk is read while this one is scanned,
+  // and no chunk outlives its scan (the scanner copies what it carries over).
   const onChunk = options.onChunk;
   let handle;
   try {
@@ -112,18 +113,28 @@ async function scanFile(path: string, options: ReadTrialsOptions, sink: TrialSin
   } catch (cause) {
     return fail([error('cannot_read', path, `the file requires to be readable: ${(cause as Error).message}`)]);
   }
+  let pending: Promise<{ bytesRead: number }> | null = null;
   try {
-    const buffer = Buffer.allocUnsafe(CHUNK_BYTES);
+    const buffers = [Buffer.allocUnsafe(CHUNK_BYTES), Buffer.allocUnsafe(CHUNK_BYTES)] as const;
+    let turn: 0 | 1 = 0;
+    let offset = 0;
+    pending = handle.read(buffers[0], 0, CHUNK_BYTES, 0);
     for (;;) {
-      const { bytesRead } = await handle.read(buffer, 0, CHUNK_BYTES, null);
+      const { bytesRead } = await pending;
+      pending = null;
       if (bytesRead === 0) break;
-      const chunk = buffer.subarray(0, bytesRead);
+      const chunk = buffers[turn].subarray(0, bytesRead);
+      offset += bytesRead;
+      turn = turn === 0 ? 1 : 0;
+      pending = handle.read(buffers[turn], 0, CHUNK_BYTES, offset);
       onChunk?.(chunk);
       if (!reader.push(chunk)) break;
     }
   } catch (cause) {
     return fail([error('cannot_read', path, `the file requires to be readable: ${(cause as Error).message}`)]);
   } finally {
+    // A read still in flight (the scan stopped early) ends before the file is closed.
+    if (pending !== null) await pending.catch(() => undefined);
     await handle.close();
   }
   return ok(reader);
