@@ -10,6 +10,9 @@
  * only (a file of that many distinct players is rare and still correct).
  */
 
+/** Up to this many names are compared in turn rather than hashed. */
+const FEW_NAMES = 8;
+
 /** Names held in the byte table; later names are looked up as strings. */
 const MAX_BYTE_NAMES = 1 << 16;
 
@@ -56,6 +59,24 @@ export class NameCodes {
   codeOfBytes(bytes: Uint8Array, start: number, end: number): number {
     const last = this.last;
     if (last >= 0 && this.matches(last, bytes, start, end)) return last;
+    const known = this.known;
+    if (known.length <= FEW_NAMES) {
+      // A few names (difficulty levels): compared in turn, most rejected by length or first byte.
+      const length = end - start;
+      const first = bytes[start];
+      for (let code = 0; code < known.length; code += 1) {
+        const name = known[code] as Uint8Array;
+        if (name.length === length && name[0] === first && this.matches(code, bytes, start, end)) {
+          this.last = code;
+          return code;
+        }
+      }
+      return -1;
+    }
+    return this.probe(bytes, start, end);
+  }
+
+  private probe(bytes: Uint8Array, start: number, end: number): number {
     const mask = this.table.length - 1;
     for (let slot = hashBytes(bytes, start, end) & mask; ; slot = (slot + 1) & mask) {
       const entry = this.table[slot] as number;
