@@ -485,3 +485,30 @@ describe('fitBinomial()', () => {
     });
   });
 });
+
+describe('fitBinomial() on many rows', () => {
+  it('reaches the same estimate from its sample-fit start as from zero coefficients, with a zero score there', () => {
+    // 80,000 rows of a seeded logistic model: above the 65,536 rows where a logit fit starts from a sample fit.
+    let state = 12345;
+    const random = () => {
+      state = (Math.imul(state, 1103515245) + 12345) >>> 0;
+      return state / 2 ** 32;
+    };
+    const rows = 80_000;
+    const latency = Float64Array.from({ length: rows }, () => 200 * random());
+    const logScale = Float64Array.from({ length: rows }, (_, i) => Math.log([1, 1.5, 2][i % 3] as number));
+    const successes = Float64Array.from({ length: rows }, (_, i) => (random() < 1 / (1 + Math.exp(-(0.8 - 0.01 * (latency[i] as number) + 1.2 * (logScale[i] as number)))) ? 1 : 0));
+    const design = designMatrixFromColumns([interceptColumn(rows), { name: 'latency', values: Array.from(latency) }, { name: 'log_scale', values: Array.from(logScale) }]);
+    const data = { design, successes, trials: new Float64Array(rows).fill(1) };
+    const sampled = fitBinomial(data);
+    const fromZero = fitBinomial(data, { start: [0, 0, 0] });
+    if (sampled.status !== 'converged' || fromZero.status !== 'converged') throw new Error('expected convergence');
+    for (let j = 0; j < 3; j += 1) {
+      expect(relativeError(sampled.coefficients[j] as number, fromZero.coefficients[j] as number)).toBeLessThan(1e-10);
+      expect(relativeError(sampled.standardErrors[j] as number, fromZero.standardErrors[j] as number)).toBeLessThan(1e-10);
+    }
+    // The score X'(y - mu) at the estimate is zero to rounding (common practice: the likelihood equations).
+    const score = binomialScore(data, sampled.coefficients);
+    for (let j = 0; j < 3; j += 1) expect(Math.abs(score[j] as number) / (sampled.standardErrors[j] as number) ** -1).toBeLessThan(1e-8);
+  });
+});
