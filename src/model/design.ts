@@ -54,23 +54,17 @@ export function buildDesign(
   }
   const { latency, difficulty } = data;
   columns.forEach((column, j) => {
-    const offset = j * n;
+    const target = values.subarray(j * n, (j + 1) * n);
     const levelCode =
       column.difficulty !== null && column.difficulty !== 'value' && coding.kind === 'levels'
         ? coding.levels.indexOf(column.difficulty.level)
         : -1;
-    const usesLatency = column.latency;
-    const usesScale = column.scale;
-    const usesValue = column.difficulty === 'value';
-    const usesLevel = column.difficulty !== null && !usesValue;
-    for (let i = 0; i < n; i += 1) {
-      let value = 1;
-      if (usesLatency) value *= latency[i] as number;
-      if (usesScale) value *= scaleTerm[i] as number;
-      if (usesValue) value *= difficulty[i] as number;
-      else if (usesLevel) value = difficulty[i] === levelCode ? value : 0;
-      values[offset + i] = value;
-    }
+    // One factor at a time, each a plain loop: the product of the column's covariate factors.
+    if (column.latency) target.set(latency.subarray(0, n));
+    else target.fill(1);
+    if (column.scale) for (let i = 0; i < n; i += 1) target[i] = (target[i] as number) * (scaleTerm[i] as number);
+    if (column.difficulty === 'value') for (let i = 0; i < n; i += 1) target[i] = (target[i] as number) * (difficulty[i] as number);
+    else if (column.difficulty !== null) for (let i = 0; i < n; i += 1) if (difficulty[i] !== levelCode) target[i] = 0;
   });
   return { matrix: { rows: n, columns: columns.length, names: columns.map((column) => column.name), values }, columns };
 }

@@ -643,14 +643,25 @@ function shuffled(count: number, random: () => number): Int32Array {
   return order;
 }
 
-/** Held-out predictions accumulated over folds. */
-class HeldOut {
-  logLoss = 0;
-  brier = 0;
-  weight = 0;
+/** Ten equal-width bins of predicted probability: attempts, predicted and observed hits (prior-weighted). */
+class CalibrationBins {
   readonly binWeight = new Float64Array(10);
   readonly binPredicted = new Float64Array(10);
   readonly binObserved = new Float64Array(10);
+
+  addToBin(probability: number, weight: number, observed: number): void {
+    const bin = Math.min(9, Math.max(0, Math.floor(probability * 10)));
+    this.binWeight[bin] = (this.binWeight[bin] as number) + weight;
+    this.binPredicted[bin] = (this.binPredicted[bin] as number) + weight * probability;
+    this.binObserved[bin] = (this.binObserved[bin] as number) + observed;
+  }
+}
+
+/** Held-out predictions accumulated over folds. */
+class HeldOut extends CalibrationBins {
+  logLoss = 0;
+  brier = 0;
+  weight = 0;
 
   add(probability: number, successes: number, attempts: number, prior: number): { logLoss: number; brier: number; weight: number } {
     const clipped = Math.min(1 - CLIP, Math.max(CLIP, probability));
@@ -661,10 +672,7 @@ class HeldOut {
     this.logLoss += logLoss;
     this.brier += brier;
     this.weight += weight;
-    const bin = Math.min(9, Math.max(0, Math.floor(probability * 10)));
-    this.binWeight[bin] = (this.binWeight[bin] as number) + weight;
-    this.binPredicted[bin] = (this.binPredicted[bin] as number) + weight * probability;
-    this.binObserved[bin] = (this.binObserved[bin] as number) + prior * successes;
+    this.addToBin(probability, weight, prior * successes);
     return { logLoss, brier, weight };
   }
 
@@ -770,18 +778,20 @@ function crossValidate(
 
 /** Predicted against observed hit rate in ten equal-width bins of predicted probability (prior-weighted attempts). */
 export function calibrationTable(data: CollapsedTrials, probabilities: ArrayLike<number>): CalibrationBin[] {
-  const table = new HeldOut();
+  const bins = new CalibrationBins();
   for (let i = 0; i < data.rows; i += 1) {
-    table.add(probabilities[i] as number, data.successes[i] as number, data.attempts[i] as number, data.weight[i] as number);
+    const prior = data.weight[i] as number;
+    bins.addToBin(probabilities[i] as number, prior * (data.attempts[i] as number), prior * (data.successes[i] as number));
   }
+  const { binWeight, binPredicted, binObserved } = bins;
   return Array.from({ length: 10 }, (_, b) => {
-    const weight = table.binWeight[b] as number;
+    const weight = binWeight[b] as number;
     return {
       lower: b / 10,
       upper: (b + 1) / 10,
       attempts: weight,
-      mean_predicted: weight > 0 ? (table.binPredicted[b] as number) / weight : null,
-      observed: weight > 0 ? (table.binObserved[b] as number) / weight : null,
+      mean_predicted: weight > 0 ? (binPredicted[b] as number) / weight : null,
+      observed: weight > 0 ? (binObserved[b] as number) / weight : null,
     };
   });
 }
