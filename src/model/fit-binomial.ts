@@ -831,10 +831,16 @@ function sampleEstimate(
   options: BinomialFitOptions,
 ): Float64Array | null {
   const every = Math.max(2, Math.floor(design.rows / WARM_START_SAMPLE));
-  const keep = Array.from({ length: design.rows }, (_, i) => i % every === 0);
-  const pick = (values: Float64Array) => values.filter((_, i) => i % every === 0);
+  const count = Math.ceil(design.rows / every);
+  const pick = (values: Float64Array, offset = 0) => {
+    const sample = new Float64Array(count);
+    for (let r = 0; r < count; r += 1) sample[r] = values[offset + r * every] as number;
+    return sample;
+  };
+  const values = new Float64Array(count * design.columns);
+  for (let j = 0; j < design.columns; j += 1) values.set(pick(design.values, j * design.rows), j * count);
   const fit = fitBinomial(
-    { design: selectRows(design, keep), successes: pick(successes), trials: pick(trials), priorWeights: pick(priorWeights) },
+    { design: { ...design, rows: count, values }, successes: pick(successes), trials: pick(trials), priorWeights: pick(priorWeights) },
     { link: 'logit', maxIterations: options.maxIterations ?? 50, robust: false },
   );
   return fit.status === 'converged' ? fit.coefficients : null;
