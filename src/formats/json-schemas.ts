@@ -12,7 +12,8 @@ import { z } from 'zod';
 import { lobbyFileSchema, LOBBY_FORMAT } from './lobby-file.js';
 import { modelFileSchema, MODEL_FORMAT } from './model-file.js';
 import { rulesFileSchema, RULES_FORMAT } from './rules-file.js';
-import { trialRowSchema, TRIALS_FORMAT } from './trials-csv.js';
+import { TRIALS_FORMAT } from './trials-csv.js';
+import { trialRowSchema } from './trials-schema.js';
 import { AUDIT_FORMAT, auditReportSchema, sweepReportSchema } from '../audit/audit-schema.js';
 
 export const SCHEMA_FILES = {

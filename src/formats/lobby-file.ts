@@ -3,6 +3,7 @@
  * latencies, as a matchmaker sends it or an organiser keeps it on file.
  */
 import { z } from 'zod';
+import { MAX_LATENCY_MS } from './limits.js';
 
 export const LOBBY_FORMAT = 'lagparity/lobby@1';
 
@@ -11,7 +12,7 @@ export const MAX_PLAYERS = 1024;
 /** ... and one player at most this many latency samples. */
 export const MAX_LATENCY_SAMPLES = 4096;
 /** A latency above this (one minute) is not a network latency but a broken measurement. */
-export const MAX_LATENCY_MS = 60_000;
+export { MAX_LATENCY_MS } from './limits.js';
 
 const latencyValue = z
   .number({ error: 'a latency in milliseconds (a finite number >= 0)' })

@@ -113,6 +113,11 @@ export class NameCodes {
 
   /** Push a name by its text. */
   push(name: string): void {
+    this.pushCode(this.intern(name));
+  }
+
+  /** The code of a name, interned (in order of first appearance) if it is new. */
+  intern(name: string): number {
     let code = this.index.get(name);
     if (code === undefined) {
       code = this.names.length;
@@ -120,7 +125,7 @@ export class NameCodes {
       this.index.set(name, code);
       this.remember(code, Buffer.from(name, 'utf8'));
     }
-    this.pushCode(code);
+    return code;
   }
 
   /** The code buffer itself (its first `length` entries are the column). */

@@ -4,8 +4,9 @@
  * level), optionally `player` and `weight`. Read into columns of typed arrays,
  * never an object per row, so that millions of rows fit in little memory.
  *
- * The row grammar is `trialRowSchema` (zod) below; the reader applies the same
- * rules by hand in its loop for speed, and a test checks the two agree.
+ * The row grammar is `trialRowSchema` (zod, `trials-schema.ts`); the reader
+ * applies the same rules by hand in its loop for speed, and a test checks the
+ * two agree.
  *
  * The CSV itself is scanned byte by byte by `CsvScanner` (RFC 4180, see
  * `csv-scanner.ts`). Two ways in, with the same result:
@@ -20,10 +21,9 @@
  * or spaces, an error message) are decoded to strings. Memory is the columns
  * plus one chunk.
  */
-import { z } from 'zod';
 import { type Issue, type Result, error, fail, ok, show, warning } from '../issues.js';
 import { CARRIAGE_RETURN, type CsvRecord, CsvScanner, LINE_FEED, MAX_CSV_LINE_BYTES, type PlainLineReader } from './csv-scanner.js';
-import { MAX_LATENCY_MS } from './lobby-file.js';
+import { MAX_LATENCY_MS } from './limits.js';
 import { NameCodes } from './name-codes.js';
 
 export const TRIALS_FORMAT = 'lagparity/trials@1';
@@ -31,29 +31,6 @@ export const TRIALS_FORMAT = 'lagparity/trials@1';
 export { MAX_CSV_LINE_BYTES } from './csv-scanner.js';
 /** Documented limit: a file at most 50 million rows (and one line at most {@link MAX_CSV_LINE_BYTES}). */
 export const MAX_TRIAL_ROWS = 50_000_000;
-
-const finite = z.number({ error: 'a finite number' });
-
-/** One row of a trials file, after its fields are read as numbers (for docs and JSON Schema). */
-export const trialRowSchema = z
-  .object({
-    latency_ms: finite.min(0).max(MAX_LATENCY_MS),
-    scale: finite.positive(),
-    difficulty: z.union([finite, z.string().min(1)]),
-    player: z.string().min(1).optional(),
-    hit: z.union([z.literal(0), z.literal(1)]).optional(),
-    hits: z.number().int().nonnegative().optional(),
-    attempts: z.number().int().positive().optional(),
-    weight: finite.min(0).optional(),
-  })
-  .refine((row) => (row.hit !== undefined) !== (row.hits !== undefined && row.attempts !== undefined), {
-    error: 'either `hit`, or both `hits` and `attempts`',
-  })
-  .refine((row) => row.hits === undefined || row.attempts === undefined || row.hits <= row.attempts, {
-    error: '`hits` <= `attempts`',
-  });
-
-export type TrialRow = z.infer<typeof trialRowSchema>;
 
 export type DifficultyColumn =
   | { readonly kind: 'numeric'; readonly values: Float64Array }

@@ -225,6 +225,31 @@ export class GroupAccumulator {
     }
   }
 
+  /**
+   * Add collapsed groups (from another accumulator, e.g. a worker's share of
+   * a file) as rows with their counts; the source rows they stood for are
+   * counted, not the groups.
+   */
+  addGroups(data: CollapsedTrials): void {
+    const before = this.sourceRows;
+    for (let start = 0; start < data.rows; start += COLLAPSE_BATCH_ROWS) {
+      const end = Math.min(data.rows, start + COLLAPSE_BATCH_ROWS);
+      this.addRows(
+        {
+          latency: data.latency.subarray(start, end),
+          scale: data.scale.subarray(start, end),
+          difficulty: data.difficulty.subarray(start, end),
+          weight: data.weight.subarray(start, end),
+          player: data.player === null ? null : data.player.subarray(start, end),
+          successes: data.successes.subarray(start, end),
+          attempts: data.attempts.subarray(start, end),
+        },
+        end - start,
+      );
+    }
+    this.sourceRows = before + data.sourceRows;
+  }
+
   /** A new group with row `i`'s key and no counts yet. */
   private append(columns: RowColumns, i: number): number {
     const group = this.groups;
@@ -407,20 +432,6 @@ export function groupTrials(trials: Trials): GroupedTrials {
  */
 export function mergeGroups(data: CollapsedTrials): CollapsedTrials {
   const accumulator = new GroupAccumulator({ weight: true, player: data.player !== null, merge: true });
-  for (let start = 0; start < data.rows; start += COLLAPSE_BATCH_ROWS) {
-    const end = Math.min(data.rows, start + COLLAPSE_BATCH_ROWS);
-    accumulator.addRows(
-      {
-        latency: data.latency.subarray(start, end),
-        scale: data.scale.subarray(start, end),
-        difficulty: data.difficulty.subarray(start, end),
-        weight: data.weight.subarray(start, end),
-        player: data.player === null ? null : data.player.subarray(start, end),
-        successes: data.successes.subarray(start, end),
-        attempts: data.attempts.subarray(start, end),
-      },
-      end - start,
-    );
-  }
-  return { ...accumulator.finish(), sourceRows: data.sourceRows };
+  accumulator.addGroups(data);
+  return accumulator.finish();
 }
