@@ -461,17 +461,17 @@ export class TrialsBuilder implements PlainLineReader {
       this.failure = error('empty_field', this.where(line, 'player'), '`player` requires a player id, got an empty field');
       return false;
     }
+    this.pushRow(latency, scale, successes, attempts, weight);
+    return true;
+  }
+
+  /** A good row's numbers into the columns (its names are pushed already), then the count, progress and a full batch to the sink. */
+  private pushRow(latency: number, scale: number, successes: number, attempts: number, weight: number): void {
     this.latency.push(latency);
     this.scale.push(scale);
     this.successes.push(successes);
     this.attempts.push(attempts);
     if (this.weightAt >= 0) this.weight.push(weight);
-    this.counted();
-    return true;
-  }
-
-  /** After a row is pushed: the count, progress, and a full batch to the sink. */
-  private counted(): void {
     this.rows += 1;
     if (this.onProgress !== undefined && this.rows % 1_000_000 === 0) this.onProgress(this.rows);
     if (this.sink !== null && this.latency.length === this.capacity) this.flush();
@@ -565,14 +565,9 @@ export class TrialsBuilder implements PlainLineReader {
     if (this.shape === 'per_attempt') {
       if (successes !== 0 && successes !== 1) return -1;
     } else if (!Number.isInteger(attempts) || attempts < 1 || !Number.isInteger(successes) || successes < 0 || successes > attempts) return -1;
-    this.latency.push(latency);
-    this.scale.push(scale);
-    this.successes.push(successes);
-    this.attempts.push(attempts);
-    if (this.weightAt >= 0) this.weight.push(weight);
     this.difficulty.pushCode(difficulty);
     if (this.playerAt >= 0) this.player.pushCode(player);
-    this.counted();
+    this.pushRow(latency, scale, successes, attempts, weight);
     return i;
   }
   /** The failure with the number of rows read before it, or no rows, or null. */

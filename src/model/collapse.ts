@@ -141,8 +141,32 @@ export class GroupAccumulator {
     this.records = new Float64Array(this.stride << 12);
   }
 
-  /** Add the first `count` rows of `columns` (at most {@link COLLAPSE_BATCH_ROWS} for the documented group order). */
+  /**
+   * Add the first `count` rows of `columns`, in batches of
+   * {@link COLLAPSE_BATCH_ROWS} counted from the first row (a reader that
+   * hands over full batches gets the same batches, hence the same group order).
+   */
   addRows(columns: RowColumns, count: number): void {
+    if (count <= COLLAPSE_BATCH_ROWS) return this.addBatch(columns, count);
+    for (let start = 0; start < count; start += COLLAPSE_BATCH_ROWS) {
+      const end = Math.min(count, start + COLLAPSE_BATCH_ROWS);
+      this.addBatch(
+        {
+          latency: columns.latency.subarray(start, end),
+          scale: columns.scale.subarray(start, end),
+          difficulty: columns.difficulty.subarray(start, end),
+          weight: columns.weight === null ? null : columns.weight.subarray(start, end),
+          player: columns.player === null ? null : columns.player.subarray(start, end),
+          successes: columns.successes.subarray(start, end),
+          attempts: columns.attempts.subarray(start, end),
+        },
+        end - start,
+      );
+    }
+  }
+
+  /** One batch: the hashes, pass 1 and pass 2 of the class note. */
+  private addBatch(columns: RowColumns, count: number): void {
     const { latency, scale, difficulty, weight, player, successes, attempts } = columns;
     const stride = this.stride;
     const weightAt = this.weightAt;
@@ -226,27 +250,13 @@ export class GroupAccumulator {
   }
 
   /**
-   * Add collapsed groups (from another accumulator, e.g. a worker's share of
-   * a file) as rows with their counts; the source rows they stood for are
+   * Add collapsed groups as rows with their counts (e.g. groups whose keys
+   * changed, see {@link mergeGroups}); the source rows they stood for are
    * counted, not the groups.
    */
   addGroups(data: CollapsedTrials): void {
     const before = this.sourceRows;
-    for (let start = 0; start < data.rows; start += COLLAPSE_BATCH_ROWS) {
-      const end = Math.min(data.rows, start + COLLAPSE_BATCH_ROWS);
-      this.addRows(
-        {
-          latency: data.latency.subarray(start, end),
-          scale: data.scale.subarray(start, end),
-          difficulty: data.difficulty.subarray(start, end),
-          weight: data.weight.subarray(start, end),
-          player: data.player === null ? null : data.player.subarray(start, end),
-          successes: data.successes.subarray(start, end),
-          attempts: data.attempts.subarray(start, end),
-        },
-        end - start,
-      );
-    }
+    this.addRows(data, data.rows);
     this.sourceRows = before + data.sourceRows;
   }
 
@@ -336,21 +346,8 @@ export function collapseTrials(trials: Trials, options: CollapseOptions = {}): C
     };
   }
   const accumulator = new GroupAccumulator({ weight: weights !== null, player: playerCodes !== null, merge: true });
-  for (let start = 0; start < rows; start += COLLAPSE_BATCH_ROWS) {
-    const end = Math.min(rows, start + COLLAPSE_BATCH_ROWS);
-    accumulator.addRows(
-      {
-        latency: trials.latency.subarray(start, end),
-        scale: trials.scale.subarray(start, end),
-        difficulty: difficulty.subarray(start, end),
-        weight: weights === null ? null : weights.subarray(start, end),
-        player: playerCodes === null ? null : playerCodes.subarray(start, end),
-        successes: trials.successes.subarray(start, end),
-        attempts: trials.attempts.subarray(start, end),
-      },
-      end - start,
-    );
-  }
+  const { latency, scale, successes, attempts } = trials;
+  accumulator.addRows({ latency, scale, difficulty, weight: weights, player: playerCodes, successes, attempts }, rows);
   return accumulator.finish();
 }
 

@@ -803,7 +803,7 @@ interface InitialPass {
   readonly start: Float64Array | undefined;
 }
 
-/** The pass at R's starting values mu = (w y + 0.5) / (w + 1). */
+/** The first pass: at `start`, or (null) at R's starting values mu = (w y + 0.5) / (w + 1). */
 function initialPass(design: DesignMatrix, rows: GlmRows, link: Link, exponents: Int32Array, start: Float64Array | null): InitialPass {
   const linearPredictor = new Float64Array(design.rows);
   const triangle = new RowTriangle(design.columns);
@@ -1102,11 +1102,6 @@ function logBinomialCoefficients(
   return { total, nonInteger };
 }
 
-/**
- * y - mu without cancellation: for y >= 1/2 it is (1 - mu) - (1 - y), with
- * 1 - mu from the link's accurate complement, so a fitted probability that
- * rounds to 1 still leaves its true residual.
- */
 /** The largest |candidate - coefficients| in standard errors (sqrt of the diagonal of `unscaled`); the step is written to `step`. */
 function stepSize(candidate: Float64Array, coefficients: Float64Array, unscaled: Float64Array, step: Float64Array): number {
   const columns = candidate.length;
@@ -1119,6 +1114,11 @@ function stepSize(candidate: Float64Array, coefficients: Float64Array, unscaled:
   return largest;
 }
 
+/**
+ * y - mu without cancellation: for y >= 1/2 it is (1 - mu) - (1 - y), with
+ * 1 - mu from the link's accurate complement, so a fitted probability that
+ * rounds to 1 still leaves its true residual.
+ */
 function residualOf(proportion: number, mu: number, complement: number): number {
   return proportion >= 0.5 ? complement - (1 - proportion) : proportion - mu;
 }
