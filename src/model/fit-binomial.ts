@@ -21,7 +21,10 @@
  *
  * Convergence: iterations stop when the largest coefficient step, measured in
  * standard errors, is at most `tolerance` (default 1e-10); much tighter than
- * R's default deviance criterion (1e-8). Fisher scoring converges only
+ * R's default deviance criterion (1e-8). A logit fit of 65,536 rows or more
+ * also stops a pass earlier when the contraction of its last two steps bounds
+ * the next iterate within `tolerance` of the fixed point (see
+ * `remainingAfter` and `COVARIANCE_SHIFT`). Fisher scoring converges only
  * linearly for probit and cloglog, so once a step is below 0.01 SE those
  * links take Newton-Raphson steps (observed information, solved by Cholesky
  * on the k-by-k matrix) whenever these are positive definite and do not raise
@@ -239,14 +242,16 @@ export function fitBinomial(data: BinomialData, options: BinomialFitOptions = {}
   const glmWeights = unitPriors ? trials : new Float64Array(n);
   // sum w [y log y + (1 - y) log(1 - y)], no log at y = 0 or 1 where the terms vanish.
   let saturated = 0;
+  let weightSum = 0;
   for (let i = 0; i < n; i += 1) {
     const proportion = (successes[i] as number) / (trials[i] as number);
     const weight = (trials[i] as number) * (priorWeights[i] as number);
+    weightSum += weight;
     proportions[i] = proportion;
     if (!unitPriors) glmWeights[i] = weight;
     if (proportion > 0 && proportion < 1) saturated += weight * (proportion * Math.log(proportion) + (1 - proportion) * Math.log1p(-proportion));
   }
-  const rows: GlmRows = { proportions, weights: glmWeights, saturated };
+  const rows: GlmRows = { proportions, weights: glmWeights, saturated, totalWeight: weightSum };
   const base = { link: linkName, names: design.names };
   const exponents = columnExponents(kept);
 
@@ -363,11 +368,10 @@ export function fitBinomial(data: BinomialData, options: BinomialFitOptions = {}
 
   // Likelihood summaries.
   const hasIntercept = hasConstantColumn(kept);
-  let totalWeight = 0;
+  const totalWeight = rows.totalWeight;
   let totalSuccessWeight = 0;
   let totalTrials = 0;
   for (let i = 0; i < n; i += 1) {
-    totalWeight += rows.weights[i] as number;
     totalSuccessWeight += (rows.weights[i] as number) * (rows.proportions[i] as number);
     totalTrials += trials[i] as number;
   }
@@ -537,6 +541,8 @@ interface GlmRows {
   readonly weights: Float64Array;
   /** sum w [y log y + (1 - y) log(1 - y)] (0 log 0 = 0): the saturated log-likelihood kernel, for the deviance. */
   readonly saturated: number;
+  /** sum w: the attempts, weighted. */
+  readonly totalWeight: number;
 }
 
 interface LinkState {
@@ -879,6 +885,7 @@ function iterate(
   let collapsedAliased: { readonly aliased: readonly number[] } = { aliased: [] };
   let halvingWarned = false;
   let previousStepInStandardErrors = Infinity;
+  let lastHalved = false;
   let iterations = 0;
   while (iterations < maxIterations) {
     iterations += 1;
@@ -893,11 +900,13 @@ function iterate(
     const unscaled = inverseCrossProduct(qr);
     if (coefficients !== null && link.name === 'logit') {
       // Logit Fisher steps are Newton steps: once the step from the accepted iterate is
-      // below the tolerance, its result is the estimate, and the pass there is not run;
-      // the information stays that of the iterate it stepped from (as R's summary.glm
-      // takes it), which differs from the one at the estimate by O(tolerance).
+      // below the tolerance, or (on 65,536 rows or more, where a pass is worth saving) leaves
+      // its result within the tolerance of the fixed point by the contraction of the last two
+      // steps (see remainingAfter and COVARIANCE_SHIFT), that result is the estimate and the
+      // pass there is not run; the information stays that of the iterate it stepped from
+      // (as R's summary.glm takes it), one small step from the estimate.
       const step = stepSize(candidate, coefficients, unscaled, lastStep);
-      if (step <= tolerance) {
+      if (step <= tolerance || (n >= WARM_START_ROWS && step <= COVARIANCE_SHIFT * Math.sqrt(rows.totalWeight) && remainingAfter(step, previousStepInStandardErrors, lastHalved) <= tolerance)) {
         coefficients = candidate;
         multiply(design, candidate, previous);
         [previous, current] = [current, previous];
@@ -936,6 +945,7 @@ function iterate(
       deviance = fusedPass(design, rows, link, candidate, candidatePredictor, triangle, factors);
       halvings += 1;
     }
+    lastHalved = halvings > 0;
     if (halvings > 0 && !halvingWarned) {
       warnings.push('step size halved: a Fisher-scoring step raised the deviance or made it non-finite');
       halvingWarned = true;
@@ -1100,6 +1110,35 @@ function logBinomialCoefficients(
     total += (priorWeights[i] as number) * (sum + compensation);
   }
   return { total, nonInteger };
+}
+
+/**
+ * The largest shift, relative to the standard errors, of the information the
+ * covariance is taken from when a logit fit stops on {@link remainingAfter}:
+ * the information at a point d standard errors from the estimate differs from
+ * the one there by about d / sqrt(sum of weights) relatively (the
+ * log-likelihood's third derivative is of the order of its second, in units
+ * where a standard error is 1 / sqrt(sum of weights)), so a last step of d
+ * standard errors is taken without a pass at its result only while d is at
+ * most this times sqrt(sum of weights), i.e. the standard errors keep about
+ * nine digits (R 4.2.2 `glm` standard errors are matched to 1e-8 in the
+ * tests).
+ */
+const COVARIANCE_SHIFT = 1e-9;
+
+/**
+ * A bound on how far the iterate after a step of `step` standard errors still
+ * is from the fixed point, from the step before it (`previous`): while steps
+ * contract by rho = step / previous <= 1/2, the remaining distance is at most
+ * step * rho / (1 - rho) (the a-posteriori bound of a contraction, e.g.
+ * Ortega & Rheinboldt 1970, §12.1); Newton steps contract faster than any
+ * such rho, so the bound is conservative. Infinity when it does not apply
+ * (no previous step, a halved step, or steps not contracting by half).
+ */
+function remainingAfter(step: number, previous: number, halved: boolean): number {
+  if (halved || !(previous > 0) || !Number.isFinite(previous)) return Infinity;
+  const rho = step / previous;
+  return rho <= 0.5 ? (step * rho) / (1 - rho) : Infinity;
 }
 
 /** The largest |candidate - coefficients| in standard errors (sqrt of the diagonal of `unscaled`); the step is written to `step`. */

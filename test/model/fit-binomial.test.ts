@@ -511,4 +511,38 @@ describe('fitBinomial() on many rows', () => {
     const score = binomialScore(data, sampled.coefficients);
     for (let j = 0; j < 3; j += 1) expect(Math.abs(score[j] as number) / (sampled.standardErrors[j] as number) ** -1).toBeLessThan(1e-8);
   });
+
+  it('stops a pass early on the contraction of its steps, within the tolerance of the fully iterated estimate', () => {
+    // 80,000 seeded rows with an interaction column: the steps from the sample-fit start contract
+    // fast enough that the third step is taken without a pass at its result (3 iterations; the
+    // rule switched off, the same fit takes 4).
+    let state = 12345;
+    const random = () => {
+      state = (Math.imul(state, 1103515245) + 12345) >>> 0;
+      return state / 2 ** 32;
+    };
+    const rows = 80_000;
+    const latency = Float64Array.from({ length: rows }, () => 200 * random());
+    const logScale = Float64Array.from({ length: rows }, (_, i) => Math.log([1, 1.5, 2][i % 3] as number));
+    const product = latency.map((value, i) => value * (logScale[i] as number));
+    const truth = (i: number) => 0.8 - 0.01 * (latency[i] as number) + 1.2 * (logScale[i] as number) + 0.004 * (product[i] as number);
+    const successes = Float64Array.from({ length: rows }, (_, i) => (random() < 1 / (1 + Math.exp(-truth(i))) ? 1 : 0));
+    const design = designMatrixFromColumns([
+      interceptColumn(rows),
+      { name: 'latency', values: Array.from(latency) },
+      { name: 'log_scale', values: Array.from(logScale) },
+      { name: 'latency_x_log_scale', values: Array.from(product) },
+    ]);
+    const data = { design, successes, trials: new Float64Array(rows).fill(1) };
+    const fit = fitBinomial(data);
+    // Tolerance 1e-300 never stops on a step size: this one iterates to the rounding floor.
+    const iterated = fitBinomial(data, { tolerance: 1e-300 });
+    if (fit.status !== 'converged' || iterated.status !== 'converged') throw new Error('expected convergence');
+    expect(fit.iterations).toBe(3);
+    for (let j = 0; j < 4; j += 1) {
+      const se = iterated.standardErrors[j] as number;
+      expect(Math.abs((fit.coefficients[j] as number) - (iterated.coefficients[j] as number)) / se).toBeLessThan(1e-10); // the default tolerance, in SEs
+      expect(relativeError(fit.standardErrors[j] as number, se)).toBeLessThan(1e-9); // the COVARIANCE_SHIFT bound
+    }
+  });
 });
