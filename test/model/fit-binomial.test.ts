@@ -487,16 +487,22 @@ describe('fitBinomial()', () => {
 });
 
 describe('fitBinomial() on many rows', () => {
-  it('reaches the same estimate from its sample-fit start as from zero coefficients, with a zero score there', () => {
-    // 80,000 rows of a seeded logistic model: above the 65,536 rows where a logit fit starts from a sample fit.
+  /** Uniform latencies in [0, 200), three scales in turn, and the seeded generator to draw outcomes with next. */
+  const seededRows = (rows: number) => {
     let state = 12345;
     const random = () => {
       state = (Math.imul(state, 1103515245) + 12345) >>> 0;
       return state / 2 ** 32;
     };
-    const rows = 80_000;
     const latency = Float64Array.from({ length: rows }, () => 200 * random());
     const logScale = Float64Array.from({ length: rows }, (_, i) => Math.log([1, 1.5, 2][i % 3] as number));
+    return { latency, logScale, random };
+  };
+
+  it('reaches the same estimate from its sample-fit start as from zero coefficients, with a zero score there', () => {
+    // 80,000 rows of a seeded logistic model: above the 65,536 rows where a logit fit starts from a sample fit.
+    const rows = 80_000;
+    const { latency, logScale, random } = seededRows(rows);
     const successes = Float64Array.from({ length: rows }, (_, i) => (random() < 1 / (1 + Math.exp(-(0.8 - 0.01 * (latency[i] as number) + 1.2 * (logScale[i] as number)))) ? 1 : 0));
     const design = designMatrixFromColumns([interceptColumn(rows), { name: 'latency', values: Array.from(latency) }, { name: 'log_scale', values: Array.from(logScale) }]);
     const data = { design, successes, trials: new Float64Array(rows).fill(1) };
@@ -516,14 +522,8 @@ describe('fitBinomial() on many rows', () => {
     // 80,000 seeded rows with an interaction column: the steps from the sample-fit start contract
     // fast enough that the third step is taken without a pass at its result (3 iterations; the
     // rule switched off, the same fit takes 4).
-    let state = 12345;
-    const random = () => {
-      state = (Math.imul(state, 1103515245) + 12345) >>> 0;
-      return state / 2 ** 32;
-    };
     const rows = 80_000;
-    const latency = Float64Array.from({ length: rows }, () => 200 * random());
-    const logScale = Float64Array.from({ length: rows }, (_, i) => Math.log([1, 1.5, 2][i % 3] as number));
+    const { latency, logScale, random } = seededRows(rows);
     const product = latency.map((value, i) => value * (logScale[i] as number));
     const truth = (i: number) => 0.8 - 0.01 * (latency[i] as number) + 1.2 * (logScale[i] as number) + 0.004 * (product[i] as number);
     const successes = Float64Array.from({ length: rows }, (_, i) => (random() < 1 / (1 + Math.exp(-truth(i))) ? 1 : 0));
