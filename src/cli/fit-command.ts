@@ -72,7 +72,8 @@ export function parseCompare(text: string): { candidates: Candidate[]; issues: I
 }
 
 /** A progress line on stderr, only on a terminal and only once a run has taken more than a second. */
-function progressLine(): { update: (stage: string) => void; done: () => void } {
+/** The progress line on stderr; `stage` is called only when the line is shown (formatting a count loads locale data, about 20 ms). */
+function progressLine(): { update: (stage: () => string) => void; done: () => void } {
   const started = performance.now();
   const tty = Boolean(process.stderr.isTTY);
   let shown = false;
@@ -82,7 +83,7 @@ function progressLine(): { update: (stage: string) => void; done: () => void } {
       const elapsed = (performance.now() - started) / 1000;
       if (elapsed < 1) return;
       shown = true;
-      process.stderr.write(`\r\u001b[2Klagparity fit: ${stage} (${elapsed.toFixed(1)} s)`);
+      process.stderr.write(`\r\u001b[2Klagparity fit: ${stage()} (${elapsed.toFixed(1)} s)`);
     },
     done() {
       if (shown) process.stderr.write('\r\u001b[2K');
@@ -195,7 +196,7 @@ function renderComparison(ranked: readonly Ranked[]): string {
 async function readGrouped(path: string, progress: ReturnType<typeof progressLine>): Promise<Result<{ grouped: GroupedTrials; sha256: string }>> {
   const hash = createHash('sha256');
   const read = await readGroupedTrialsFile(path, {
-    onProgress: (rows) => progress.update(`read ${rows.toLocaleString('en-GB')} rows`),
+    onProgress: (rows) => progress.update(() => `read ${rows.toLocaleString('en-GB')} rows`),
     onChunk: (bytes) => hash.update(bytes),
   });
   if (!read.ok) return read;
@@ -255,7 +256,7 @@ export async function runFit(path: string, options: FitOptions): Promise<number>
   let report: FitReport;
   const ranked: Ranked[] = [];
   try {
-    report = fitModel(grouped, { ...common, likelihoodRatioTests: options.lrTests === 'all', onProgress: (stage) => progress.update(stage) });
+    report = fitModel(grouped, { ...common, likelihoodRatioTests: options.lrTests === 'all', onProgress: (stage) => progress.update(() => stage) });
     for (const candidate of compare?.candidates ?? []) {
       const fitted = fitModel(grouped, {
         ...common,
@@ -264,7 +265,7 @@ export async function runFit(path: string, options: FitOptions): Promise<number>
         ...(candidate.terms === undefined ? {} : { terms: candidate.terms }),
         likelihoodRatioTests: false,
         folds: folds >= 2 ? folds : 5,
-        onProgress: (stage) => progress.update(`${candidate.spec}: ${stage}`),
+        onProgress: (stage) => progress.update(() => `${candidate.spec}: ${stage}`),
       });
       ranked.push({
         spec: candidate.spec,
