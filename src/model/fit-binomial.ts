@@ -216,13 +216,7 @@ export function fitBinomial(data: BinomialData, options: BinomialFitOptions = {}
 
   // Rows that carry weight, and the GLM quantities on them.
   const keep = new Uint8Array(design.rows);
-  let keptCount = 0;
-  for (let i = 0; i < design.rows; i += 1) {
-    const carries = (data.trials[i] as number) * (data.priorWeights?.[i] ?? 1) > 0;
-    keep[i] = carries ? 1 : 0;
-    if (carries) keptCount += 1;
-  }
-  const everyRow = keptCount === design.rows;
+  const everyRow = markCarrying(data.trials, data.priorWeights, keep) === design.rows;
   // Large data sets usually keep every row: then the design and the counts are used as they are, not copied.
   const kept = everyRow ? design : selectRows(design, Array.from(keep, (value) => value === 1));
   const n = kept.rows;
@@ -235,23 +229,7 @@ export function fitBinomial(data: BinomialData, options: BinomialFitOptions = {}
   const successes = select(data.successes);
   const trials = select(data.trials);
   const priorWeights = select(data.priorWeights);
-  const proportions = new Float64Array(n);
-  // With prior weights of 1 the GLM weights are the trials themselves: no copy.
-  let unitPriors = true;
-  for (let i = 0; i < n && unitPriors; i += 1) unitPriors = priorWeights[i] === 1;
-  const glmWeights = unitPriors ? trials : new Float64Array(n);
-  // sum w [y log y + (1 - y) log(1 - y)], no log at y = 0 or 1 where the terms vanish.
-  let saturated = 0;
-  let weightSum = 0;
-  for (let i = 0; i < n; i += 1) {
-    const proportion = (successes[i] as number) / (trials[i] as number);
-    const weight = (trials[i] as number) * (priorWeights[i] as number);
-    weightSum += weight;
-    proportions[i] = proportion;
-    if (!unitPriors) glmWeights[i] = weight;
-    if (proportion > 0 && proportion < 1) saturated += weight * (proportion * Math.log(proportion) + (1 - proportion) * Math.log1p(-proportion));
-  }
-  const rows: GlmRows = { proportions, weights: glmWeights, saturated, totalWeight: weightSum };
+  const rows = glmRows(successes, trials, priorWeights);
   const base = { link: linkName, names: design.names };
   const exponents = columnExponents(kept);
 
@@ -284,15 +262,7 @@ export function fitBinomial(data: BinomialData, options: BinomialFitOptions = {}
   const { coefficients } = iteration;
   const linearPredictor = iteration.atEstimate?.linearPredictor ?? multiply(kept, coefficients);
   const state = linkState(link, linearPredictor, rows, iteration.spares);
-  let boundaryRows = 0;
-  let stillMoving = false;
-  for (let i = 0; i < n; i += 1) {
-    if ((state.mu[i] as number) < BOUNDARY || (state.complement[i] as number) < BOUNDARY) {
-      boundaryRows += 1;
-      const change = Math.abs(iteration.lastLinearPredictorChange(i));
-      if (change > DIVERGING_STEP * Math.max(1, Math.abs(linearPredictor[i] as number))) stillMoving = true;
-    }
-  }
+  const { boundaryRows, stillMoving } = boundaryOf(state, linearPredictor, iteration.lastLinearPredictorChange);
   // The last pass of the iteration already reduced the rows at the estimate.
   const information = (iteration.atEstimate?.reduction ?? reduceWeightedRows(kept, squares(rootWeightsOf(link, linearPredictor, rows)), null, exponents)).qr;
   const weightedRankLost = iteration.weightsCollapsed || information.rank < columns;
@@ -369,12 +339,8 @@ export function fitBinomial(data: BinomialData, options: BinomialFitOptions = {}
   // Likelihood summaries.
   const hasIntercept = hasConstantColumn(kept);
   const totalWeight = rows.totalWeight;
-  let totalSuccessWeight = 0;
-  let totalTrials = 0;
-  for (let i = 0; i < n; i += 1) {
-    totalSuccessWeight += (rows.weights[i] as number) * (rows.proportions[i] as number);
-    totalTrials += trials[i] as number;
-  }
+  const sums = fitSums(rows, state, successes, trials, priorWeights);
+  const { totalSuccessWeight, totalTrials } = sums;
   const nullMu = hasIntercept ? totalSuccessWeight / totalWeight : link.inverse(0);
   const nullComplement = hasIntercept ? (totalWeight - totalSuccessWeight) / totalWeight : link.inverseComplement(0);
   const bernoulliLogLikelihood = state.logLikelihood;
@@ -408,32 +374,10 @@ export function fitBinomial(data: BinomialData, options: BinomialFitOptions = {}
   const bic = -2 * logLikelihood + Math.log(observationCount) * parameterCount;
   const mcfaddenR2 = nullBernoulliLogLikelihood < 0 ? 1 - bernoulliLogLikelihood / nullBernoulliLogLikelihood : null;
 
-  let pearsonChiSquare = 0;
-  let brierSum = 0;
-  let fittedAmongSuccesses = 0;
-  let successWeight = 0;
-  let fittedAmongFailures = 0;
-  let failureWeight = 0;
-  for (let i = 0; i < n; i += 1) {
-    const mu = state.mu[i] as number;
-    const complement = state.complement[i] as number;
-    const prior = priorWeights[i] as number;
-    const successCount = successes[i] as number;
-    const failureCount = (trials[i] as number) - successCount;
-    const variance = mu * complement;
-    const residual = residualOf(rows.proportions[i] as number, mu, complement);
-    if (variance > 0) pearsonChiSquare += ((rows.weights[i] as number) * residual * residual) / variance;
-    brierSum += prior * (successCount * complement * complement + failureCount * mu * mu);
-    fittedAmongSuccesses += prior * successCount * mu;
-    successWeight += prior * successCount;
-    fittedAmongFailures += prior * failureCount * mu;
-    failureWeight += prior * failureCount;
-  }
+  const { pearsonChiSquare, successWeight, failureWeight } = sums;
   const tjurR2 =
-    successWeight > 0 && failureWeight > 0 ? fittedAmongSuccesses / successWeight - fittedAmongFailures / failureWeight : null;
-  let priorTrials = 0;
-  for (let i = 0; i < n; i += 1) priorTrials += (priorWeights[i] as number) * (trials[i] as number);
-  const brierScore = brierSum / priorTrials;
+    successWeight > 0 && failureWeight > 0 ? sums.fittedAmongSuccesses / successWeight - sums.fittedAmongFailures / failureWeight : null;
+  const brierScore = sums.brierSum / sums.priorTrials;
 
   const fitted = kept === design ? state.mu : multiply(design, coefficients).map((value) => link.inverse(value));
 
@@ -822,6 +766,90 @@ function initialPass(design: DesignMatrix, rows: GlmRows, link: Link, exponents:
 const WARM_START_ROWS = 1 << 16;
 /** About this many rows in that sample. */
 const WARM_START_SAMPLE = 1 << 15;
+
+/**
+ * Mark the rows that carry weight (trials x prior weight > 0) in `keep`;
+ * returns their number. (The one-pass loops of a fit live in small functions
+ * of their own, so that each is optimised on its own while it runs.)
+ */
+function markCarrying(trials: ArrayLike<number>, priorWeights: ArrayLike<number> | undefined, keep: Uint8Array): number {
+  let count = 0;
+  for (let i = 0; i < keep.length; i += 1) {
+    const carries = (trials[i] as number) * (priorWeights?.[i] ?? 1) > 0;
+    keep[i] = carries ? 1 : 0;
+    if (carries) count += 1;
+  }
+  return count;
+}
+
+/** Proportions, GLM weights (prior weight x trials), the saturated log-likelihood kernel and the weight total. */
+function glmRows(successes: Float64Array, trials: Float64Array, priorWeights: Float64Array): GlmRows {
+  const n = successes.length;
+  const proportions = new Float64Array(n);
+  // With prior weights of 1 the GLM weights are the trials themselves: no copy.
+  let unitPriors = true;
+  for (let i = 0; i < n && unitPriors; i += 1) unitPriors = priorWeights[i] === 1;
+  const weights = unitPriors ? trials : new Float64Array(n);
+  // sum w [y log y + (1 - y) log(1 - y)], no log at y = 0 or 1 where the terms vanish.
+  let saturated = 0;
+  let totalWeight = 0;
+  for (let i = 0; i < n; i += 1) {
+    const proportion = (successes[i] as number) / (trials[i] as number);
+    const weight = (trials[i] as number) * (priorWeights[i] as number);
+    totalWeight += weight;
+    proportions[i] = proportion;
+    if (!unitPriors) weights[i] = weight;
+    if (proportion > 0 && proportion < 1) saturated += weight * (proportion * Math.log(proportion) + (1 - proportion) * Math.log1p(-proportion));
+  }
+  return { proportions, weights, saturated, totalWeight };
+}
+
+/** Rows whose fitted probability is within BOUNDARY of 0 or 1, and whether any of them still moved by more than DIVERGING_STEP in the last step. */
+function boundaryOf(state: LinkState, linearPredictor: Float64Array, lastChange: (row: number) => number): { boundaryRows: number; stillMoving: boolean } {
+  let boundaryRows = 0;
+  let stillMoving = false;
+  for (let i = 0; i < linearPredictor.length; i += 1) {
+    if ((state.mu[i] as number) < BOUNDARY || (state.complement[i] as number) < BOUNDARY) {
+      boundaryRows += 1;
+      const change = Math.abs(lastChange(i));
+      if (change > DIVERGING_STEP * Math.max(1, Math.abs(linearPredictor[i] as number))) stillMoving = true;
+    }
+  }
+  return { boundaryRows, stillMoving };
+}
+
+/** The sums over the rows that the fit statistics need, in one pass (each in row order). */
+function fitSums(rows: GlmRows, state: LinkState, successes: Float64Array, trials: Float64Array, priorWeights: Float64Array) {
+  let totalSuccessWeight = 0;
+  let totalTrials = 0;
+  let pearsonChiSquare = 0;
+  let brierSum = 0;
+  let fittedAmongSuccesses = 0;
+  let successWeight = 0;
+  let fittedAmongFailures = 0;
+  let failureWeight = 0;
+  let priorTrials = 0;
+  for (let i = 0; i < successes.length; i += 1) {
+    const mu = state.mu[i] as number;
+    const complement = state.complement[i] as number;
+    const prior = priorWeights[i] as number;
+    const successCount = successes[i] as number;
+    const trialCount = trials[i] as number;
+    const failureCount = trialCount - successCount;
+    totalSuccessWeight += (rows.weights[i] as number) * (rows.proportions[i] as number);
+    totalTrials += trialCount;
+    const variance = mu * complement;
+    const residual = residualOf(rows.proportions[i] as number, mu, complement);
+    if (variance > 0) pearsonChiSquare += ((rows.weights[i] as number) * residual * residual) / variance;
+    brierSum += prior * (successCount * complement * complement + failureCount * mu * mu);
+    fittedAmongSuccesses += prior * successCount * mu;
+    successWeight += prior * successCount;
+    fittedAmongFailures += prior * failureCount * mu;
+    failureWeight += prior * failureCount;
+    priorTrials += prior * trialCount;
+  }
+  return { totalSuccessWeight, totalTrials, pearsonChiSquare, brierSum, fittedAmongSuccesses, successWeight, fittedAmongFailures, failureWeight, priorTrials };
+}
 
 /**
  * Coefficients fitted to every k-th row (about {@link WARM_START_SAMPLE}
