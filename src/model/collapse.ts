@@ -165,25 +165,39 @@ export class GroupAccumulator {
     }
   }
 
-  /** One batch: the hashes, pass 1 and pass 2 of the class note. */
+  /**
+   * One batch: the hashes, pass 1 and pass 2 of the class note, each loop a
+   * method of its own (a loop that runs once per batch is optimised alone,
+   * instead of the whole batch deoptimising where the next loop starts).
+   */
   private addBatch(columns: RowColumns, count: number): void {
-    const { latency, scale, difficulty, weight, player, successes, attempts } = columns;
-    const stride = this.stride;
-    const weightAt = this.weightAt;
-    const playerAt = this.playerAt;
     this.sourceRows += count;
     if (!this.merge) {
-      for (let i = 0; i < count; i += 1) {
-        const base = this.append(columns, i) * stride;
-        this.records[base + 3] = successes[i] as number;
-        this.records[base + 4] = attempts[i] as number;
-      }
+      this.appendAll(columns, count);
       return;
     }
     if (this.groupOf.length < count) this.groupOf = new Int32Array(Math.max(count, COLLAPSE_BATCH_ROWS));
+    this.hashRows(columns, count);
+    this.assignGroups(columns, count);
+    this.addCounts(columns, count);
+  }
+
+  /** Every row its own group (rows not merged). */
+  private appendAll(columns: RowColumns, count: number): void {
+    const stride = this.stride;
+    for (let i = 0; i < count; i += 1) {
+      const base = this.append(columns, i) * stride;
+      this.records[base + 3] = columns.successes[i] as number;
+      this.records[base + 4] = columns.attempts[i] as number;
+    }
+  }
+
+  /** Each row's 32-bit key hash into `groupOf`. */
+  private hashRows(columns: RowColumns, count: number): void {
+    const { latency, scale, difficulty } = columns;
+    const weights = this.hasWeight ? columns.weight : null;
+    const players = this.hasPlayer ? columns.player : null;
     const groupOf = this.groupOf;
-    const weights = this.hasWeight ? weight : null;
-    const players = this.hasPlayer ? player : null;
     for (let i = 0; i < count; i += 1) {
       let hash = 0x811c9dc5;
       hash = mix(hash, latency[i] as number);
@@ -193,7 +207,11 @@ export class GroupAccumulator {
       if (players !== null) hash = block(hash, players[i] as number);
       groupOf[i] = finalise(hash) | 0;
     }
-    // Pass 1: a group for every row, by its hash.
+  }
+
+  /** Pass 1: a group for every row, by its hash (`groupOf` goes from hashes to groups). */
+  private assignGroups(columns: RowColumns, count: number): void {
+    const groupOf = this.groupOf;
     let table = this.table;
     let capacity = this.capacity;
     for (let i = 0; i < count; i += 1) {
@@ -223,7 +241,17 @@ export class GroupAccumulator {
         slot = (slot + 1) & (capacity - 1);
       }
     }
-    // Pass 2: the exact key, then the counts.
+  }
+
+  /** Pass 2: the exact key, then the counts. */
+  private addCounts(columns: RowColumns, count: number): void {
+    const { latency, scale, difficulty, successes, attempts } = columns;
+    const weights = this.hasWeight ? columns.weight : null;
+    const players = this.hasPlayer ? columns.player : null;
+    const stride = this.stride;
+    const weightAt = this.weightAt;
+    const playerAt = this.playerAt;
+    const groupOf = this.groupOf;
     for (let i = 0; i < count; i += 1) {
       const records = this.records;
       let base = (groupOf[i] as number) * stride;
@@ -234,19 +262,24 @@ export class GroupAccumulator {
         (weights !== null && records[base + weightAt] !== weights[i]) ||
         (players !== null && records[base + playerAt] !== players[i])
       ) {
-        this.collided ??= new Map();
-        const key = `${latency[i]} ${scale[i]} ${difficulty[i]} ${weights?.[i] ?? 1} ${players?.[i] ?? 0}`;
-        let group = this.collided.get(key);
-        if (group === undefined) {
-          group = this.append(columns, i);
-          this.collided.set(key, group);
-        }
-        base = group * stride;
+        base = this.collidedGroup(columns, i) * stride;
       }
       const target = this.records;
       target[base + 3] = (target[base + 3] as number) + (successes[i] as number);
       target[base + 4] = (target[base + 4] as number) + (attempts[i] as number);
     }
+  }
+
+  /** The group of row `i` whose hash matched another point's: by its exact key, in a map. */
+  private collidedGroup(columns: RowColumns, i: number): number {
+    this.collided ??= new Map();
+    const key = `${columns.latency[i]} ${columns.scale[i]} ${columns.difficulty[i]} ${this.hasWeight ? (columns.weight?.[i] ?? 1) : 1} ${this.hasPlayer ? (columns.player?.[i] ?? 0) : 0}`;
+    let group = this.collided.get(key);
+    if (group === undefined) {
+      group = this.append(columns, i);
+      this.collided.set(key, group);
+    }
+    return group;
   }
 
   /**
