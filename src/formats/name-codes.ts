@@ -22,6 +22,15 @@ function hashBytes(bytes: Uint8Array, start: number, end: number): number {
   return hash >>> 0;
 }
 
+/** Whether a name can be matched where it stands in a line: visible first and last bytes, no delimiter, quote or line end inside. */
+function comparedInPlace(bytes: Uint8Array): boolean {
+  if (bytes.length === 0) return false;
+  const visible = (byte: number) => byte > 0x20 && byte < 0x7f;
+  if (!visible(bytes[0] as number) || !visible(bytes[bytes.length - 1] as number)) return false;
+  for (const byte of bytes) if (byte === 0x2c || byte === 0x3b || byte === 0x09 || byte === 0x22 || byte === 0x0a || byte === 0x0d) return false;
+  return true;
+}
+
 export class NameCodes {
   readonly names: string[] = [];
   private readonly index = new Map<string, number>();
@@ -30,6 +39,11 @@ export class NameCodes {
   /** Slots of code + 1 (0: empty). */
   private table = new Int32Array(32);
   private last = -1;
+  /** Names that {@link matchAt} compares where they stand (see there), and their codes. */
+  private readonly direct: Uint8Array[] = [];
+  private readonly directCodes: number[] = [];
+  /** The code {@link matchAt} found. */
+  matched = -1;
   private codes: Int32Array;
   length = 0;
 
@@ -88,8 +102,40 @@ export class NameCodes {
     }
   }
 
+  /**
+   * Index past the field when one of the first {@link FEW_NAMES} names
+   * stands at `bytes[start]` followed by `delimiter`, CR or LF before
+   * `length`, with its code in {@link matched}; else -1 (scan the field and
+   * use {@link codeOfBytes}). Only names with visible first and last bytes
+   * and none of `,;\t"` CR LF inside are compared, so a match is exactly
+   * the field that scanning to the next delimiter would give.
+   */
+  matchAt(bytes: Uint8Array, start: number, length: number, delimiter: number): number {
+    const direct = this.direct;
+    const first = bytes[start];
+    for (let k = 0; k < direct.length; k += 1) {
+      const name = direct[k] as Uint8Array;
+      if (name[0] !== first) continue;
+      const end = start + name.length;
+      if (end >= length) continue;
+      let at = 1;
+      while (at < name.length && name[at] === bytes[start + at]) at += 1;
+      if (at < name.length) continue;
+      const next = bytes[end];
+      if (next === delimiter || next === 0x0a || next === 0x0d) {
+        this.matched = this.directCodes[k] as number;
+        return end;
+      }
+    }
+    return -1;
+  }
+
   private remember(code: number, bytes: Uint8Array): void {
     if (code !== this.known.length || code >= MAX_BYTE_NAMES) return;
+    if (code < FEW_NAMES && comparedInPlace(bytes)) {
+      this.direct.push(bytes);
+      this.directCodes.push(code);
+    }
     this.known.push(bytes);
     if (2 * this.known.length > this.table.length) {
       this.table = new Int32Array(this.table.length * 2);

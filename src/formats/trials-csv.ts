@@ -528,18 +528,28 @@ export class TrialsBuilder implements PlainLineReader {
       const role = roles[field] as Role;
       const fieldStart = i;
       if (role === Role.Difficulty || role === Role.Player || role === Role.Skip) {
-        while (i < length) {
-          const byte = bytes[i] as number;
-          if (byte === delimiter || byte === LINE_FEED || byte === CARRIAGE_RETURN || byte === QUOTE_BYTE) break;
-          i += 1;
+        const names = role === Role.Difficulty ? this.difficulty : role === Role.Player ? this.player : null;
+        // A few known names are compared where they stand; any other field is scanned, then looked up.
+        const matchedEnd = names === null ? -1 : names.matchAt(bytes, i, length, delimiter);
+        let code: number;
+        if (matchedEnd >= 0) {
+          code = (names as NameCodes).matched;
+          i = matchedEnd;
+        } else {
+          while (i < length) {
+            const byte = bytes[i] as number;
+            if (byte === delimiter || byte === LINE_FEED || byte === CARRIAGE_RETURN || byte === QUOTE_BYTE) break;
+            i += 1;
+          }
+          if (names === null) code = -1;
+          else {
+            if (i === fieldStart || !visible(bytes[fieldStart] as number) || !visible(bytes[i - 1] as number)) return -1;
+            code = names.codeOfBytes(bytes, fieldStart, i);
+            if (code < 0) return -1;
+          }
         }
-        if (role !== Role.Skip) {
-          if (i === fieldStart || !visible(bytes[fieldStart] as number) || !visible(bytes[i - 1] as number)) return -1;
-          const code = (role === Role.Difficulty ? this.difficulty : this.player).codeOfBytes(bytes, fieldStart, i);
-          if (code < 0) return -1;
-          if (role === Role.Difficulty) difficulty = code;
-          else player = code;
-        }
+        if (role === Role.Difficulty) difficulty = code;
+        else if (role === Role.Player) player = code;
       } else {
         i = scanDecimal(bytes, i, length);
         if (i < 0) return -1;

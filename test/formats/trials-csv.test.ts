@@ -257,6 +257,9 @@ describe('TrialsReader plain lines', () => {
     ['one field too few', 'latency_ms,scale,difficulty,hit\n1,1,a,1\n1,1,a\n'],
     ['a quote inside a name', 'latency_ms,scale,difficulty,hit\n1,1,a,1\n1,1,a"b,1\n'],
     ['a name padded after it was seen plain', 'latency_ms,scale,difficulty,hit\n1,1,a,1\n1,1, a ,1\n1,1,a,0\n'],
+    ['a name that starts with a known one', 'latency_ms,scale,difficulty,hit\n1,1,elite,1\n1,1,elitex,1\n1,1,elite,0\n1,1,elit,1\n'],
+    ['a known name and a quote', 'latency_ms,scale,difficulty,hit\n1,1,elite,1\n1,1,elite",1\n'],
+    ['a known name at the end of a line', 'latency_ms,scale,hit,difficulty\n1,1,1,elite\n1,1,0,elite\r\n1,1,0,elite'],
   ])('reads %s the same with and without plain lines, at every chunk size', (_, text) => {
     const bytes = Buffer.from(text, 'utf8');
     const expected = read(bytes, bytes.length, false);
