@@ -6,10 +6,14 @@
  * cost about 0.2 s of every command's start on the reference machine, more
  * than the whole time of a small fit. One bundle starts in about 0.1 s.
  *
- * What: `dist/cli/main.js` (tsc's output) and everything it imports statically,
- * in one file `dist/bin/lagparity.js`; the report's renderer stays a separate
- * chunk loaded only by `lagparity report`, and the charting packages (vega,
- * vega-lite) stay outside, imported from node_modules when a report is drawn.
+ * What: `dist/cli/main.js` (tsc's output) and everything it imports statically
+ * (commander and the commands' registrations) in `dist/bin/lagparity.js`. Each
+ * command's run code (`src/cli/X-run.ts`, imported by its action) becomes a
+ * chunk in `dist/bin/chunks/`, loaded only when that command runs, with code
+ * that several chunks use in shared chunks beside it; the report's renderer
+ * is a further chunk loaded only by `lagparity report`, and the charting
+ * packages (vega, vega-lite) stay outside, imported from node_modules when a
+ * report is drawn.
  * The library entries (`dist/index.js`, `dist/report/`) are not bundled: they
  * are tsc's output, as a library's should be. Licences of the bundled
  * packages are collected into `dist/bin/THIRD-PARTY-LICENSES.txt`.

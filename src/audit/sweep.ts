@@ -12,23 +12,9 @@ import type { CompiledModel } from '../model/compile.js';
 import { compileRules } from '../solver/rules.js';
 import { type AuditEntry, auditLobbies, worstGap } from './audit-lobbies.js';
 import type { SweepReport } from './audit-schema.js';
+import { SWEEPABLE_RULES, type SweepableRule } from './sweepable-rules.js';
 
-/** The rules a sweep can vary: every numeric field. */
-export const SWEEPABLE_RULES = [
-  'scale_floor',
-  'scale_cap',
-  'max_scale_ratio',
-  'latency_limit_ms',
-  'accepted_gap',
-  'quantisation_step',
-  'assistance_budget',
-  'accepted_duel_deviation',
-  'accepted_team_gap',
-  'accepted_exploit_gain',
-  'spike_fraction',
-] as const;
-
-export type SweepableRule = (typeof SWEEPABLE_RULES)[number];
+export { SWEEPABLE_RULES, type SweepableRule } from './sweepable-rules.js';
 
 /** At most this many values in one sweep. */
 export const MAX_SWEEP_VALUES = 1000;

@@ -18,6 +18,8 @@ program
   .configureOutput({ writeErr: (text) => process.stderr.write(text) })
   .addHelpText('after', '\nExit codes: 0 success; 1 a check failed (audit); 2 bad input.');
 
+// Options and help only: each command's action imports its run code (`X-run.ts`) when it runs,
+// so a command loads what it needs and nothing else; errors from there reach the catch below.
 registerBalance(program);
 registerFit(program);
 registerAudit(program);

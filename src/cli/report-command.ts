@@ -1,65 +1,6 @@
-/** `lagparity report`: one self-contained HTML page of the playtest, the model and the lobbies. */
-import { createHash } from 'node:crypto';
-import { basename } from 'node:path';
+/** `lagparity report`: the command's options and help; the run code (`report-run.ts`) is loaded when it runs. */
 import type { Command } from 'commander';
-import { readTrialsFile } from '../io/read-trials.js';
-import { writeFileAtomic } from '../io/write-file.js';
-import { parseBinSpec } from '../summary/bins.js';
-import { loadLobbies, loadModel, loadRules } from './inputs.js';
-import { EXIT_BAD_INPUT, EXIT_OK, reportIssues, writeOut } from './output.js';
-
-interface ReportOptions {
-  trials: string;
-  model: string;
-  lobbies?: string[];
-  rules?: string;
-  out: string;
-  force?: boolean;
-  latencyBins: string;
-}
-
-export async function runReport(options: ReportOptions): Promise<number> {
-  const bins = parseBinSpec(options.latencyBins, '--latency-bins');
-  // The digest is taken from the same bytes the reader parses: one read of the file.
-  const hash = createHash('sha256');
-  const [trials, model, rules, lobbies] = await Promise.all([
-    readTrialsFile(options.trials, { onChunk: (bytes) => hash.update(bytes) }),
-    loadModel(options.model),
-    loadRules(options.rules),
-    options.lobbies === undefined || options.lobbies.length === 0 ? Promise.resolve(undefined) : loadLobbies(options.lobbies),
-  ]);
-  const issues = [bins, trials, model, rules, ...(lobbies === undefined ? [] : [lobbies])].flatMap((result) => (result.ok ? [] : result.issues));
-  if (!bins.ok || !trials.ok || !model.ok || !rules.ok || (lobbies !== undefined && !lobbies.ok)) {
-    reportIssues(issues);
-    return EXIT_BAD_INPUT;
-  }
-  reportIssues(trials.warnings);
-  // Loaded here, not at start-up: the charting library takes about half a second to import,
-  // which every other command would otherwise pay.
-  const { renderReport } = await import('../report/render-report.js');
-  const report = await renderReport({
-    trials: trials.value,
-    model: model.value,
-    modelName: basename(options.model),
-    lobbies: lobbies?.ok ? lobbies.value.map(({ path, lobby }) => ({ name: path === '-' ? 'stdin' : basename(path), lobby })) : [],
-    rules: rules.value,
-    rulesName: options.rules === undefined ? 'the default rules' : basename(options.rules),
-    trialsSha256: hash.digest('hex'),
-    latencyBins: bins.value,
-  });
-  if (!report.ok) {
-    reportIssues(report.issues);
-    return EXIT_BAD_INPUT;
-  }
-  reportIssues(report.warnings);
-  const written = await writeFileAtomic(options.out, report.value.html, { force: options.force ?? false });
-  if (!written.ok) {
-    reportIssues(written.issues);
-    return EXIT_BAD_INPUT;
-  }
-  writeOut(`wrote ${options.out} (${report.value.charts.length} charts)`);
-  return EXIT_OK;
-}
+import type { ReportOptions } from './report-run.js';
 
 export function registerReport(program: Command): void {
   program
@@ -86,6 +27,7 @@ Example:
 Exit codes: 0 written; 2 bad input, or the output exists without --force.`,
     )
     .action(async (options: ReportOptions) => {
+      const { runReport } = await import('./report-run.js');
       process.exitCode = await runReport(options);
     });
 }

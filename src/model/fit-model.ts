@@ -42,7 +42,7 @@ import type { Trials } from '../formats/trials-csv.js';
 import { multiply } from '../numeric/design-matrix.js';
 import { createRandomSource } from '../random.js';
 import { chiSquareUpperTail, normalQuantile, twoSidedNormalPValue } from '../stats/distributions.js';
-import { predictorLine } from './compile.js';
+import { predictorLine } from './predictor-line.js';
 import { type CollapsedTrials, type GroupedTrials, groupTrials, selectCollapsed } from './collapse.js';
 import { type TermDesign, buildDesign, difficultyCodingOf } from './design.js';
 import { type BinomialFit, type BinomialFitEstimated, type BinomialLikelihood, fitBinomial } from './fit-binomial.js';

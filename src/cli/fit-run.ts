@@ -1,0 +1,315 @@
+/** `lagparity fit`, run: fit the hit-probability model to a trials file and write the model file (options and help: `fit-command.ts`). */
+import { createHash } from 'node:crypto';
+import { basename } from 'node:path';
+import { type Issue, LagparityInputError, type Result, error, ok, show } from '../issues.js';
+import { readGroupedTrialsFile } from '../io/read-trials.js';
+import { writeFileAtomic } from '../io/write-file.js';
+import type { GroupedTrials } from '../model/collapse.js';
+import { type FitFamily, type FitModelOptions, type FitReport, fitModel } from '../model/fit-model.js';
+import { LINK_NAMES, type LinkName } from '../model/links.js';
+import { type TermName, parseTermList } from '../model/terms.js';
+import { compactTable } from './table.js';
+import { EXIT_BAD_INPUT, EXIT_OK, fixed, reportIssues, writeOut } from './output.js';
+
+export const FIT_RESULT_FORMAT = 'lagparity/fit-result@1';
+
+export interface FitOptions {
+  out?: string;
+  link: string;
+  terms?: string;
+  cluster?: string;
+  folds: string;
+  seed: string;
+  compare?: string;
+  family: string;
+  reference?: string;
+  json?: boolean;
+  force?: boolean;
+  lrTests: string;
+  baseline: boolean;
+}
+
+/** One candidate of `--compare`: `MODEL[:TERMS]`, MODEL a link name or `least_squares`. */
+export interface Candidate {
+  readonly spec: string;
+  readonly family: FitFamily;
+  readonly link: LinkName;
+  readonly terms: readonly TermName[] | undefined;
+}
+
+/** Parse `--compare`: candidates separated by `;`, each `MODEL[:TERMS]`. */
+export function parseCompare(text: string): { candidates: Candidate[]; issues: Issue[] } {
+  const candidates: Candidate[] = [];
+  const issues: Issue[] = [];
+  for (const raw of text.split(';')) {
+    const spec = raw.trim();
+    if (spec === '') continue;
+    const colon = spec.indexOf(':');
+    const model = (colon < 0 ? spec : spec.slice(0, colon)).trim();
+    const termText = colon < 0 ? undefined : spec.slice(colon + 1);
+    const family: FitFamily = model === 'least_squares' ? 'least_squares' : 'binomial';
+    if (model !== 'least_squares' && !(LINK_NAMES as readonly string[]).includes(model)) {
+      issues.push(error('invalid_option', '--compare', `\`--compare\` requires each candidate to start with ${[...LINK_NAMES, 'least_squares'].join(', ')}, got ${show(model)} in ${show(spec)}`));
+      continue;
+    }
+    let terms: TermName[] | undefined;
+    if (termText !== undefined) {
+      const parsed = parseTermList(termText, '--compare');
+      if (!parsed.ok) {
+        issues.push(...parsed.issues);
+        continue;
+      }
+      terms = parsed.value;
+    }
+    candidates.push({ spec, family, link: family === 'binomial' ? (model as LinkName) : 'logit', terms });
+  }
+  if (candidates.length === 0 && issues.length === 0) {
+    issues.push(error('invalid_option', '--compare', '`--compare` requires at least one candidate, got none'));
+  }
+  return { candidates, issues };
+}
+
+/** A progress line on stderr, only on a terminal and only once a run has taken more than a second. */
+/** The progress line on stderr; `stage` is called only when the line is shown (formatting a count loads locale data, about 20 ms). */
+function progressLine(): { update: (stage: () => string) => void; done: () => void } {
+  const started = performance.now();
+  const tty = Boolean(process.stderr.isTTY);
+  let shown = false;
+  return {
+    update(stage) {
+      if (!tty) return;
+      const elapsed = (performance.now() - started) / 1000;
+      if (elapsed < 1) return;
+      shown = true;
+      process.stderr.write(`\r\u001b[2Klagparity fit: ${stage()} (${elapsed.toFixed(1)} s)`);
+    },
+    done() {
+      if (shown) process.stderr.write('\r\u001b[2K');
+    },
+  };
+}
+
+function integerOption(name: string, text: string, minimum: number, issues: Issue[]): number {
+  const value = Number(text);
+  if (!Number.isSafeInteger(value) || value < minimum) {
+    issues.push(error('invalid_option', name, `\`${name}\` requires a whole number >= ${minimum}, got ${show(text)}`));
+  }
+  return value;
+}
+
+function pValue(value: number): string {
+  if (value < 1e-16) return '<1e-16';
+  if (value < 0.001) return value.toExponential(1);
+  return value.toFixed(3);
+}
+
+function number(value: number | null, digits = 4): string {
+  if (value === null) return '-';
+  const magnitude = Math.abs(value);
+  if (magnitude !== 0 && (magnitude < 1e-3 || magnitude >= 1e6)) return value.toExponential(digits - 1);
+  if (magnitude >= 1000) return fixed(value, 1);
+  return String(Number(value.toPrecision(digits)));
+}
+
+/** The report as tables for people. */
+export function renderFit(report: FitReport): string {
+  const data = report.data;
+  const model = report.family === 'binomial' ? `binomial ${report.link ?? ''}, ${report.likelihood ?? ''} likelihood` : 'least squares on accuracy';
+  const lines = [
+    `${data.file}: ${data.rows} rows (${data.shape.replace('_', ' ')}, ${data.attempts} attempts${data.players === null ? '' : `, ${data.players} player${data.players === 1 ? '' : 's'}`}; ${data.fitted_rows} after collapsing); ${model}: ${report.status}` +
+      (report.statistics === null ? '' : ` (${report.statistics.iterations} iterations)`),
+  ];
+  if (report.coefficients.length === 0) return lines.join('\n');
+  const robust = report.coefficients.some((row) => row.robust !== null);
+  const table = compactTable(
+    ['term', 'estimate', 'SE', 'z', 'p', '95% interval', ...(robust ? ['robust SE', 'robust 95% interval'] : [])],
+    ['left', 'right', 'right', 'right', 'right', 'right', 'right', 'right'],
+  );
+  for (const row of report.coefficients) {
+    table.push([
+      row.name,
+      number(row.estimate),
+      number(row.std_error),
+      fixed(row.z, 2),
+      pValue(row.p_value),
+      `${number(row.ci_lower)} .. ${number(row.ci_upper)}`,
+      ...(row.robust === null ? (robust ? ['-', '-'] : []) : [number(row.robust.std_error), `${number(row.robust.ci_lower)} .. ${number(row.robust.ci_upper)}`]),
+    ]);
+  }
+  lines.push(table.toString());
+  if (robust) lines.push(`robust: CR1 by player (${report.cluster.clusters ?? 0} clusters); the model file keeps the robust covariance`);
+  const stats = report.statistics;
+  if (stats !== null && report.family === 'binomial') {
+    lines.push(
+      `deviance ${fixed(stats.deviance, 2)} on ${stats.df_residual} df (null ${fixed(stats.null_deviance, 2)} on ${stats.df_null ?? '-'} df); log-likelihood ${fixed(stats.log_likelihood, 2)}; AIC ${fixed(stats.aic, 2)}; BIC ${fixed(stats.bic, 2)}`,
+      `McFadden R² ${fixed(stats.mcfadden_r2, 4)}; Tjur R² ${fixed(stats.tjur_r2, 4)}; Brier ${fixed(stats.brier, 4)}`,
+    );
+  } else if (stats !== null) {
+    lines.push(`R² ${fixed(stats.r_squared, 4)}; residual SD ${fixed(stats.residual_sd, 4)} on ${stats.df_residual} df; Brier ${fixed(stats.brier, 4)}`);
+  }
+  if (report.likelihood_ratio_tests.length > 0) {
+    lines.push(
+      `likelihood-ratio tests: ${report.likelihood_ratio_tests
+        .map((test) => (test.status === 'tested' ? `${test.factor} chi² ${fixed(test.statistic, 2)} on ${test.df} df, p ${pValue(test.p_value)}` : `${test.factor} not tested (${test.reason})`))
+        .join('; ')}`,
+    );
+  }
+  const cv = report.cross_validation;
+  if (cv !== null) {
+    lines.push(`cross-validation (${cv.folds} folds by ${cv.held_out === 'players' ? 'player' : 'row'}, seed ${cv.seed}): log loss ${fixed(cv.log_loss, 4)}, Brier ${fixed(cv.brier, 4)}, calibration error ${fixed(cv.calibration_error, 4)}`);
+  }
+  if (report.calibration.length > 0) {
+    const bins = report.calibration.filter((bin) => bin.attempts > 0);
+    lines.push(`calibration (predicted -> observed): ${bins.map((bin) => `${fixed(bin.mean_predicted, 2)}->${fixed(bin.observed, 2)}`).join(' ')}`);
+  }
+  if (report.baseline !== null && report.family === 'binomial') lines.push(`baseline least squares on accuracy: R² ${fixed(report.baseline.r_squared, 4)}`);
+  if (report.scale_effect !== null) {
+    lines.push(
+      report.scale_effect.increasing
+        ? `scale effect: increasing over the training range (smallest slope ${number(report.scale_effect.smallest_slope)} at ${report.scale_effect.at_latency_ms ?? '-'} ms)`
+        : 'scale effect: NOT increasing over the training range; this model cannot be used for compensation',
+    );
+  }
+  return lines.join('\n');
+}
+
+interface Ranked {
+  readonly spec: string;
+  readonly status: string;
+  readonly log_loss: number | null;
+  readonly brier: number | null;
+  readonly calibration_error: number | null;
+  readonly aic: number | null;
+}
+
+function renderComparison(ranked: readonly Ranked[]): string {
+  const table = compactTable(['rank', 'candidate', 'status', 'held-out log loss', 'Brier', 'calibration error', 'AIC'], ['right', 'left', 'left', 'right', 'right', 'right', 'right']);
+  ranked.forEach((entry, index) => {
+    table.push([String(index + 1), entry.spec, entry.status, fixed(entry.log_loss, 4), fixed(entry.brier, 4), fixed(entry.calibration_error, 4), fixed(entry.aic, 1)]);
+  });
+  return `comparison, best held-out log loss first:\n${table.toString()}`;
+}
+
+/** Read the trials file straight into groups for fitting, hashing its bytes in the same pass. */
+async function readGrouped(path: string, progress: ReturnType<typeof progressLine>): Promise<Result<{ grouped: GroupedTrials; sha256: string }>> {
+  const hash = createHash('sha256');
+  const read = await readGroupedTrialsFile(path, {
+    onProgress: (rows) => progress.update(() => `read ${rows.toLocaleString('en-GB')} rows`),
+    onChunk: (bytes) => hash.update(bytes),
+  });
+  if (!read.ok) return read;
+  return ok({ grouped: read.value, sha256: hash.digest('hex') }, read.warnings);
+}
+
+export async function runFit(path: string, options: FitOptions): Promise<number> {
+  const issues: Issue[] = [];
+  if (!(LINK_NAMES as readonly string[]).includes(options.link)) {
+    issues.push(error('invalid_option', '--link', `\`--link\` requires one of ${LINK_NAMES.join(', ')}, got ${show(options.link)}`));
+  }
+  if (options.family !== 'binomial' && options.family !== 'least_squares') {
+    issues.push(error('invalid_option', '--family', `\`--family\` requires binomial or least_squares, got ${show(options.family)}`));
+  }
+  if (options.cluster !== undefined && options.cluster !== 'player' && options.cluster !== 'none') {
+    issues.push(error('invalid_option', '--cluster', `\`--cluster\` requires player or none, got ${show(options.cluster)}`));
+  }
+  const folds = integerOption('--folds', options.folds, 0, issues);
+  if (options.lrTests !== 'all' && options.lrTests !== 'none') {
+    issues.push(error('invalid_option', '--lr-tests', `\`--lr-tests\` requires all or none, got ${show(options.lrTests)}`));
+  }
+  const seed = integerOption('--seed', options.seed, 0, issues);
+  let terms: TermName[] | undefined;
+  if (options.terms !== undefined) {
+    const parsed = parseTermList(options.terms);
+    if (parsed.ok) terms = parsed.value;
+    else issues.push(...parsed.issues);
+  }
+  const compare = options.compare === undefined ? null : parseCompare(options.compare);
+  if (compare !== null) issues.push(...compare.issues);
+  if (options.out !== undefined && options.family === 'least_squares') {
+    issues.push(error('invalid_option', '--out', '`--out` requires `--family binomial` (a model file holds a binomial model), got least_squares'));
+  }
+  if (issues.length > 0) {
+    reportIssues(issues);
+    return EXIT_BAD_INPUT;
+  }
+
+  const progress = progressLine();
+  const read = await readGrouped(path, progress);
+  if (!read.ok) {
+    progress.done();
+    reportIssues(read.issues);
+    return EXIT_BAD_INPUT;
+  }
+  const { grouped, sha256 } = read.value;
+  const common: FitModelOptions = {
+    link: options.link as LinkName,
+    family: options.family as FitFamily,
+    ...(terms === undefined ? {} : { terms }),
+    ...(options.cluster === undefined ? {} : { cluster: options.cluster as 'player' | 'none' }),
+    ...(options.reference === undefined ? {} : { reference: options.reference }),
+    folds,
+    seed,
+    baseline: options.baseline,
+  };
+  let report: FitReport;
+  const ranked: Ranked[] = [];
+  try {
+    report = fitModel(grouped, { ...common, likelihoodRatioTests: options.lrTests === 'all', onProgress: (stage) => progress.update(() => stage) });
+    for (const candidate of compare?.candidates ?? []) {
+      const fitted = fitModel(grouped, {
+        ...common,
+        family: candidate.family,
+        link: candidate.link,
+        ...(candidate.terms === undefined ? {} : { terms: candidate.terms }),
+        likelihoodRatioTests: false,
+        folds: folds >= 2 ? folds : 5,
+        onProgress: (stage) => progress.update(() => `${candidate.spec}: ${stage}`),
+      });
+      ranked.push({
+        spec: candidate.spec,
+        status: fitted.status,
+        log_loss: fitted.cross_validation?.log_loss ?? null,
+        brier: fitted.cross_validation?.brier ?? null,
+        calibration_error: fitted.cross_validation?.calibration_error ?? null,
+        aic: fitted.statistics?.aic ?? null,
+      });
+    }
+  } catch (cause) {
+    progress.done();
+    if (cause instanceof LagparityInputError) {
+      reportIssues(cause.issues.map((issue) => ({ ...issue, location: issue.location.startsWith(grouped.file) ? issue.location : `--${issue.location}` })));
+      return EXIT_BAD_INPUT;
+    }
+    throw cause;
+  }
+  progress.done();
+  ranked.sort((a, b) => (a.log_loss ?? Infinity) - (b.log_loss ?? Infinity));
+  reportIssues([...read.warnings, ...report.warnings]);
+
+  const estimated = report.coefficients.length > 0;
+  let written: string | null = null;
+  let exit = estimated && (report.status === 'converged' || report.status === 'fitted') ? EXIT_OK : EXIT_BAD_INPUT;
+  if (options.out !== undefined && exit === EXIT_OK) {
+    // Loaded only here: the model file is checked against its zod schema, which a fit without --out does not need.
+    const { toModelFile } = await import('../model/to-model-file.js');
+    const model = toModelFile(report, { file: basename(path), rows: grouped.groups.sourceRows, sha256, created_by: 'lagparity fit 0.1.0' });
+    if (!model.ok) {
+      reportIssues(model.issues);
+      exit = EXIT_BAD_INPUT;
+    } else {
+      const result = await writeFileAtomic(options.out, `${JSON.stringify(model.value, null, 2)}\n`, { force: options.force ?? false });
+      if (!result.ok) {
+        reportIssues(result.issues);
+        exit = EXIT_BAD_INPUT;
+      } else written = options.out;
+    }
+  } else if (options.out !== undefined) {
+    reportIssues([error('not_written', options.out, `writing a model requires a converged fit, got status ${report.status}; nothing was written`)]);
+  }
+  if (options.json) {
+    writeOut(JSON.stringify({ format: FIT_RESULT_FORMAT, report, comparison: compare === null ? null : ranked, written, provenance: { file: basename(path), rows: grouped.groups.sourceRows, sha256 } }, null, 2));
+  } else {
+    writeOut(renderFit(report) + (compare === null ? '' : `\n\n${renderComparison(ranked)}`) + (written === null ? '' : `\n\nwrote ${written}`));
+  }
+  return exit;
+}
