@@ -280,6 +280,8 @@ export class TrialsBuilder implements PlainLineReader {
   private readonly difficulty: NameCodes;
   private readonly player: NameCodes;
   private fieldCount = 0;
+  /** Latency, scale, successes, attempts and weight of the row being pushed (see {@link pushRow}). */
+  private readonly rowValues = new Float64Array(5);
   // Field index of each column (-1: absent), read once from the header.
   private latencyAt = -1;
   private scaleAt = -1;
@@ -461,20 +463,36 @@ export class TrialsBuilder implements PlainLineReader {
       this.failure = error('empty_field', this.where(line, 'player'), '`player` requires a player id, got an empty field');
       return false;
     }
-    this.pushRow(latency, scale, successes, attempts, weight);
+    this.setRow(latency, scale, successes, attempts, weight);
+    this.pushRow();
     return true;
   }
 
-  /** A good row's numbers into the columns (its names are pushed already), then the count, progress and a full batch to the sink. */
-  private pushRow(latency: number, scale: number, successes: number, attempts: number, weight: number): void {
-    this.latency.push(latency);
-    this.scale.push(scale);
-    this.successes.push(successes);
-    this.attempts.push(attempts);
-    if (this.weightAt >= 0) this.weight.push(weight);
+  /**
+   * A good row's numbers into the columns (its names are pushed already), then the count, progress and a full batch to the sink.
+   * The numbers come through {@link rowValues}: doubles passed as arguments to a call that is not inlined are boxed, one
+   * allocation each per row.
+   */
+  private pushRow(): void {
+    const values = this.rowValues;
+    this.latency.push(values[0] as number);
+    this.scale.push(values[1] as number);
+    this.successes.push(values[2] as number);
+    this.attempts.push(values[3] as number);
+    if (this.weightAt >= 0) this.weight.push(values[4] as number);
     this.rows += 1;
     if (this.onProgress !== undefined && this.rows % 1_000_000 === 0) this.onProgress(this.rows);
     if (this.sink !== null && this.latency.length === this.capacity) this.flush();
+  }
+
+  /** The numbers {@link pushRow} takes (the full-rules path; {@link readPlainLine} stores them itself). */
+  private setRow(latency: number, scale: number, successes: number, attempts: number, weight: number): void {
+    const values = this.rowValues;
+    values[0] = latency;
+    values[1] = scale;
+    values[2] = successes;
+    values[3] = attempts;
+    values[4] = weight;
   }
 
   /** Hand the rows held to the sink and start the next batch. */
@@ -577,7 +595,14 @@ export class TrialsBuilder implements PlainLineReader {
     } else if (!Number.isInteger(attempts) || attempts < 1 || !Number.isInteger(successes) || successes < 0 || successes > attempts) return -1;
     this.difficulty.pushCode(difficulty);
     if (this.playerAt >= 0) this.player.pushCode(player);
-    this.pushRow(latency, scale, successes, attempts, weight);
+    // Stored here, not passed: a call that is not inlined would box each double.
+    const values = this.rowValues;
+    values[0] = latency;
+    values[1] = scale;
+    values[2] = successes;
+    values[3] = attempts;
+    values[4] = weight;
+    this.pushRow();
     return i;
   }
   /** The failure with the number of rows read before it, or no rows, or null. */
