@@ -485,7 +485,7 @@ export class TrialsBuilder implements PlainLineReader {
     if (this.sink !== null && this.latency.length === this.capacity) this.flush();
   }
 
-  /** The numbers {@link pushRow} takes (the full-rules path; {@link readPlainLine} stores them itself). */
+  /** The numbers {@link pushRow} takes (small enough to be inlined where it is called, so nothing is boxed). */
   private setRow(latency: number, scale: number, successes: number, attempts: number, weight: number): void {
     const values = this.rowValues;
     values[0] = latency;
@@ -595,13 +595,7 @@ export class TrialsBuilder implements PlainLineReader {
     } else if (!Number.isInteger(attempts) || attempts < 1 || !Number.isInteger(successes) || successes < 0 || successes > attempts) return -1;
     this.difficulty.pushCode(difficulty);
     if (this.playerAt >= 0) this.player.pushCode(player);
-    // Stored here, not passed: a call that is not inlined would box each double.
-    const values = this.rowValues;
-    values[0] = latency;
-    values[1] = scale;
-    values[2] = successes;
-    values[3] = attempts;
-    values[4] = weight;
+    this.setRow(latency, scale, successes, attempts, weight);
     this.pushRow();
     return i;
   }
