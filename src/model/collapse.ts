@@ -103,8 +103,11 @@ export interface RowColumns {
  * whose stored hash equals its own, and a new point appends its key to
  * `records`; then pass 2 checks every row's key against its group's exactly
  * and adds its counts there (one record per group holds the key and the
- * counts side by side, so a row touches one record). The rare row whose hash
- * collided with another point's is grouped by its exact key in a map instead.
+ * counts side by side, so a row touches one record). The table holds the
+ * first point of each hash; the rare row whose hash collided with another
+ * point's follows that point's chain of same-hash points (a map from a group
+ * to the next) and is compared exactly there, or starts a new point at the
+ * chain's end.
  * Within a pass the rows' table and record loads are independent, which the
  * processor overlaps.
  *
@@ -126,7 +129,10 @@ export class GroupAccumulator {
   private table: Int32Array<ArrayBufferLike> = new Int32Array(2 << 12);
   private records: Float64Array;
   private groupOf = new Int32Array(0);
-  private collided: Map<string, number> | null = null;
+  /** Group -> the next group whose key has the same 32-bit hash (see the class note). */
+  private sameHash: Map<number, number> | null = null;
+  /** Row `i`'s key, gathered for comparing it along a chain. */
+  private readonly rowKey = new Float64Array(7);
   groups = 0;
   sourceRows = 0;
 
@@ -262,7 +268,7 @@ export class GroupAccumulator {
         (weights !== null && records[base + weightAt] !== weights[i]) ||
         (players !== null && records[base + playerAt] !== players[i])
       ) {
-        base = this.collidedGroup(columns, i) * stride;
+        base = this.collidedGroup(columns, i, groupOf[i] as number) * stride;
       }
       const target = this.records;
       target[base + 3] = (target[base + 3] as number) + (successes[i] as number);
@@ -270,16 +276,31 @@ export class GroupAccumulator {
     }
   }
 
-  /** The group of row `i` whose hash matched another point's: by its exact key, in a map. */
-  private collidedGroup(columns: RowColumns, i: number): number {
-    this.collided ??= new Map();
-    const key = `${columns.latency[i]} ${columns.scale[i]} ${columns.difficulty[i]} ${this.hasWeight ? (columns.weight?.[i] ?? 1) : 1} ${this.hasPlayer ? (columns.player?.[i] ?? 0) : 0}`;
-    let group = this.collided.get(key);
-    if (group === undefined) {
-      group = this.append(columns, i);
-      this.collided.set(key, group);
+  /**
+   * The group of row `i`, whose hash matched that of `first` but not its key:
+   * the point with its key along `first`'s chain of same-hash points, or a
+   * new point at the chain's end.
+   */
+  private collidedGroup(columns: RowColumns, i: number, first: number): number {
+    const chains = (this.sameHash ??= new Map());
+    const key = this.rowKey;
+    key[0] = columns.latency[i] as number;
+    key[1] = columns.scale[i] as number;
+    key[2] = columns.difficulty[i] as number;
+    key[this.weightAt] = this.hasWeight ? (columns.weight?.[i] ?? 1) : 1;
+    key[this.playerAt] = this.hasPlayer ? (columns.player?.[i] ?? 0) : 0;
+    const keyOffsets = this.hasWeight || this.hasPlayer ? [0, 1, 2, ...(this.hasWeight ? [this.weightAt] : []), ...(this.hasPlayer ? [this.playerAt] : [])] : [0, 1, 2];
+    for (let group = first; ; ) {
+      const next = chains.get(group);
+      if (next === undefined) {
+        const created = this.append(columns, i);
+        chains.set(group, created);
+        return created;
+      }
+      const base = next * this.stride;
+      if (keyOffsets.every((offset) => this.records[base + offset] === key[offset])) return next;
+      group = next;
     }
-    return group;
   }
 
   /**
