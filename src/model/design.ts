@@ -17,6 +17,9 @@ export function difficultyCodingOf(trials: Trials | GroupedTrials, reference?: s
   return { kind: 'levels', levels, reference: reference ?? (levels[0] as string) };
 }
 
+/** Distinct scales whose model terms {@link buildDesign} keeps while it fills the scale column. */
+const KEPT_SCALES = 8;
+
 /** A design matrix with the term structure that produced it. */
 export interface TermDesign {
   readonly matrix: DesignMatrix;
@@ -41,16 +44,24 @@ export function buildDesign(
   const n = data.rows;
   const values = new Float64Array(n * columns.length);
   const scaleTerm = new Float64Array(n);
-  // Scales repeat (a few settings), so the last one's term is reused rather than recomputed.
-  let lastScale = 0;
-  let lastTerm = 0;
+  // Scales repeat (a few settings, in any order), so the terms of the first few distinct ones
+  // are kept and found by comparison rather than recomputed (a logarithm per row).
+  const keptScales: number[] = [];
+  const keptTerms: number[] = [];
   for (let i = 0; i < n; i += 1) {
     const scale = data.scale[i] as number;
-    if (i === 0 || scale !== lastScale) {
-      lastScale = scale;
-      lastTerm = scaleTermValue(form, scale);
+    let k = 0;
+    while (k < keptScales.length && keptScales[k] !== scale) k += 1;
+    if (k < keptScales.length) {
+      scaleTerm[i] = keptTerms[k] as number;
+      continue;
     }
-    scaleTerm[i] = lastTerm;
+    const term = scaleTermValue(form, scale);
+    if (keptScales.length < KEPT_SCALES) {
+      keptScales.push(scale);
+      keptTerms.push(term);
+    }
+    scaleTerm[i] = term;
   }
   const { latency, difficulty } = data;
   columns.forEach((column, j) => {
