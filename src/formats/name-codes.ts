@@ -44,23 +44,6 @@ export class NameCodes {
   private readonly directCodes: number[] = [];
   /** The code {@link matchAt} found. */
   matched = -1;
-  private codes: Int32Array;
-  length = 0;
-
-  constructor(capacity: number) {
-    this.codes = new Int32Array(Math.max(16, capacity));
-  }
-
-  /** Append a code to the column. */
-  pushCode(code: number): void {
-    if (this.length === this.codes.length) {
-      const next = new Int32Array(this.codes.length * 2);
-      next.set(this.codes);
-      this.codes = next;
-    }
-    this.codes[this.length] = code;
-    this.length += 1;
-  }
 
   private matches(code: number, bytes: Uint8Array, start: number, end: number): boolean {
     const name = this.known[code];
@@ -150,16 +133,10 @@ export class NameCodes {
     this.table[slot] = code + 1;
   }
 
-  /** Push a plain field (no trimming or unescaping needed) by its bytes. */
-  pushBytes(bytes: Uint8Array, start: number, end: number): void {
+  /** The code of a plain field (no trimming or unescaping needed) by its bytes, interned if new. */
+  codeOfPlainBytes(bytes: Uint8Array, start: number, end: number): number {
     const code = this.codeOfBytes(bytes, start, end);
-    if (code >= 0) return this.pushCode(code);
-    this.push(Buffer.from(bytes.buffer, bytes.byteOffset, bytes.byteLength).toString('utf8', start, end));
-  }
-
-  /** Push a name by its text. */
-  push(name: string): void {
-    this.pushCode(this.intern(name));
+    return code >= 0 ? code : this.intern(Buffer.from(bytes.buffer, bytes.byteOffset, bytes.byteLength).toString('utf8', start, end));
   }
 
   /** The code of a name, interned (in order of first appearance) if it is new. */
@@ -174,13 +151,4 @@ export class NameCodes {
     return code;
   }
 
-  /** The code buffer itself (its first `length` entries are the column). */
-  codesView(): Int32Array {
-    return this.codes;
-  }
-
-  finish(): Int32Array {
-    const filled = this.codes.subarray(0, this.length);
-    return this.length * 8 >= this.codes.length * 7 ? filled : filled.slice();
-  }
 }

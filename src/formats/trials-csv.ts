@@ -25,6 +25,7 @@ import { type Issue, type Result, error, fail, ok, show, warning } from '../issu
 import { CARRIAGE_RETURN, type CsvRecord, CsvScanner, LINE_FEED, MAX_CSV_LINE_BYTES, type PlainLineReader } from './csv-scanner.js';
 import { MAX_LATENCY_MS } from './limits.js';
 import { NameCodes } from './name-codes.js';
+import { RowBuffer } from './row-buffer.js';
 
 export const TRIALS_FORMAT = 'lagparity/trials@1';
 
@@ -77,40 +78,6 @@ export function detectDelimiter(headerLine: string): ',' | ';' | '\t' {
 }
 
 const DELIMITER_NAMES = { ',': 'comma', ';': 'semicolon', '\t': 'tab' } as const;
-
-/**
- * A column of doubles grown by doubling; {@link finish} returns a view of the
- * buffer when it is at least 7/8 full (no copy, so a well-sized column is
- * never held twice), else a trimmed copy.
- */
-class FloatColumn {
-  private buffer: Float64Array;
-  length = 0;
-
-  constructor(capacity: number) {
-    this.buffer = new Float64Array(Math.max(16, capacity));
-  }
-
-  push(value: number): void {
-    if (this.length === this.buffer.length) {
-      const next = new Float64Array(this.buffer.length * 2);
-      next.set(this.buffer);
-      this.buffer = next;
-    }
-    this.buffer[this.length] = value;
-    this.length += 1;
-  }
-
-  /** The buffer itself (its first `length` entries are the column). */
-  view(): Float64Array {
-    return this.buffer;
-  }
-
-  finish(): Float64Array {
-    const filled = this.buffer.subarray(0, this.length);
-    return this.length * 8 >= this.buffer.length * 7 ? filled : filled.slice();
-  }
-}
 
 /** Powers of ten that are exact in a double (10^0 .. 10^22). */
 const POWERS_OF_TEN = Float64Array.from({ length: 23 }, (_, k) => 10 ** k);
@@ -271,14 +238,11 @@ export class TrialsBuilder implements PlainLineReader {
   private delimiterByte = 0x2c;
   private columnIndex = new Map<KnownColumn, number>();
   private shape: 'per_attempt' | 'per_round' = 'per_attempt';
-  private readonly latency: FloatColumn;
-  private readonly scale: FloatColumn;
-  private readonly successes: FloatColumn;
-  private readonly attempts: FloatColumn;
-  private weight: FloatColumn;
+  /** The rows held: every row, or with a sink the current batch (see {@link pushRow}). */
+  private buffer: RowBuffer;
   private readonly capacity: number;
-  private readonly difficulty: NameCodes;
-  private readonly player: NameCodes;
+  private readonly difficulty = new NameCodes();
+  private readonly player = new NameCodes();
   private fieldCount = 0;
   /** Latency, scale, successes, attempts and weight of the row being pushed (see {@link pushRow}). */
   private readonly rowValues = new Float64Array(5);
@@ -304,13 +268,7 @@ export class TrialsBuilder implements PlainLineReader {
     this.sinkOptions = sink;
     const size = sink === null ? Math.max(16, Math.min(MAX_TRIAL_ROWS, Math.ceil(capacity))) : sink.batchRows;
     this.capacity = size;
-    this.latency = new FloatColumn(size);
-    this.scale = new FloatColumn(size);
-    this.successes = new FloatColumn(size);
-    this.attempts = new FloatColumn(size);
-    this.weight = new FloatColumn(16);
-    this.difficulty = new NameCodes(size);
-    this.player = new NameCodes(16);
+    this.buffer = new RowBuffer(0, { weight: false, player: false });
   }
 
   private where(line: number, column?: string): string {
@@ -363,7 +321,7 @@ export class TrialsBuilder implements PlainLineReader {
     this.attemptsAt = at('attempts');
     this.weightAt = at('weight');
     this.playerAt = at('player');
-    if (this.weightAt >= 0) this.weight = new FloatColumn(this.capacity);
+    this.buffer = new RowBuffer(this.capacity, { weight: this.weightAt >= 0, player: this.playerAt >= 0 });
     this.sink = this.sinkOptions?.open({ file: this.file, shape: this.shape, weight: this.weightAt >= 0, player: this.playerAt >= 0 }) ?? null;
     if (unknown.length > 0) {
       this.warnings.push(warning('unknown_column', this.where(line), `columns ignored: ${unknown.map((name) => show(name)).join(', ')}`));
@@ -392,16 +350,11 @@ export class TrialsBuilder implements PlainLineReader {
     return false;
   }
 
-  /** Push a name field (difficulty, player) by its bytes, or trimmed text; false when it is empty. */
-  private nameField(record: CsvRecord, index: number, codes: NameCodes): boolean {
-    if (plainField(record, index)) {
-      codes.pushBytes(record.bytes, record.starts[index] as number, record.ends[index] as number);
-      return true;
-    }
+  /** The code of a name field (difficulty, player), by its bytes or its trimmed text (interned if new); -1 when it is empty. */
+  private nameField(record: CsvRecord, index: number, names: NameCodes): number {
+    if (plainField(record, index)) return names.codeOfPlainBytes(record.bytes, record.starts[index] as number, record.ends[index] as number);
     const text = record.text(index).trim();
-    if (text === '') return false;
-    codes.push(text);
-    return true;
+    return text === '' ? -1 : names.intern(text);
   }
 
   /** Add one record; returns false (with `failure` set) at the first bad row. */
@@ -420,19 +373,15 @@ export class TrialsBuilder implements PlainLineReader {
     const scale = this.numberField(record, this.scaleAt, 'scale', line);
     if (scale === undefined) return false;
     if (scale <= 0) return this.reject(line, 'scale', 'out_of_range', 'a scale above 0', scale);
-    // The difficulty is pushed now and taken back if a later field of the row is bad.
-    if (!this.nameField(record, this.difficultyAt, this.difficulty)) {
+    const difficulty = this.nameField(record, this.difficultyAt, this.difficulty);
+    if (difficulty < 0) {
       this.failure = error('empty_field', this.where(line, 'difficulty'), '`difficulty` requires a number or a level name, got an empty field');
       return false;
     }
-    if (!this.rest(record, line, latency, scale)) {
-      this.difficulty.length = this.latency.length;
-      return false;
-    }
-    return true;
+    return this.rest(record, line, latency, scale, difficulty);
   }
 
-  private rest(record: CsvRecord, line: number, latency: number, scale: number): boolean {
+  private rest(record: CsvRecord, line: number, latency: number, scale: number, difficulty: number): boolean {
     let successes: number;
     let attempts: number;
     if (this.shape === 'per_attempt') {
@@ -459,30 +408,39 @@ export class TrialsBuilder implements PlainLineReader {
       if (value < 0) return this.reject(line, 'weight', 'out_of_range', 'a weight >= 0', value);
       weight = value;
     }
-    if (this.playerAt >= 0 && !this.nameField(record, this.playerAt, this.player)) {
+    const player = this.playerAt >= 0 ? this.nameField(record, this.playerAt, this.player) : 0;
+    if (player < 0) {
       this.failure = error('empty_field', this.where(line, 'player'), '`player` requires a player id, got an empty field');
       return false;
     }
     this.setRow(latency, scale, successes, attempts, weight);
-    this.pushRow();
+    this.pushRow(difficulty, player);
     return true;
   }
 
   /**
-   * A good row's numbers into the columns (its names are pushed already), then the count, progress and a full batch to the sink.
-   * The numbers come through {@link rowValues}: doubles passed as arguments to a call that is not inlined are boxed, one
-   * allocation each per row.
+   * A good row into the columns: its numbers (from {@link rowValues}: doubles passed as arguments to a call that is
+   * not inlined are boxed, one allocation each per row) and name codes; then the count and progress. Full columns
+   * first go to the sink (a full batch) or grow.
    */
-  private pushRow(): void {
+  private pushRow(difficulty: number, player: number): void {
+    const buffer = this.buffer;
+    if (buffer.length === buffer.capacity) {
+      if (this.sink !== null) this.flush();
+      else buffer.grow();
+    }
+    const k = buffer.length;
     const values = this.rowValues;
-    this.latency.push(values[0] as number);
-    this.scale.push(values[1] as number);
-    this.successes.push(values[2] as number);
-    this.attempts.push(values[3] as number);
-    if (this.weightAt >= 0) this.weight.push(values[4] as number);
+    buffer.latency[k] = values[0] as number;
+    buffer.scale[k] = values[1] as number;
+    buffer.successes[k] = values[2] as number;
+    buffer.attempts[k] = values[3] as number;
+    if (this.weightAt >= 0) buffer.weight[k] = values[4] as number;
+    buffer.difficulty[k] = difficulty;
+    if (this.playerAt >= 0) buffer.player[k] = player;
+    buffer.length = k + 1;
     this.rows += 1;
     if (this.onProgress !== undefined && this.rows % 1_000_000 === 0) this.onProgress(this.rows);
-    if (this.sink !== null && this.latency.length === this.capacity) this.flush();
   }
 
   /** The numbers {@link pushRow} takes (small enough to be inlined where it is called, so nothing is boxed). */
@@ -497,27 +455,22 @@ export class TrialsBuilder implements PlainLineReader {
 
   /** Hand the rows held to the sink and start the next batch. */
   private flush(): void {
-    const count = this.latency.length;
+    const buffer = this.buffer;
+    const count = buffer.length;
     if (this.sink === null || count === 0) return;
     this.sink.addRows(
       {
-        latency: this.latency.view(),
-        scale: this.scale.view(),
-        difficulty: this.difficulty.codesView(),
-        weight: this.weightAt >= 0 ? this.weight.view() : null,
-        player: this.playerAt >= 0 ? this.player.codesView() : null,
-        successes: this.successes.view(),
-        attempts: this.attempts.view(),
+        latency: buffer.latency,
+        scale: buffer.scale,
+        difficulty: buffer.difficulty,
+        weight: this.weightAt >= 0 ? buffer.weight : null,
+        player: this.playerAt >= 0 ? buffer.player : null,
+        successes: buffer.successes,
+        attempts: buffer.attempts,
       },
       count,
     );
-    this.latency.length = 0;
-    this.scale.length = 0;
-    this.successes.length = 0;
-    this.attempts.length = 0;
-    this.weight.length = 0;
-    this.difficulty.length = 0;
-    this.player.length = 0;
+    buffer.length = 0;
   }
 
   /**
@@ -593,10 +546,8 @@ export class TrialsBuilder implements PlainLineReader {
     if (this.shape === 'per_attempt') {
       if (successes !== 0 && successes !== 1) return -1;
     } else if (!Number.isInteger(attempts) || attempts < 1 || !Number.isInteger(successes) || successes < 0 || successes > attempts) return -1;
-    this.difficulty.pushCode(difficulty);
-    if (this.playerAt >= 0) this.player.pushCode(player);
     this.setRow(latency, scale, successes, attempts, weight);
-    this.pushRow();
+    this.pushRow(difficulty, player);
     return i;
   }
   /** The failure with the number of rows read before it, or no rows, or null. */
@@ -631,7 +582,8 @@ export class TrialsBuilder implements PlainLineReader {
     const issue = this.finalIssue();
     if (issue !== null) return fail([issue]);
     const levels = this.difficulty.names;
-    const codes = this.difficulty.finish();
+    const columns = this.buffer.finish();
+    const codes = columns.difficulty;
     const numericLevels = levels.map(parseDecimal);
     let difficulty: DifficultyColumn;
     if (numericLevels.every((value) => value !== undefined)) {
@@ -646,13 +598,13 @@ export class TrialsBuilder implements PlainLineReader {
         file: this.file,
         shape: this.shape,
         rows: this.rows,
-        latency: this.latency.finish(),
-        scale: this.scale.finish(),
+        latency: columns.latency,
+        scale: columns.scale,
         difficulty,
-        successes: this.successes.finish(),
-        attempts: this.attempts.finish(),
-        weight: this.columnIndex.has('weight') ? this.weight.finish() : null,
-        player: this.columnIndex.has('player') ? { ids: [...this.player.names], codes: this.player.finish() } : null,
+        successes: columns.successes,
+        attempts: columns.attempts,
+        weight: columns.weight,
+        player: columns.player === null ? null : { ids: [...this.player.names], codes: columns.player },
       },
       this.warnings,
     );
