@@ -157,7 +157,7 @@ export class CsvScanner {
       const limit = recordStart + MAX_CSV_LINE_BYTES;
       // One field per turn.
       for (;;) {
-        if (bytes[i] === QUOTE && i < length) {
+        if (i < length && bytes[i] === QUOTE) {
           i += 1;
           const start = i;
           let quoting = 1;

@@ -94,6 +94,8 @@ export class NameCodes {
    * the field that scanning to the next delimiter would give.
    */
   matchAt(bytes: Uint8Array, start: number, length: number, delimiter: number): number {
+    // Every read stays inside `bytes`: one past the end would send the optimised code back to the interpreter.
+    if (start >= length) return -1;
     const direct = this.direct;
     const first = bytes[start];
     for (let k = 0; k < direct.length; k += 1) {

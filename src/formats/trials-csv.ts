@@ -105,6 +105,8 @@ const scanned = new Float64Array(1);
  * fast path).
  */
 function scanDecimal(bytes: Uint8Array, start: number, end: number): number {
+  // Every read stays before `end` (one past the end of `bytes` would deoptimise the caller).
+  if (start >= end) return -1;
   let k = start;
   let negative = false;
   const first = bytes[k];
