@@ -158,6 +158,8 @@ export interface TrialsLayout {
   readonly shape: Trials['shape'];
   readonly weight: boolean;
   readonly player: boolean;
+  /** Rows the reader expects (its capacity hint, e.g. from the file size; not a limit). */
+  readonly expectedRows: number;
 }
 
 /** A batch of rows handed to a sink: the first `count` entries of each column; valid only during the call. */
@@ -243,6 +245,8 @@ export class TrialsBuilder implements PlainLineReader {
   /** The rows held: every row, or with a sink the current batch (see {@link pushRow}). */
   private buffer: RowBuffer;
   private readonly capacity: number;
+  /** The capacity hint given, passed on to a sink. */
+  private readonly expectedRows: number;
   private readonly difficulty = new NameCodes();
   private readonly player = new NameCodes();
   private fieldCount = 0;
@@ -270,6 +274,7 @@ export class TrialsBuilder implements PlainLineReader {
     this.sinkOptions = sink;
     const size = sink === null ? Math.max(16, Math.min(MAX_TRIAL_ROWS, Math.ceil(capacity))) : sink.batchRows;
     this.capacity = size;
+    this.expectedRows = capacity;
     this.buffer = new RowBuffer(0, { weight: false, player: false });
   }
 
@@ -324,7 +329,8 @@ export class TrialsBuilder implements PlainLineReader {
     this.weightAt = at('weight');
     this.playerAt = at('player');
     this.buffer = new RowBuffer(this.capacity, { weight: this.weightAt >= 0, player: this.playerAt >= 0 });
-    this.sink = this.sinkOptions?.open({ file: this.file, shape: this.shape, weight: this.weightAt >= 0, player: this.playerAt >= 0 }) ?? null;
+    this.sink =
+      this.sinkOptions?.open({ file: this.file, shape: this.shape, weight: this.weightAt >= 0, player: this.playerAt >= 0, expectedRows: this.expectedRows }) ?? null;
     if (unknown.length > 0) {
       this.warnings.push(warning('unknown_column', this.where(line), `columns ignored: ${unknown.map((name) => show(name)).join(', ')}`));
     }

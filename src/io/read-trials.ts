@@ -61,7 +61,7 @@ export async function readGroupedTrialsFile(path: string, options: ReadTrialsOpt
   const sink: TrialSinkOptions = {
     batchRows: COLLAPSE_BATCH_ROWS,
     open: (layout) => {
-      accumulator = new GroupAccumulator({ weight: layout.weight, player: layout.player, merge: layout.shape === 'per_attempt' });
+      accumulator = new GroupAccumulator({ weight: layout.weight, player: layout.player, merge: layout.shape === 'per_attempt', expectedRows: layout.expectedRows });
       return accumulator;
     },
   };
