@@ -86,7 +86,6 @@ const MINUS = 0x2d;
 const PLUS = 0x2b;
 const DOT = 0x2e;
 const DIGIT_0 = 0x30;
-const DIGIT_9 = 0x39;
 
 /**
  * The value of the last successful {@link scanDecimal}, in a typed array: a
@@ -114,18 +113,26 @@ function scanDecimal(bytes: Uint8Array, start: number, end: number): number {
     negative = true;
     k += 1;
   } else if (first === PLUS) k += 1;
+  // The whole digits, then (after one dot) the fraction digits, each in a loop of its own.
   let mantissa = 0;
-  let digits = 0;
-  let fraction = 0;
-  let dot = false;
+  const whole = k;
   for (; k < end; k += 1) {
-    const byte = bytes[k] as number;
-    if (byte >= DIGIT_0 && byte <= DIGIT_9) {
-      mantissa = mantissa * 10 + (byte - DIGIT_0);
-      digits += 1;
-      if (dot) fraction += 1;
-    } else if (byte === DOT && !dot) dot = true;
-    else break;
+    const digit = (bytes[k] as number) - DIGIT_0;
+    if (digit < 0 || digit > 9) break;
+    mantissa = mantissa * 10 + digit;
+  }
+  let digits = k - whole;
+  let fraction = 0;
+  if (k < end && bytes[k] === DOT) {
+    k += 1;
+    const part = k;
+    for (; k < end; k += 1) {
+      const digit = (bytes[k] as number) - DIGIT_0;
+      if (digit < 0 || digit > 9) break;
+      mantissa = mantissa * 10 + digit;
+    }
+    fraction = k - part;
+    digits += fraction;
   }
   if (digits === 0 || digits > 15) return -1;
   const value = mantissa / (POWERS_OF_TEN[fraction] as number);
