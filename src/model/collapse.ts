@@ -144,6 +144,8 @@ export class GroupAccumulator {
   private readonly rowKey = new Float64Array(7);
   groups = 0;
   sourceRows = 0;
+  /** Sum of the entries the touch loops read (kept so that the loops are not removed as dead code). */
+  private touched = 0;
 
   /**
    * `weight` / `player`: whether rows carry prior weights and player codes (part of the key); `merge`: false keeps every row as its own group;
@@ -233,6 +235,7 @@ export class GroupAccumulator {
     const groupOf = this.groupOf;
     let table = this.table;
     let capacity = this.capacity;
+    this.touched += touchSlots(table, groupOf, count, capacity - 1);
     for (let i = 0; i < count; i += 1) {
       const full = groupOf[i] as number;
       let slot = full & (capacity - 1);
@@ -271,6 +274,7 @@ export class GroupAccumulator {
     const weightAt = this.weightAt;
     const playerAt = this.playerAt;
     const groupOf = this.groupOf;
+    this.touched += touchRecords(this.records, groupOf, count, stride);
     for (let i = 0; i < count; i += 1) {
       const records = this.records;
       let base = (groupOf[i] as number) * stride;
@@ -416,6 +420,25 @@ export function collapseTrials(trials: Trials, options: CollapseOptions = {}): C
   const { latency, scale, successes, attempts } = trials;
   accumulator.addRows({ latency, scale, difficulty, weight: weights, player: playerCodes, successes, attempts }, rows);
   return accumulator.finish();
+}
+
+/**
+ * Read each row's record once, in a loop of independent loads and nothing
+ * else, so that the processor has many of these cache and TLB misses in
+ * flight at a time; pass 2 then finds the records in cache (a software
+ * prefetch, which JavaScript lacks). Returns a sum of what it read.
+ */
+function touchRecords(records: Float64Array, groupOf: Int32Array, count: number, stride: number): number {
+  let sum = 0;
+  for (let i = 0; i < count; i += 1) sum += records[(groupOf[i] as number) * stride] as number;
+  return sum;
+}
+
+/** The same for pass 1's first table slot of each row (`groupOf` holds the hashes then). */
+function touchSlots(table: Int32Array<ArrayBufferLike>, hashes: Int32Array, count: number, mask: number): number {
+  let sum = 0;
+  for (let i = 0; i < count; i += 1) sum += table[2 * ((hashes[i] as number) & mask)] as number;
+  return sum;
 }
 
 /** The (group + 1, hash) table doubled, every entry re-inserted by its stored hash. */
