@@ -261,8 +261,7 @@ export function fitBinomial(data: BinomialData, options: BinomialFitOptions = {}
   warnings.push(...iteration.warnings);
   const { coefficients } = iteration;
   const linearPredictor = iteration.atEstimate?.linearPredictor ?? multiply(kept, coefficients);
-  const state = linkState(link, linearPredictor, rows, iteration.spares);
-  const { boundaryRows, stillMoving } = boundaryOf(state, linearPredictor, iteration.lastLinearPredictorChange);
+  const { state, boundaryRows, stillMoving, sums } = atEstimate(link, linearPredictor, rows, successes, trials, priorWeights, iteration.lastLinearPredictorChange, iteration.spares);
   // The last pass of the iteration already reduced the rows at the estimate.
   const information = (iteration.atEstimate?.reduction ?? reduceWeightedRows(kept, squares(rootWeightsOf(link, linearPredictor, rows)), null, exponents)).qr;
   const weightedRankLost = iteration.weightsCollapsed || information.rank < columns;
@@ -339,7 +338,6 @@ export function fitBinomial(data: BinomialData, options: BinomialFitOptions = {}
   // Likelihood summaries.
   const hasIntercept = hasConstantColumn(kept);
   const totalWeight = rows.totalWeight;
-  const sums = fitSums(rows, state, successes, trials, priorWeights);
   const { totalSuccessWeight, totalTrials } = sums;
   const nullMu = hasIntercept ? totalSuccessWeight / totalWeight : link.inverse(0);
   const nullComplement = hasIntercept ? (totalWeight - totalSuccessWeight) / totalWeight : link.inverseComplement(0);
@@ -497,11 +495,24 @@ interface LinkState {
 }
 
 /**
- * mu and 1 - mu at `linearPredictor`, and the Bernoulli-level log-likelihood
- * of `rows` there. For the logit link one exp and one log1p per row, as in
- * {@link logitPass}; otherwise through the link object.
+ * Everything the fit reports that needs a pass over the rows at the estimate,
+ * in one pass: mu and 1 - mu at `linearPredictor` and the Bernoulli-level
+ * log-likelihood of `rows` there (for the logit link one exp and one log1p
+ * per row, as in {@link logitPass}; otherwise through the link object); the
+ * rows whose fitted probability is within BOUNDARY of 0 or 1, and whether any
+ * of them still moved by more than DIVERGING_STEP in the last step
+ * (`lastChange`); and the sums the fit statistics need, each in row order.
  */
-function linkState(link: Link, linearPredictor: Float64Array, rows: GlmRows, spares: readonly Float64Array[] = []): LinkState {
+function atEstimate(
+  link: Link,
+  linearPredictor: Float64Array,
+  rows: GlmRows,
+  successes: Float64Array,
+  trials: Float64Array,
+  priorWeights: Float64Array,
+  lastChange: (row: number) => number,
+  spares: readonly Float64Array[],
+) {
   const n = linearPredictor.length;
   const buffer = (k: number) => {
     const spare = spares[k];
@@ -509,31 +520,69 @@ function linkState(link: Link, linearPredictor: Float64Array, rows: GlmRows, spa
   };
   const complement = buffer(0);
   const mu = buffer(1);
-  if (link.name !== 'logit') {
+  const logit = link.name === 'logit';
+  let logLikelihood = 0;
+  if (!logit) {
     for (let i = 0; i < n; i += 1) {
       const value = linearPredictor[i] as number;
       mu[i] = link.inverse(value);
       complement[i] = link.inverseComplement(value);
     }
-    return { mu, complement, logLikelihood: bernoulliLogLikelihoodOf(rows, mu, complement) };
+    logLikelihood = bernoulliLogLikelihoodOf(rows, mu, complement);
   }
   const { proportions, weights } = rows;
-  let logLikelihood = 0;
+  let boundaryRows = 0;
+  let stillMoving = false;
+  let totalSuccessWeight = 0;
+  let totalTrials = 0;
+  let pearsonChiSquare = 0;
+  let brierSum = 0;
+  let fittedAmongSuccesses = 0;
+  let successWeight = 0;
+  let fittedAmongFailures = 0;
+  let failureWeight = 0;
+  let priorTrials = 0;
   for (let i = 0; i < n; i += 1) {
-    const eta = linearPredictor[i] as number;
-    const exponential = Math.exp(-Math.abs(eta));
-    const inverse = 1 / (1 + exponential);
-    const small = exponential * inverse;
-    const softplus = Math.log1p(exponential);
-    const positive = eta >= 0;
-    mu[i] = positive ? inverse : small;
-    complement[i] = positive ? small : inverse;
     const proportion = proportions[i] as number;
     const weight = weights[i] as number;
-    if (proportion > 0) logLikelihood += weight * proportion * (positive ? -softplus : eta - softplus);
-    if (proportion < 1) logLikelihood += weight * (1 - proportion) * (positive ? -eta - softplus : -softplus);
+    if (logit) {
+      const eta = linearPredictor[i] as number;
+      const exponential = Math.exp(-Math.abs(eta));
+      const inverse = 1 / (1 + exponential);
+      const small = exponential * inverse;
+      const softplus = Math.log1p(exponential);
+      const positive = eta >= 0;
+      mu[i] = positive ? inverse : small;
+      complement[i] = positive ? small : inverse;
+      if (proportion > 0) logLikelihood += weight * proportion * (positive ? -softplus : eta - softplus);
+      if (proportion < 1) logLikelihood += weight * (1 - proportion) * (positive ? -eta - softplus : -softplus);
+    }
+    const fitted = mu[i] as number;
+    const other = complement[i] as number;
+    if (fitted < BOUNDARY || other < BOUNDARY) {
+      boundaryRows += 1;
+      const change = Math.abs(lastChange(i));
+      if (change > DIVERGING_STEP * Math.max(1, Math.abs(linearPredictor[i] as number))) stillMoving = true;
+    }
+    const prior = priorWeights[i] as number;
+    const successCount = successes[i] as number;
+    const trialCount = trials[i] as number;
+    const failureCount = trialCount - successCount;
+    totalSuccessWeight += weight * proportion;
+    totalTrials += trialCount;
+    const variance = fitted * other;
+    const residual = residualOf(proportion, fitted, other);
+    if (variance > 0) pearsonChiSquare += (weight * residual * residual) / variance;
+    brierSum += prior * (successCount * other * other + failureCount * fitted * fitted);
+    fittedAmongSuccesses += prior * successCount * fitted;
+    successWeight += prior * successCount;
+    fittedAmongFailures += prior * failureCount * fitted;
+    failureWeight += prior * failureCount;
+    priorTrials += prior * trialCount;
   }
-  return { mu, complement, logLikelihood };
+  const state: LinkState = { mu, complement, logLikelihood };
+  const sums = { totalSuccessWeight, totalTrials, pearsonChiSquare, brierSum, fittedAmongSuccesses, successWeight, fittedAmongFailures, failureWeight, priorTrials };
+  return { state, boundaryRows, stillMoving, sums };
 }
 
 /** sqrt of the IRLS weight w n (dmu/deta)^2 / (mu (1 - mu)); 0 where it underflows. */
@@ -802,53 +851,6 @@ function glmRows(successes: Float64Array, trials: Float64Array, priorWeights: Fl
     if (proportion > 0 && proportion < 1) saturated += weight * (proportion * Math.log(proportion) + (1 - proportion) * Math.log1p(-proportion));
   }
   return { proportions, weights, saturated, totalWeight };
-}
-
-/** Rows whose fitted probability is within BOUNDARY of 0 or 1, and whether any of them still moved by more than DIVERGING_STEP in the last step. */
-function boundaryOf(state: LinkState, linearPredictor: Float64Array, lastChange: (row: number) => number): { boundaryRows: number; stillMoving: boolean } {
-  let boundaryRows = 0;
-  let stillMoving = false;
-  for (let i = 0; i < linearPredictor.length; i += 1) {
-    if ((state.mu[i] as number) < BOUNDARY || (state.complement[i] as number) < BOUNDARY) {
-      boundaryRows += 1;
-      const change = Math.abs(lastChange(i));
-      if (change > DIVERGING_STEP * Math.max(1, Math.abs(linearPredictor[i] as number))) stillMoving = true;
-    }
-  }
-  return { boundaryRows, stillMoving };
-}
-
-/** The sums over the rows that the fit statistics need, in one pass (each in row order). */
-function fitSums(rows: GlmRows, state: LinkState, successes: Float64Array, trials: Float64Array, priorWeights: Float64Array) {
-  let totalSuccessWeight = 0;
-  let totalTrials = 0;
-  let pearsonChiSquare = 0;
-  let brierSum = 0;
-  let fittedAmongSuccesses = 0;
-  let successWeight = 0;
-  let fittedAmongFailures = 0;
-  let failureWeight = 0;
-  let priorTrials = 0;
-  for (let i = 0; i < successes.length; i += 1) {
-    const mu = state.mu[i] as number;
-    const complement = state.complement[i] as number;
-    const prior = priorWeights[i] as number;
-    const successCount = successes[i] as number;
-    const trialCount = trials[i] as number;
-    const failureCount = trialCount - successCount;
-    totalSuccessWeight += (rows.weights[i] as number) * (rows.proportions[i] as number);
-    totalTrials += trialCount;
-    const variance = mu * complement;
-    const residual = residualOf(rows.proportions[i] as number, mu, complement);
-    if (variance > 0) pearsonChiSquare += ((rows.weights[i] as number) * residual * residual) / variance;
-    brierSum += prior * (successCount * complement * complement + failureCount * mu * mu);
-    fittedAmongSuccesses += prior * successCount * mu;
-    successWeight += prior * successCount;
-    fittedAmongFailures += prior * failureCount * mu;
-    failureWeight += prior * failureCount;
-    priorTrials += prior * trialCount;
-  }
-  return { totalSuccessWeight, totalTrials, pearsonChiSquare, brierSum, fittedAmongSuccesses, successWeight, fittedAmongFailures, failureWeight, priorTrials };
 }
 
 /**
