@@ -82,8 +82,14 @@ function finalise(hash: number): number {
  */
 const RESERVED_GROUPS = 1 << 22;
 
-/** Rows added to a {@link GroupAccumulator} at a time; group order depends on it (see there), so every caller uses this one. */
-export const COLLAPSE_BATCH_ROWS = 1 << 14;
+/**
+ * Rows added to a {@link GroupAccumulator} at a time; group order depends on
+ * it (see there), so every caller uses this one. 8,192 rather than more so
+ * that the table slots and records a batch touches ahead of its passes (about
+ * a megabyte) are still in cache when the pass reaches them: a few per cent
+ * faster than 16,384 on a million rows.
+ */
+export const COLLAPSE_BATCH_ROWS = 1 << 13;
 
 /** Columns of rows to collapse (the first `count` entries of each are read). */
 export interface RowColumns {
