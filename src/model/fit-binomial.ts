@@ -189,6 +189,8 @@ const BOUNDARY = 1e-10;
 /** A step that changes a boundary row's linear predictor by more than this means it is still diverging. */
 const DIVERGING_STEP = 1e-6;
 const MAX_HALVINGS = 60;
+/** The default `tolerance`: the largest coefficient step, in standard errors, accepted as converged. */
+const DEFAULT_TOLERANCE = 1e-10;
 /** Switch to Newton steps once a Fisher step is smaller than this many standard errors. */
 const NEWTON_SWITCH = 1e-2;
 
@@ -206,7 +208,7 @@ const NEWTON_SWITCH = 1e-2;
 export function fitBinomial(data: BinomialData, options: BinomialFitOptions = {}): BinomialFit {
   const linkName = options.link ?? 'logit';
   const maxIterations = options.maxIterations ?? 50;
-  const tolerance = options.tolerance ?? 1e-10;
+  const tolerance = options.tolerance ?? DEFAULT_TOLERANCE;
   const likelihood = options.likelihood ?? 'grouped';
   checkInput(data, { linkName, maxIterations, tolerance, likelihood, observationCount: options.observationCount });
   const link = linkFor(linkName);
@@ -855,9 +857,12 @@ function glmRows(successes: Float64Array, trials: Float64Array, priorWeights: Fl
 
 /**
  * Coefficients fitted to every k-th row (about {@link WARM_START_SAMPLE}
- * rows), or null when that fit does not converge. They are within a few
- * standard errors of the full estimate, so Newton steps from there need one
- * pass fewer than from R's starting values; the estimate is the same.
+ * rows), or null when that fit would not be `converged`. They are within a
+ * few standard errors of the full estimate, so Newton steps from there need
+ * one pass fewer than from R's starting values; the estimate is the same.
+ * Only the iteration of a fit runs on the sample, with the checks that decide
+ * a fit's status (rank, separation, a finite covariance), not its summaries:
+ * the rows carry weight already (they are the full fit's kept rows).
  */
 function sampleEstimate(
   design: DesignMatrix,
@@ -875,11 +880,33 @@ function sampleEstimate(
   };
   const values = new Float64Array(count * design.columns);
   for (let j = 0; j < design.columns; j += 1) values.set(pick(design.values, j * design.rows), j * count);
-  const fit = fitBinomial(
-    { design: { ...design, rows: count, values }, successes: pick(successes), trials: pick(trials), priorWeights: pick(priorWeights) },
-    { link: 'logit', maxIterations: options.maxIterations ?? 50, robust: false },
-  );
-  return fit.status === 'converged' ? fit.coefficients : null;
+  const sample: DesignMatrix = { rows: count, columns: design.columns, names: design.names, values };
+  const rows = glmRows(pick(successes), pick(trials), pick(priorWeights));
+  const link = linkFor('logit');
+  const exponents = columnExponents(sample);
+  const initial = initialPass(sample, rows, link, exponents, null);
+  if (initial.reduction.qr.rank < design.columns) return null;
+  const iteration = iterate(sample, rows, link, options.maxIterations ?? 50, DEFAULT_TOLERANCE, exponents, undefined, initial);
+  const reached = iteration.atEstimate;
+  if (!iteration.converged || iteration.weightsCollapsed || reached === null || reached.reduction.qr.rank < design.columns) return null;
+  if (!iteration.coefficients.every(Number.isFinite) || !inverseCrossProduct(reached.reduction.qr).every(Number.isFinite)) return null;
+  return separatedAt(reached.linearPredictor, iteration.lastLinearPredictorChange) ? null : iteration.coefficients;
+}
+
+/**
+ * Whether a logit fit at `linearPredictor` is separated as {@link fitBinomial}
+ * judges it: some row's fitted probability within BOUNDARY of 0 or 1 (from
+ * the same arithmetic as {@link atEstimate}) that still moved by more than
+ * DIVERGING_STEP in the last step.
+ */
+function separatedAt(linearPredictor: Float64Array, lastChange: (row: number) => number): boolean {
+  for (let i = 0; i < linearPredictor.length; i += 1) {
+    const eta = linearPredictor[i] as number;
+    const exponential = Math.exp(-Math.abs(eta));
+    const small = exponential * (1 / (1 + exponential));
+    if (small < BOUNDARY && Math.abs(lastChange(i)) > DIVERGING_STEP * Math.max(1, Math.abs(eta))) return true;
+  }
+  return false;
 }
 
 /** Fisher scoring / IRLS (McCullagh & Nelder 1989, §2.5), R's starting values and step control; one fused pass per iteration. */

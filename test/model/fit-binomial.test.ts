@@ -518,6 +518,27 @@ describe('fitBinomial() on many rows', () => {
     for (let j = 0; j < 3; j += 1) expect(Math.abs(score[j] as number) / (sampled.standardErrors[j] as number) ** -1).toBeLessThan(1e-8);
   });
 
+  it('fits many rows whose sample is separated (a rare level with only hits among the sampled rows) to the estimate from zero coefficients', () => {
+    // 70,000 rows; a rare indicator on rows i % 1000 in {0, 1}: hits on the even ones, misses on the odd ones.
+    // The sample takes every 2nd row (the even ones), where the rare level only hits: no start from that fit.
+    const rows = 70_000;
+    const { latency, random } = seededRows(rows);
+    const rare = Float64Array.from({ length: rows }, (_, i) => (i % 1000 <= 1 ? 1 : 0));
+    const successes = Float64Array.from({ length: rows }, (_, i) =>
+      rare[i] === 1 ? (i % 2 === 0 ? 1 : 0) : random() < 1 / (1 + Math.exp(-(0.5 - 0.01 * (latency[i] as number)))) ? 1 : 0,
+    );
+    const design = designMatrixFromColumns([interceptColumn(rows), { name: 'latency', values: Array.from(latency) }, { name: 'rare', values: Array.from(rare) }]);
+    const data = { design, successes, trials: new Float64Array(rows).fill(1) };
+    const fit = fitBinomial(data);
+    const fromZero = fitBinomial(data, { start: [0, 0, 0] });
+    if (fit.status !== 'converged' || fromZero.status !== 'converged') throw new Error('expected convergence');
+    for (let j = 0; j < 3; j += 1) {
+      expect(relativeError(fit.coefficients[j] as number, fromZero.coefficients[j] as number)).toBeLessThan(1e-10);
+      expect(relativeError(fit.standardErrors[j] as number, fromZero.standardErrors[j] as number)).toBeLessThan(1e-9);
+    }
+    expect(Math.abs(fit.coefficients[2] as number)).toBeLessThan(1); // half hits, half misses: the rare level's odds are about even
+  });
+
   it('stops a pass early on the contraction of its steps, within the tolerance of the fully iterated estimate', () => {
     // 80,000 seeded rows with an interaction column: the steps from the sample-fit start contract
     // fast enough that the third step is taken without a pass at its result (3 iterations; the
