@@ -122,15 +122,16 @@ export interface RowColumns {
  * first point of each hash; the rare row whose hash collided with another
  * point's follows that point's chain of same-hash points (a map from a group
  * to the next) and is compared exactly there, or starts a new point at the
- * chain's end.
- * Within a pass the rows' table and record loads are independent, which the
- * processor overlaps.
+ * chain's end. Before each pass a loop of independent loads touches the
+ * slots (pass 1) or records (pass 2) the batch's rows will use, so that their
+ * cache and TLB misses overlap (see `touchRecords`).
  *
  * Groups come in order of first appearance, except that a point found only
  * through a hash collision comes after the other new points of its batch.
  *
  * Cost: O(rows) expected time; memory a table of 4/3 to 8/3 slots of 8 bytes
- * and a record of 5 to 7 doubles per group, and 4 bytes per row of a batch.
+ * and a record of 5 to 7 doubles per group (reserved for the expected rows,
+ * touched only as groups appear), and 4 bytes per row of a batch.
  */
 export class GroupAccumulator {
   private readonly weightAt: number;
