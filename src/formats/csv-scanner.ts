@@ -15,6 +15,22 @@ export const QUOTE = 0x22;
 export const LINE_FEED = 0x0a;
 export const CARRIAGE_RETURN = 0x0d;
 
+/** Whether a byte is visible ASCII (not a space, control or non-ASCII byte): a field that starts and ends with one needs no trimming. */
+export function visibleByte(byte: number): boolean {
+  return byte > 0x20 && byte < 0x7f;
+}
+
+/** The end of an unquoted field at `bytes[start]`: the first delimiter, CR, LF or quote, or `length`. */
+export function plainFieldEnd(bytes: Uint8Array, start: number, length: number, delimiter: number): number {
+  let i = start;
+  while (i < length) {
+    const byte = bytes[i] as number;
+    if (byte === delimiter || byte === LINE_FEED || byte === CARRIAGE_RETURN || byte === QUOTE) break;
+    i += 1;
+  }
+  return i;
+}
+
 /** One CSV record: field byte ranges over the bytes being scanned (valid only during the callback). */
 export class CsvRecord {
   bytes: Uint8Array = new Uint8Array(0);

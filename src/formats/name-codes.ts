@@ -10,6 +10,8 @@
  * only (a file of that many distinct players is rare and still correct).
  */
 
+import { CARRIAGE_RETURN, LINE_FEED, QUOTE, plainFieldEnd, visibleByte } from './csv-scanner.js';
+
 /** Up to this many names are compared in turn rather than hashed. */
 const FEW_NAMES = 8;
 
@@ -25,9 +27,8 @@ function hashBytes(bytes: Uint8Array, start: number, end: number): number {
 /** Whether a name can be matched where it stands in a line: visible first and last bytes, no delimiter, quote or line end inside. */
 function comparedInPlace(bytes: Uint8Array): boolean {
   if (bytes.length === 0) return false;
-  const visible = (byte: number) => byte > 0x20 && byte < 0x7f;
-  if (!visible(bytes[0] as number) || !visible(bytes[bytes.length - 1] as number)) return false;
-  for (const byte of bytes) if (byte === 0x2c || byte === 0x3b || byte === 0x09 || byte === 0x22 || byte === 0x0a || byte === 0x0d) return false;
+  if (!visibleByte(bytes[0] as number) || !visibleByte(bytes[bytes.length - 1] as number)) return false;
+  for (const byte of bytes) if (byte === 0x2c || byte === 0x3b || byte === 0x09 || byte === QUOTE || byte === LINE_FEED || byte === CARRIAGE_RETURN) return false;
   return true;
 }
 
@@ -42,7 +43,7 @@ export class NameCodes {
   /** Names that {@link matchAt} compares where they stand (see there), and their codes. */
   private readonly direct: Uint8Array[] = [];
   private readonly directCodes: number[] = [];
-  /** The code {@link matchAt} found. */
+  /** The code {@link matchAt} or {@link fieldAt} found. */
   matched = -1;
 
   private matches(code: number, bytes: Uint8Array, start: number, end: number): boolean {
@@ -86,12 +87,28 @@ export class NameCodes {
   }
 
   /**
+   * Index past a plain field at `bytes[start]` that holds a known name, with
+   * its code in {@link matched}; -1 when the field is not plain (it needs
+   * trimming, or a quote ends it) or its name is not known by its bytes.
+   * The field ends at the first delimiter, CR, LF or quote (or `length`).
+   * Try {@link matchAt} first: it compares a few names where they stand.
+   */
+  fieldAt(bytes: Uint8Array, start: number, length: number, delimiter: number): number {
+    const end = plainFieldEnd(bytes, start, length, delimiter);
+    if (end === start || !visibleByte(bytes[start] as number) || !visibleByte(bytes[end - 1] as number)) return -1;
+    const code = this.codeOfBytes(bytes, start, end);
+    if (code < 0) return -1;
+    this.matched = code;
+    return end;
+  }
+
+  /**
    * Index past the field when one of the first {@link FEW_NAMES} names
    * stands at `bytes[start]` followed by `delimiter`, CR or LF before
-   * `length`, with its code in {@link matched}; else -1 (scan the field and
-   * use {@link codeOfBytes}). Only names with visible first and last bytes
-   * and none of `,;\t"` CR LF inside are compared, so a match is exactly
-   * the field that scanning to the next delimiter would give.
+   * `length`, with its code in {@link matched}; else -1. Only names with
+   * visible first and last bytes and none of `,;\t"` CR LF inside are
+   * compared, so a match is exactly the field that scanning to the next
+   * delimiter would give.
    */
   matchAt(bytes: Uint8Array, start: number, length: number, delimiter: number): number {
     // Every read stays inside `bytes`: one past the end would send the optimised code back to the interpreter.
@@ -107,7 +124,7 @@ export class NameCodes {
       while (at < name.length && name[at] === bytes[start + at]) at += 1;
       if (at < name.length) continue;
       const next = bytes[end];
-      if (next === delimiter || next === 0x0a || next === 0x0d) {
+      if (next === delimiter || next === LINE_FEED || next === CARRIAGE_RETURN) {
         this.matched = this.directCodes[k] as number;
         return end;
       }

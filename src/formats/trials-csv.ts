@@ -22,7 +22,7 @@
  * plus one chunk.
  */
 import { type Issue, type Result, error, fail, ok, show, warning } from '../issues.js';
-import { CARRIAGE_RETURN, type CsvRecord, CsvScanner, LINE_FEED, MAX_CSV_LINE_BYTES, type PlainLineReader } from './csv-scanner.js';
+import { CARRIAGE_RETURN, type CsvRecord, CsvScanner, LINE_FEED, MAX_CSV_LINE_BYTES, type PlainLineReader, plainFieldEnd, visibleByte } from './csv-scanner.js';
 import { MAX_LATENCY_MS } from './limits.js';
 import { NameCodes } from './name-codes.js';
 import { RowBuffer } from './row-buffer.js';
@@ -150,9 +150,7 @@ function plainField(record: CsvRecord, index: number): boolean {
   const start = record.starts[index] as number;
   const end = record.ends[index] as number;
   if (end <= start || record.quoting[index] === 2) return false;
-  const first = record.bytes[start] as number;
-  const last = record.bytes[end - 1] as number;
-  return first > 0x20 && first < 0x7f && last > 0x20 && last < 0x7f;
+  return visibleByte(record.bytes[start] as number) && visibleByte(record.bytes[end - 1] as number);
 }
 
 /**
@@ -230,12 +228,6 @@ const ROLE_OF: Record<KnownColumn, Role> = {
   weight: Role.Weight,
 };
 
-const QUOTE_BYTE = 0x22;
-
-/** Whether a name field's first and last bytes are visible ASCII (so it needs no trimming). */
-function visible(byte: number): boolean {
-  return byte > 0x20 && byte < 0x7f;
-}
 
 export class TrialsBuilder implements PlainLineReader {
   readonly file: string;
@@ -512,30 +504,16 @@ export class TrialsBuilder implements PlainLineReader {
     let i = start;
     for (let field = 0; field <= last; field += 1) {
       const role = roles[field] as Role;
-      const fieldStart = i;
-      if (role === Role.Difficulty || role === Role.Player || role === Role.Skip) {
-        const names = role === Role.Difficulty ? this.difficulty : role === Role.Player ? this.player : null;
+      if (role === Role.Skip) {
+        i = plainFieldEnd(bytes, i, length, delimiter);
+      } else if (role === Role.Difficulty || role === Role.Player) {
+        const names = role === Role.Difficulty ? this.difficulty : this.player;
         // A few known names are compared where they stand; any other field is scanned, then looked up.
-        const matchedEnd = names === null ? -1 : names.matchAt(bytes, i, length, delimiter);
-        let code: number;
-        if (matchedEnd >= 0) {
-          code = (names as NameCodes).matched;
-          i = matchedEnd;
-        } else {
-          while (i < length) {
-            const byte = bytes[i] as number;
-            if (byte === delimiter || byte === LINE_FEED || byte === CARRIAGE_RETURN || byte === QUOTE_BYTE) break;
-            i += 1;
-          }
-          if (names === null) code = -1;
-          else {
-            if (i === fieldStart || !visible(bytes[fieldStart] as number) || !visible(bytes[i - 1] as number)) return -1;
-            code = names.codeOfBytes(bytes, fieldStart, i);
-            if (code < 0) return -1;
-          }
-        }
-        if (role === Role.Difficulty) difficulty = code;
-        else if (role === Role.Player) player = code;
+        const matchedEnd = names.matchAt(bytes, i, length, delimiter);
+        i = matchedEnd >= 0 ? matchedEnd : names.fieldAt(bytes, i, length, delimiter);
+        if (i < 0) return -1;
+        if (role === Role.Difficulty) difficulty = names.matched;
+        else player = names.matched;
       } else {
         i = scanDecimal(bytes, i, length);
         if (i < 0) return -1;
