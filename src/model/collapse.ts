@@ -147,8 +147,6 @@ export class GroupAccumulator {
   private groupOf = new Int32Array(0);
   /** Group -> the next group whose key has the same 32-bit hash (see the class note). */
   private sameHash: Map<number, number> | null = null;
-  /** Row `i`'s key, gathered for comparing it along a chain. */
-  private readonly rowKey = new Float64Array(7);
   groups = 0;
   sourceRows = 0;
   /** Sum of the entries the touch loops read (kept so that the loops are not removed as dead code). */
@@ -274,30 +272,30 @@ export class GroupAccumulator {
 
   /** Pass 2: the exact key, then the counts. */
   private addCounts(columns: RowColumns, count: number): void {
-    const { latency, scale, difficulty, successes, attempts } = columns;
-    const weights = this.hasWeight ? columns.weight : null;
-    const players = this.hasPlayer ? columns.player : null;
+    const { successes, attempts } = columns;
     const stride = this.stride;
-    const weightAt = this.weightAt;
-    const playerAt = this.playerAt;
     const groupOf = this.groupOf;
     this.touched += touchRecords(this.records, groupOf, count, stride);
     for (let i = 0; i < count; i += 1) {
-      const records = this.records;
-      let base = (groupOf[i] as number) * stride;
-      if (
-        records[base] !== latency[i] ||
-        records[base + 1] !== scale[i] ||
-        records[base + 2] !== difficulty[i] ||
-        (weights !== null && records[base + weightAt] !== weights[i]) ||
-        (players !== null && records[base + playerAt] !== players[i])
-      ) {
-        base = this.collidedGroup(columns, i, groupOf[i] as number) * stride;
-      }
+      const group = groupOf[i] as number;
+      const base = (this.holdsKey(group, columns, i) ? group : this.collidedGroup(columns, i, group)) * stride;
       const target = this.records;
       target[base + 3] = (target[base + 3] as number) + (successes[i] as number);
       target[base + 4] = (target[base + 4] as number) + (attempts[i] as number);
     }
+  }
+
+  /** Whether `group`'s record holds row `i`'s exact key. */
+  private holdsKey(group: number, columns: RowColumns, i: number): boolean {
+    const records = this.records;
+    const base = group * this.stride;
+    return (
+      records[base] === columns.latency[i] &&
+      records[base + 1] === columns.scale[i] &&
+      records[base + 2] === columns.difficulty[i] &&
+      (!this.hasWeight || records[base + this.weightAt] === (columns.weight?.[i] ?? 1)) &&
+      (!this.hasPlayer || records[base + this.playerAt] === (columns.player?.[i] ?? 0))
+    );
   }
 
   /**
@@ -307,13 +305,6 @@ export class GroupAccumulator {
    */
   private collidedGroup(columns: RowColumns, i: number, first: number): number {
     const chains = (this.sameHash ??= new Map());
-    const key = this.rowKey;
-    key[0] = columns.latency[i] as number;
-    key[1] = columns.scale[i] as number;
-    key[2] = columns.difficulty[i] as number;
-    key[this.weightAt] = this.hasWeight ? (columns.weight?.[i] ?? 1) : 1;
-    key[this.playerAt] = this.hasPlayer ? (columns.player?.[i] ?? 0) : 0;
-    const keyOffsets = this.hasWeight || this.hasPlayer ? [0, 1, 2, ...(this.hasWeight ? [this.weightAt] : []), ...(this.hasPlayer ? [this.playerAt] : [])] : [0, 1, 2];
     for (let group = first; ; ) {
       const next = chains.get(group);
       if (next === undefined) {
@@ -321,8 +312,7 @@ export class GroupAccumulator {
         chains.set(group, created);
         return created;
       }
-      const base = next * this.stride;
-      if (keyOffsets.every((offset) => this.records[base + offset] === key[offset])) return next;
+      if (this.holdsKey(next, columns, i)) return next;
       group = next;
     }
   }
