@@ -34,10 +34,12 @@
  * W = n (dmu/deta)^2 / (mu (1 - mu)). For probit and cloglog it is evaluated
  * AT the final estimate (R's `summary.glm` uses the weights of the last
  * iteration, i.e. of the previous iterate). For the logit link, whose Fisher
- * steps are Newton steps, the last step (at most `tolerance` standard errors)
- * is taken without a pass at its result, so the information is that of the
- * iterate it stepped from, as in R, and differs from the one at the estimate
- * by O(tolerance); the estimate, fitted values and likelihood are at the
+ * steps are Newton steps, the last step is taken without a pass at its
+ * result, so the information is that of the iterate it stepped from, as in
+ * R: one step of at most `tolerance` standard errors away, or, when the fit
+ * stops on the contraction bound, of at most COVARIANCE_SHIFT x
+ * sqrt(sum of weights), which moves the information by about 1e-9
+ * relatively; the estimate, fitted values and likelihood are at the
  * estimate. For the logit link expected and observed information coincide;
  * for probit and cloglog this is R's / `sandwich`'s convention, not Stata's
  * or statsmodels' observed information.
@@ -563,8 +565,7 @@ function atEstimate(
     const other = complement[i] as number;
     if (fitted < BOUNDARY || other < BOUNDARY) {
       boundaryRows += 1;
-      const change = Math.abs(lastChange(i));
-      if (change > DIVERGING_STEP * Math.max(1, Math.abs(linearPredictor[i] as number))) stillMoving = true;
+      if (stillDiverging(linearPredictor[i] as number, lastChange(i))) stillMoving = true;
     }
     const prior = priorWeights[i] as number;
     const successCount = successes[i] as number;
@@ -904,9 +905,14 @@ function separatedAt(linearPredictor: Float64Array, lastChange: (row: number) =>
     const eta = linearPredictor[i] as number;
     const exponential = Math.exp(-Math.abs(eta));
     const small = exponential * (1 / (1 + exponential));
-    if (small < BOUNDARY && Math.abs(lastChange(i)) > DIVERGING_STEP * Math.max(1, Math.abs(eta))) return true;
+    if (small < BOUNDARY && stillDiverging(eta, lastChange(i))) return true;
   }
   return false;
+}
+
+/** Whether a row at linear predictor `eta` that moved by `change` in the last step still diverges: by more than DIVERGING_STEP, relative to |eta| above 1. */
+function stillDiverging(eta: number, change: number): boolean {
+  return Math.abs(change) > DIVERGING_STEP * Math.max(1, Math.abs(eta));
 }
 
 /** Fisher scoring / IRLS (McCullagh & Nelder 1989, §2.5), R's starting values and step control; one fused pass per iteration. */
