@@ -505,7 +505,8 @@ interface LinkState {
  * per row, as in {@link logitPass}; otherwise through the link object); the
  * rows whose fitted probability is within BOUNDARY of 0 or 1, and whether any
  * of them still moved by more than DIVERGING_STEP in the last step
- * (`lastChange`); and the sums the fit statistics need, each in row order.
+ * (`lastChange`); and the sums the fit statistics need, each in row order
+ * (a sum per block of rows, then the blocks' sums).
  */
 function atEstimate(
   link: Link,
@@ -534,7 +535,54 @@ function atEstimate(
     }
     logLikelihood = bernoulliLogLikelihoodOf(rows, mu, complement);
   }
+  const totals = new Float64Array(ESTIMATE_TOTALS);
+  const inputs = { linearPredictor, rows, successes, trials, priorWeights, lastChange };
+  for (let first = 0; first < n; first += PASS_BLOCK_ROWS) {
+    logLikelihood += estimateBlock(logit, inputs, mu, complement, first, Math.min(n, first + PASS_BLOCK_ROWS), totals);
+  }
+  const state: LinkState = { mu, complement, logLikelihood };
+  const sums = {
+    totalSuccessWeight: totals[1] as number,
+    totalTrials: totals[2] as number,
+    pearsonChiSquare: totals[3] as number,
+    brierSum: totals[4] as number,
+    fittedAmongSuccesses: totals[5] as number,
+    successWeight: totals[6] as number,
+    fittedAmongFailures: totals[7] as number,
+    failureWeight: totals[8] as number,
+    priorTrials: totals[9] as number,
+  };
+  return { state, boundaryRows: totals[0] as number, stillMoving: totals[10] !== 0, sums };
+}
+
+/** Entries of {@link estimateBlock}'s running totals: boundary rows, the nine sums of `atEstimate` in its order, and 1 once a boundary row still moves. */
+const ESTIMATE_TOTALS = 11;
+
+/**
+ * Rows `start` to `end` of {@link atEstimate} (in blocks, as {@link logitPass}
+ * and for the same reason): for the logit link mu and 1 - mu into their
+ * buffers and the block's log-likelihood returned, otherwise mu and 1 - mu
+ * read from them (and 0 returned); the totals added to `totals`.
+ */
+function estimateBlock(
+  logit: boolean,
+  inputs: {
+    readonly linearPredictor: Float64Array;
+    readonly rows: GlmRows;
+    readonly successes: Float64Array;
+    readonly trials: Float64Array;
+    readonly priorWeights: Float64Array;
+    readonly lastChange: (row: number) => number;
+  },
+  mu: Float64Array,
+  complement: Float64Array,
+  start: number,
+  end: number,
+  totals: Float64Array,
+): number {
+  const { linearPredictor, rows, successes, trials, priorWeights, lastChange } = inputs;
   const { proportions, weights } = rows;
+  let logLikelihood = 0;
   let boundaryRows = 0;
   let stillMoving = false;
   let totalSuccessWeight = 0;
@@ -546,7 +594,7 @@ function atEstimate(
   let fittedAmongFailures = 0;
   let failureWeight = 0;
   let priorTrials = 0;
-  for (let i = 0; i < n; i += 1) {
+  for (let i = start; i < end; i += 1) {
     const proportion = proportions[i] as number;
     const weight = weights[i] as number;
     if (logit) {
@@ -583,9 +631,18 @@ function atEstimate(
     failureWeight += prior * failureCount;
     priorTrials += prior * trialCount;
   }
-  const state: LinkState = { mu, complement, logLikelihood };
-  const sums = { totalSuccessWeight, totalTrials, pearsonChiSquare, brierSum, fittedAmongSuccesses, successWeight, fittedAmongFailures, failureWeight, priorTrials };
-  return { state, boundaryRows, stillMoving, sums };
+  totals[0] = (totals[0] as number) + boundaryRows;
+  totals[1] = (totals[1] as number) + totalSuccessWeight;
+  totals[2] = (totals[2] as number) + totalTrials;
+  totals[3] = (totals[3] as number) + pearsonChiSquare;
+  totals[4] = (totals[4] as number) + brierSum;
+  totals[5] = (totals[5] as number) + fittedAmongSuccesses;
+  totals[6] = (totals[6] as number) + successWeight;
+  totals[7] = (totals[7] as number) + fittedAmongFailures;
+  totals[8] = (totals[8] as number) + failureWeight;
+  totals[9] = (totals[9] as number) + priorTrials;
+  if (stillMoving) totals[10] = 1;
+  return logLikelihood;
 }
 
 /** sqrt of the IRLS weight w n (dmu/deta)^2 / (mu (1 - mu)); 0 where it underflows. */
@@ -668,6 +725,34 @@ function logitPass(
   triangle: RowTriangle,
   factors: Float64Array,
 ): number {
+  const beta = coefficients === null ? null : Float64Array.from(coefficients);
+  let logLikelihood = 0;
+  for (let start = 0; start < design.rows; start += PASS_BLOCK_ROWS) {
+    logLikelihood += logitBlock(design, rows, beta, linearPredictor, triangle, factors, start, Math.min(design.rows, start + PASS_BLOCK_ROWS));
+  }
+  return Math.max(0, 2 * (rows.saturated - logLikelihood));
+}
+
+/**
+ * Rows of {@link logitPass} per call of {@link logitBlock}. A loop that runs
+ * once per pass is optimised by V8 on the stack, in code entered mid-loop,
+ * which ran the pass about a third slower than code compiled for the whole
+ * function; a function called for each block of rows gets the latter within
+ * the sample fit's passes.
+ */
+const PASS_BLOCK_ROWS = 4096;
+
+/** Rows `start` to `end` of {@link logitPass} (`beta` null: R's start); folds them into `triangle` and returns their log-likelihood. */
+function logitBlock(
+  design: DesignMatrix,
+  rows: GlmRows,
+  beta: Float64Array | null,
+  linearPredictor: Float64Array,
+  triangle: RowTriangle,
+  factors: Float64Array,
+  start: number,
+  end: number,
+): number {
   const n = design.rows;
   const columns = design.columns;
   const values = design.values;
@@ -677,15 +762,13 @@ function logitPass(
   const diagonal = triangle.diagonal;
   const upper = triangle.upper;
   const theta = triangle.theta;
-  const atStart = coefficients === null;
-  const beta = atStart ? new Float64Array(columns) : Float64Array.from(coefficients);
   let logLikelihood = 0;
   let residualSumOfSquares = 0;
-  for (let i = 0; i < n; i += 1) {
+  for (let i = start; i < end; i += 1) {
     const weight = glmWeights[i] as number;
     const proportion = proportions[i] as number;
     let eta = 0;
-    if (atStart) {
+    if (beta === null) {
       // R's start mu = (w y + 0.5) / (w + 1): eta = log(mu / (1 - mu)).
       eta = Math.log((weight * proportion + 0.5) / (weight * (1 - proportion) + 0.5));
     } else {
@@ -747,7 +830,7 @@ function logitPass(
     residualSumOfSquares += w * y * y;
   }
   triangle.residualSumOfSquares += residualSumOfSquares;
-  return Math.max(0, 2 * (rows.saturated - logLikelihood));
+  return logLikelihood;
 }
 
 /** The pass for any link, through its link object (and for R's starting values). */

@@ -525,6 +525,17 @@ describe('fitBinomial() on many rows', () => {
     // The score X'(y - mu) at the estimate is zero to rounding (common practice: the likelihood equations).
     const score = binomialScore(data, sampled.coefficients);
     for (let j = 0; j < 3; j += 1) expect(Math.abs(score[j] as number) / (sampled.standardErrors[j] as number) ** -1).toBeLessThan(1e-8);
+    // The log-likelihood and deviance of 0/1 rows at the estimate, summed here in one plain loop
+    // (sum y log mu + (1 - y) log(1 - mu); deviance -2 log L, the saturated log-likelihood being 0):
+    // the fit sums its passes in blocks of rows, and a row lost or counted twice at a block's edge shows.
+    let logLikelihood = 0;
+    for (let i = 0; i < rows; i += 1) {
+      const eta = (sampled.coefficients[0] as number) + (sampled.coefficients[1] as number) * (latency[i] as number) + (sampled.coefficients[2] as number) * (logScale[i] as number);
+      const mu = 1 / (1 + Math.exp(-eta));
+      logLikelihood += successes[i] === 1 ? Math.log(mu) : Math.log(1 - mu);
+    }
+    expect(relativeError(sampled.logLikelihood, logLikelihood)).toBeLessThan(1e-12);
+    expect(relativeError(sampled.deviance, -2 * logLikelihood)).toBeLessThan(1e-12);
   });
 
   it('fits many rows whose sample is separated (a rare level with only hits among the sampled rows) to the estimate from zero coefficients', () => {
