@@ -241,7 +241,7 @@ export function fitBinomial(data: BinomialData, options: BinomialFitOptions = {}
   // reduces the design; its rank is the design's rank, so no separate pass is needed then.
   // Many logit rows start instead from a fit to a systematic sample of them (one full pass fewer);
   // should the weights there lose rank, R's starting values decide.
-  const warmStart = options.start === undefined && linkName === 'logit' && n >= WARM_START_ROWS ? sampleEstimate(kept, successes, trials, priorWeights, options) : null;
+  const warmStart = options.start === undefined && linkName === 'logit' && n >= WARM_START_ROWS ? sampleEstimate(kept, successes, trials, priorWeights, options, exponents) : null;
   let initial = options.start === undefined ? initialPass(kept, rows, link, exponents, warmStart) : null;
   if (warmStart !== null && initial !== null && initial.reduction.qr.rank < columns) initial = initialPass(kept, rows, link, exponents, null);
   const start = options.start ?? initial?.start;
@@ -954,6 +954,7 @@ function glmRows(successes: Float64Array, trials: Float64Array, priorWeights: Fl
  * `converged`. They are within a
  * few standard errors of the full estimate, so Newton steps from there need
  * one pass fewer than from R's starting values; the estimate is the same.
+ * `exponents`: the full design's column scales (see `columnExponents`).
  * Only the iteration of a fit runs on the sample, with the checks that decide
  * a fit's status (rank, separation, a finite covariance), not its summaries:
  * the rows carry weight already (they are the full fit's kept rows).
@@ -964,6 +965,7 @@ function sampleEstimate(
   trials: Float64Array,
   priorWeights: Float64Array,
   options: BinomialFitOptions,
+  exponents: Int32Array,
 ): Float64Array | null {
   const every = Math.max(2, Math.floor(design.rows / WARM_START_SAMPLE));
   const count = Math.ceil(design.rows / every);
@@ -977,7 +979,7 @@ function sampleEstimate(
   const sample: DesignMatrix = { rows: count, columns: design.columns, names: design.names, values };
   const rows = glmRows(pick(successes), pick(trials), pick(priorWeights));
   const link = linkFor('logit');
-  const exponents = columnExponents(sample);
+  // The full design's column scales serve the sample too (they only condition the passes).
   const initial = initialPass(sample, rows, link, exponents, null);
   if (initial.reduction.qr.rank < design.columns) return null;
   const iteration = iterate(sample, rows, link, options.maxIterations ?? 50, WARM_START_TOLERANCE, exponents, undefined, initial);
