@@ -161,11 +161,13 @@ export interface RowColumns {
  * whose scale is one of the first eight distinct scales and whose difficulty
  * code is below eight takes its group from a cell of a flat table indexed
  * by (scale code, difficulty code, k), and adds its counts to the group with
- * no hash and no key check: the cell is the key. A key either always
- * qualifies or never does (the scale codes only grow, and stop at eight),
- * so rows that do not qualify go through the hash table as above and no
- * point is ever in both. About twice as fast as the hash table on a million
- * rows of 300,000 points, mostly fewer cache misses.
+ * no hash and no key check: the cell is the key. Its counts go to a compact
+ * array of two doubles a group (`gridCounts`), added to the records in
+ * `finish`. A key either always qualifies or never does (the scale codes
+ * only grow, and stop at eight), so rows that do not qualify go through the
+ * hash table as above and no point is ever in both. About twice as fast as
+ * the hash table on a million rows of 300,000 points, mostly fewer cache
+ * misses.
  *
  * Groups come in order of first appearance, except that in a batch the new
  * points of rows that went through the hash table come after those of rows
@@ -174,7 +176,9 @@ export interface RowColumns {
  *
  * Cost: O(rows) expected time; memory a table of 4/3 to 8/3 slots of 8 bytes
  * and a record of 5 to 7 doubles per group (reserved for the expected rows,
- * touched only as groups appear), and 4 bytes per row of a batch.
+ * touched only as groups appear), and 4 bytes per row of a batch; with the
+ * direct index, 2 more doubles per group and the cells in use (4 bytes each,
+ * about 1.4 MiB for latencies over 5-230 ms at 15 scale-level pairs).
  */
 export class GroupAccumulator {
   private readonly weightAt: number;
