@@ -934,18 +934,42 @@ function glmRows(successes: Float64Array, trials: Float64Array, priorWeights: Fl
   let unitPriors = true;
   for (let i = 0; i < n && unitPriors; i += 1) unitPriors = priorWeights[i] === 1;
   const weights = unitPriors ? trials : new Float64Array(n);
-  // sum w [y log y + (1 - y) log(1 - y)], no log at y = 0 or 1 where the terms vanish.
+  // sum w [y log y + (1 - y) log(1 - y)], no log at y = 0 or 1 where the terms vanish. Collapsed
+  // attempts are mostly a few trials each, so the bracket of s successes of k <= 64 trials is
+  // computed once per (s, k) and kept in a table (the same value, so the same sum).
+  const table = new Float64Array((SATURATED_TABLE_TRIALS + 1) * (SATURATED_TABLE_TRIALS + 1)).fill(Number.NaN);
   let saturated = 0;
   let totalWeight = 0;
   for (let i = 0; i < n; i += 1) {
-    const proportion = (successes[i] as number) / (trials[i] as number);
-    const weight = (trials[i] as number) * (priorWeights[i] as number);
+    const successCount = successes[i] as number;
+    const trialCount = trials[i] as number;
+    const proportion = successCount / trialCount;
+    const weight = trialCount * (priorWeights[i] as number);
     totalWeight += weight;
     proportions[i] = proportion;
     if (!unitPriors) weights[i] = weight;
-    if (proportion > 0 && proportion < 1) saturated += weight * (proportion * Math.log(proportion) + (1 - proportion) * Math.log1p(-proportion));
+    if (proportion > 0 && proportion < 1) {
+      let term: number;
+      if (trialCount <= SATURATED_TABLE_TRIALS && (trialCount | 0) === trialCount && (successCount | 0) === successCount) {
+        const at = trialCount * (SATURATED_TABLE_TRIALS + 1) + successCount;
+        term = table[at] as number;
+        if (Number.isNaN(term)) {
+          term = saturatedBracket(proportion);
+          table[at] = term;
+        }
+      } else term = saturatedBracket(proportion);
+      saturated += weight * term;
+    }
   }
   return { proportions, weights, saturated, totalWeight };
+}
+
+/** Trials up to this many (whole, with whole successes) take their saturated bracket from {@link glmRows}'s table. */
+const SATURATED_TABLE_TRIALS = 64;
+
+/** y log y + (1 - y) log(1 - y), for 0 < y < 1. */
+function saturatedBracket(proportion: number): number {
+  return proportion * Math.log(proportion) + (1 - proportion) * Math.log1p(-proportion);
 }
 
 /**
