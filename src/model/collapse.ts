@@ -161,9 +161,11 @@ export interface RowColumns {
  * whose scale is one of the first eight distinct scales and whose difficulty
  * code is below eight takes its group from a cell of a flat table indexed
  * by (scale code, difficulty code, k), and adds its counts to the group with
- * no hash and no key check: the cell is the key. Its counts go to a compact
- * array of two doubles a group (`gridCounts`), added to the records in
- * `finish`. A key either always qualifies or never does (the scale codes
+ * no hash and no key check: the cell is the key. With the direct index, the
+ * keys of all groups go to key columns that `finish` hands out as they are
+ * (no copy), and the counts of its groups to a compact array of two doubles
+ * a group (`gridCounts`); the records then hold only the groups the hash
+ * table found. A key either always qualifies or never does (the scale codes
  * only grow, and stop at eight), so rows that do not qualify go through the
  * hash table as above and no point is ever in both. About twice as fast as
  * the hash table on a million rows of 300,000 points, mostly fewer cache
@@ -177,8 +179,9 @@ export interface RowColumns {
  * Cost: O(rows) expected time; memory a table of 4/3 to 8/3 slots of 8 bytes
  * and a record of 5 to 7 doubles per group (reserved for the expected rows,
  * touched only as groups appear), and 4 bytes per row of a batch; with the
- * direct index, 2 more doubles per group and the cells in use (4 bytes each,
- * about 1.4 MiB for latencies over 5-230 ms at 15 scale-level pairs).
+ * direct index, 5 doubles per group (3 of key, 2 of counts; records only for
+ * the groups the hash table found) and the cells in use (4 bytes each, about
+ * 1.4 MiB for latencies over 5-230 ms at 15 scale-level pairs).
  */
 export class GroupAccumulator {
   private readonly weightAt: number;
@@ -205,6 +208,12 @@ export class GroupAccumulator {
    * size, so that the counting loop's random accesses span a third of the memory); added to the records at the end.
    */
   private gridCounts = new Float64Array(0);
+  /**
+   * With the direct index, every group's key as columns (reserved like the records), which `finish` hands out as
+   * they are; records then hold only the keys and counts of the groups the hash table found (`hashedGroups`).
+   */
+  private keys: { latency: Float64Array; scale: Float64Array; difficulty: Float64Array } | null = null;
+  private readonly hashedGroups: number[] = [];
   /** Each row's cell of the direct index in a batch (-1 outside it). */
   private cells = new Int32Array(0);
   /** Rows of a batch that did not qualify for the direct index, gathered for the hash table. */
@@ -233,6 +242,7 @@ export class GroupAccumulator {
     if (plain && (layout.grid ?? (layout.expectedRows ?? 0) >= GRID_MIN_ROWS)) {
       this.grid = new Int32Array(GRID_SCALES * GRID_LEVELS * GRID_STEPS);
       this.gridCounts = new Float64Array(2 * reserved);
+      this.keys = { latency: new Float64Array(reserved), scale: new Float64Array(reserved), difficulty: new Float64Array(reserved) };
     }
   }
 
@@ -338,9 +348,9 @@ export class GroupAccumulator {
     const groupOf = this.groupOf;
     const cells = this.cells;
     readCells(grid, cells, groupOf, count);
-    // Room for every row of the batch as a new group, so that the loop writes new records itself (stride 5: no weight or player).
-    if ((this.groups + count) * 5 > this.records.length) this.growRecords((this.groups + count) * 5);
-    const records = this.records;
+    // Room for every row of the batch as a new group, so that the loop writes new keys itself.
+    const keys = this.keyRoom(this.groups + count);
+    const { latency: keyLatency, scale: keyScale, difficulty: keyDifficulty } = keys;
     let groups = this.groups;
     for (let i = 0; i < count; i += 1) {
       if ((groupOf[i] as number) >= 0) continue;
@@ -352,10 +362,9 @@ export class GroupAccumulator {
         group = groups;
         groups += 1;
         grid[cell] = groups;
-        const at = group * 5;
-        records[at] = latency[i] as number;
-        records[at + 1] = scale[i] as number;
-        records[at + 2] = difficulty[i] as number;
+        keyLatency[group] = latency[i] as number;
+        keyScale[group] = scale[i] as number;
+        keyDifficulty[group] = difficulty[i] as number;
       }
       groupOf[i] = group;
     }
@@ -368,6 +377,21 @@ export class GroupAccumulator {
       this.gridCounts = next;
     }
     addGroupCounts(this.gridCounts, groupOf, successes, attempts, count);
+  }
+
+  /** The key columns, with room for at least `groups` groups (grown by doubling, keeping those held). */
+  private keyRoom(groups: number): { latency: Float64Array; scale: Float64Array; difficulty: Float64Array } {
+    const keys = this.keys as { latency: Float64Array; scale: Float64Array; difficulty: Float64Array };
+    if (groups <= keys.latency.length) return keys;
+    let size = keys.latency.length * 2;
+    while (size < groups) size *= 2;
+    const grow = (column: Float64Array) => {
+      const next = new Float64Array(size);
+      next.set(column);
+      return next;
+    };
+    this.keys = { latency: grow(keys.latency), scale: grow(keys.scale), difficulty: grow(keys.difficulty) };
+    return this.keys;
   }
 
   /** Records for at least `length` entries, keeping those held. */
@@ -532,20 +556,67 @@ export class GroupAccumulator {
     records[base + 2] = columns.difficulty[i] as number;
     if (this.hasWeight) records[base + this.weightAt] = columns.weight?.[i] ?? 1;
     if (this.hasPlayer) records[base + this.playerAt] = columns.player?.[i] ?? 0;
+    if (this.keys !== null) {
+      // With the direct index, the key columns hold every group (see `keys`).
+      const keys = this.keyRoom(group + 1);
+      keys.latency[group] = records[base] as number;
+      keys.scale[group] = records[base + 1] as number;
+      keys.difficulty[group] = records[base + 2] as number;
+      this.hashedGroups.push(group);
+    }
     this.groups = group + 1;
     return group;
   }
 
   /** The groups as columns, in order; `difficultyValue` maps a stored difficulty (a level code) to the value to report. */
   finish(difficultyValue?: (stored: number) => number): CollapsedTrials {
+    const collapsed = this.keys === null ? this.finishRecords(difficultyValue) : this.finishKeys(this.keys, difficultyValue);
+    this.records = new Float64Array(0);
+    this.table = new Int32Array(0);
+    this.groupOf = new Int32Array(0);
+    this.grid = null;
+    this.cells = new Int32Array(0);
+    this.gridCounts = new Float64Array(0);
+    this.keys = null;
+    this.rest = null;
+    return collapsed;
+  }
+
+  /** `finish` with the direct index: the key columns as they are, the counts from `gridCounts` and, for the groups the hash table found, the records. */
+  private finishKeys(keys: { latency: Float64Array; scale: Float64Array; difficulty: Float64Array }, difficultyValue?: (stored: number) => number): CollapsedTrials {
+    const groups = this.groups;
+    const gridCounts = this.gridCounts;
+    const successes = new Float64Array(groups);
+    const attempts = new Float64Array(groups);
+    const counted = Math.min(groups, gridCounts.length >> 1);
+    for (let g = 0; g < counted; g += 1) {
+      successes[g] = gridCounts[2 * g] as number;
+      attempts[g] = gridCounts[2 * g + 1] as number;
+    }
+    for (const g of this.hashedGroups) {
+      successes[g] = (successes[g] as number) + (this.records[g * 5 + 3] as number);
+      attempts[g] = (attempts[g] as number) + (this.records[g * 5 + 4] as number);
+    }
+    const difficulty = keys.difficulty.subarray(0, groups);
+    if (difficultyValue !== undefined) for (let g = 0; g < groups; g += 1) difficulty[g] = difficultyValue(difficulty[g] as number);
+    return {
+      rows: groups,
+      latency: keys.latency.subarray(0, groups),
+      scale: keys.scale.subarray(0, groups),
+      difficulty,
+      player: null,
+      successes,
+      attempts,
+      weight: new Float64Array(groups).fill(1),
+      sourceRows: this.sourceRows,
+    };
+  }
+
+  /** `finish` from the records. */
+  private finishRecords(difficultyValue?: (stored: number) => number): CollapsedTrials {
     const groups = this.groups;
     const stride = this.stride;
     const records = this.records;
-    const gridCounts = this.gridCounts;
-    for (let g = 0; g < groups && 2 * g < gridCounts.length; g += 1) {
-      records[g * stride + 3] = (records[g * stride + 3] as number) + (gridCounts[2 * g] as number);
-      records[g * stride + 4] = (records[g * stride + 4] as number) + (gridCounts[2 * g + 1] as number);
-    }
     const column = (offset: number): Float64Array => {
       const target = new Float64Array(groups);
       for (let g = 0; g < groups; g += 1) target[g] = records[g * stride + offset] as number;
@@ -569,13 +640,6 @@ export class GroupAccumulator {
       weight: this.hasWeight ? column(this.weightAt) : new Float64Array(groups).fill(1),
       sourceRows: this.sourceRows,
     };
-    this.records = new Float64Array(0);
-    this.table = new Int32Array(0);
-    this.groupOf = new Int32Array(0);
-    this.grid = null;
-    this.cells = new Int32Array(0);
-    this.gridCounts = new Float64Array(0);
-    this.rest = null;
     return collapsed;
   }
 }

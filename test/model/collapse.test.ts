@@ -142,6 +142,17 @@ describe('GroupAccumulator direct index (latency on a 0.01 ms grid)', () => {
     expect(differences(expected, withoutGrid)).toEqual([]);
   });
 
+  it('grows its key columns and counts past the rows it expected (a low estimate from the file size)', () => {
+    // 20,000 rows over about 16,000 points against an expected 10 rows (4,096 groups reserved).
+    const trials = seededTrials(20_000, false, false);
+    const accumulator = new GroupAccumulator({ weight: false, player: false, merge: true, expectedRows: 10, grid: true });
+    const codes = trials.difficulty.kind === 'levels' ? trials.difficulty.codes : trials.difficulty.values;
+    accumulator.addRows({ latency: trials.latency, scale: trials.scale, difficulty: codes, weight: null, player: null, successes: trials.successes, attempts: trials.attempts }, trials.rows);
+    const collapsed = accumulator.finish();
+    expect(collapsed.rows).toBeGreaterThan(4096);
+    expect(differences(naiveGroups(trials), groupsOf(collapsed))).toEqual([]);
+  });
+
   it('treats -0 and 0 as one point, for latency and scale', () => {
     const trials: Trials = {
       file: 'zeros.csv',
