@@ -7,7 +7,9 @@
 import { z } from 'zod';
 import { TERM_NAMES } from '../model/terms.js';
 
-export const MODEL_FORMAT = 'lagparity/model@1';
+import { MODEL_FORMAT } from './model-format.js';
+
+export { MODEL_FORMAT };
 
 const finite = z.number({ error: 'a finite number' });
 

@@ -1,81 +1,16 @@
 /**
- * Compiling a model file: validate once, precompute what every prediction
- * needs, and hand back a branded object the solver trusts without checking
- * again.
- *
- * Because no term is quadratic in latency or scale, at a fixed difficulty the
- * linear predictor is
- *
- *     linearPredictor(latency, s) = (a0 + a1 latency) + (b0 + b1 latency) h(s)
- *
- * with h(s) = log s or s. `lineAt(difficulty)` returns those four numbers;
- * the solver works from them alone.
+ * Compiling a model file: validate it against the model file's schema, then
+ * compile it (`compiled-model.ts`): check the terms, coefficients and
+ * covariance, precompute what every prediction needs, and hand back a
+ * branded object the solver trusts without checking again.
  */
-import { type Issue, type Result, at, error, fail, ok, show } from '../issues.js';
-import { type ModelFile, modelFileSchema } from '../formats/model-file.js';
+import { type Result, fail } from '../issues.js';
+import { modelFileSchema } from '../formats/model-file.js';
 import { fromZodIssues } from '../formats/zod-issues.js';
-import { type Link, linkFor } from './links.js';
-import { semiDefiniteCholesky } from '../numeric/semidefinite-cholesky.js';
-import { type PredictorLine, predictorLine } from './predictor-line.js';
-import { type DesignColumn, type DifficultyCoding, checkTerms, designColumns, scaleForm } from './terms.js';
+import { type CompiledModel, compileModelFile } from './compiled-model.js';
 
+export { type CompiledModel, compileModelFile } from './compiled-model.js';
 export { type PredictorLine, predictorLine } from './predictor-line.js';
-
-declare const compiledBrand: unique symbol;
-
-export interface CompiledModel {
-  readonly [compiledBrand]: true;
-  readonly link: Link;
-  readonly scaleForm: 'log' | 'raw' | 'none';
-  readonly columns: readonly DesignColumn[];
-  readonly coefficients: Float64Array;
-  /** Row-major covariance of the coefficients. */
-  readonly covariance: Float64Array;
-  readonly difficulty: DifficultyCoding;
-  readonly training: ModelFile['training'];
-  readonly source: ModelFile;
-  /** The predictor line at a difficulty (a number or a level name), or an issue if the model has no such difficulty. */
-  lineAt(difficulty: number | string): Result<PredictorLine>;
-}
-
-/** Relative tolerance for the covariance symmetry check. */
-const SYMMETRY_TOLERANCE = 1e-8;
-
-function checkCoefficients(model: ModelFile, columns: readonly DesignColumn[], file: string | undefined): Issue[] {
-  const issues: Issue[] = [];
-  const expected = columns.map((column) => column.name);
-  const { names, estimates, covariance } = model.coefficients;
-  if (names.length !== expected.length || names.some((name, index) => name !== expected[index])) {
-    issues.push(error('terms_mismatch', at(file, 'coefficients.names'), `\`coefficients.names\` requires the columns of the terms in order, ${show(expected.join(','))}, got ${show(names.join(','))}`));
-  }
-  if (estimates.length !== names.length) {
-    issues.push(error('terms_mismatch', at(file, 'coefficients.estimates'), `\`coefficients.estimates\` requires one estimate per name (${names.length}), got ${estimates.length}`));
-  }
-  const size = estimates.length;
-  if (covariance.length !== size || covariance.some((row) => row.length !== size)) {
-    issues.push(error('bad_covariance', at(file, 'coefficients.covariance'), `\`coefficients.covariance\` requires a ${size} x ${size} matrix, got ${covariance.length} rows of lengths ${show(covariance.map((row) => row.length).join(','))}`));
-    return issues;
-  }
-  const flat = new Float64Array(size * size);
-  for (let row = 0; row < size; row += 1) {
-    for (let column = 0; column < size; column += 1) flat[row * size + column] = covariance[row]?.[column] ?? 0;
-  }
-  for (let row = 0; row < size; row += 1) {
-    for (let column = row + 1; column < size; column += 1) {
-      const upper = flat[row * size + column] ?? 0;
-      const lowerValue = flat[column * size + row] ?? 0;
-      const scale = Math.max(Math.abs(upper), Math.abs(lowerValue), Number.MIN_VALUE);
-      if (Math.abs(upper - lowerValue) > SYMMETRY_TOLERANCE * scale) {
-        issues.push(error('bad_covariance', at(file, `coefficients.covariance[${row}][${column}]`), `the covariance requires a symmetric matrix, got ${upper} here and ${lowerValue} at [${column}][${row}]`));
-        return issues;
-      }
-    }
-  }
-  if (!semiDefiniteCholesky(flat, size).positiveSemiDefinite) {
-    issues.push(error('bad_covariance', at(file, 'coefficients.covariance'), 'the covariance requires a positive semi-definite matrix (variances cannot be negative), got one with a negative eigenvalue'));
-  }
-  return issues;
-}
 
 /**
  * Validate a model document (already parsed from JSON) and compile it.
@@ -84,30 +19,5 @@ function checkCoefficients(model: ModelFile, columns: readonly DesignColumn[], f
 export function compileModel(input: unknown, file?: string): Result<CompiledModel> {
   const parsed = modelFileSchema.safeParse(input);
   if (!parsed.success) return fail(fromZodIssues(parsed.error.issues, input, file));
-  const model = parsed.data;
-  const termsChecked = checkTerms(model.terms, at(file, 'terms'));
-  if (!termsChecked.ok) return fail(termsChecked.issues);
-  const columns = designColumns(model.terms, model.difficulty);
-  const issues = checkCoefficients(model, columns, file);
-  if (issues.length > 0) return fail(issues);
-  const coefficients = Float64Array.from(model.coefficients.estimates);
-  const size = coefficients.length;
-  const covariance = new Float64Array(size * size);
-  model.coefficients.covariance.forEach((row, rowIndex) => row.forEach((value, columnIndex) => (covariance[rowIndex * size + columnIndex] = value)));
-  const coding = model.difficulty;
-  const form = scaleForm(model.terms);
-  const compiled = {
-    link: linkFor(model.link),
-    scaleForm: form,
-    columns,
-    coefficients,
-    covariance,
-    difficulty: coding,
-    training: model.training,
-    source: model,
-    lineAt(difficulty: number | string): Result<PredictorLine> {
-      return predictorLine(columns, coefficients, coding, difficulty);
-    },
-  };
-  return ok(compiled as unknown as CompiledModel);
+  return compileModelFile(parsed.data, file);
 }

@@ -1,11 +1,16 @@
 /**
  * `toModelFile(report, provenance)`: the `lagparity/model@1` document of a
- * converged binomial fit, checked against the model-file schema and compiled
- * before it is returned, so what is written is what `balance` will accept.
+ * converged binomial fit, compiled before it is returned (`compileModelFile`:
+ * terms, coefficients, a positive semi-definite covariance) with every number
+ * finite, so what is written is what `balance` will accept. Its shape is the
+ * schema's by its type; the schema itself (zod, about 40 ms to load) is not
+ * loaded to check it again, and the tests check the documents `fit` writes
+ * against it.
  */
 import { type Result, error, fail, ok } from '../issues.js';
-import { MODEL_FORMAT, type ModelFile } from '../formats/model-file.js';
-import { compileModel } from './compile.js';
+import type { ModelFile } from '../formats/model-file.js';
+import { MODEL_FORMAT } from '../formats/model-format.js';
+import { compileModelFile } from './compiled-model.js';
 import type { FitReport } from './fit-model.js';
 
 /** Where the fitted data came from. */
@@ -86,7 +91,22 @@ export function toModelFile(report: FitReport, provenance: ModelProvenance): Res
       ...(provenance.created_by === undefined ? {} : { created_by: provenance.created_by }),
     },
   };
-  const compiled = compileModel(JSON.parse(JSON.stringify(model)) as unknown, provenance.file);
+  const unwritable = nonFiniteAt(model, '');
+  if (unwritable !== null) {
+    return fail([error('not_writable', `${provenance.file}:${unwritable}`, `a model file requires finite numbers (JSON has no NaN or Infinity), got a non-finite value at \`${unwritable}\``)]);
+  }
+  const compiled = compileModelFile(model, provenance.file);
   if (!compiled.ok) return fail(compiled.issues);
   return ok(model);
+}
+
+/** The path of the first number in `value` that JSON cannot hold (NaN, Infinity), or null. */
+function nonFiniteAt(value: unknown, path: string): string | null {
+  if (typeof value === 'number') return Number.isFinite(value) ? null : path || '(document)';
+  if (value === null || typeof value !== 'object') return null;
+  for (const [key, entry] of Object.entries(value)) {
+    const found = nonFiniteAt(entry, path === '' ? key : `${path}.${key}`);
+    if (found !== null) return found;
+  }
+  return null;
 }

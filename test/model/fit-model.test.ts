@@ -67,6 +67,13 @@ describe('fitModel() on the demo playtest', () => {
     expect(model.provenance).toEqual({ file: 'playtest-trials.csv', rows: 3240, sha256: 'a'.repeat(64) });
   });
 
+  it('writes no model file with a number JSON cannot hold, and names where it is', () => {
+    const broken = { ...report, statistics: { ...(report.statistics as NonNullable<typeof report.statistics>), aic: Number.NaN } };
+    const written = toModelFile(broken, { file: 'playtest-trials.csv', rows: demo.rows, sha256: 'a'.repeat(64) });
+    expect(written.ok).toBe(false);
+    if (!written.ok) expect(written.issues[0]).toMatchObject({ code: 'not_writable', location: 'playtest-trials.csv:fit.statistics.aic' });
+  });
+
   it('is what the bundled matches/model.json holds: a real fit of the bundled trials', () => {
     const bundled = JSON.parse(readFileSync(join(MATCHES, 'model.json'), 'utf8')) as {
       coefficients: { estimates: number[]; covariance_kind: string };
