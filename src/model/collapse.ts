@@ -207,7 +207,7 @@ export class GroupAccumulator {
    * Successes and attempts of the groups the direct index counted, two doubles a group (a third of a record's
    * size, so that the counting loop's random accesses span a third of the memory); added to the records at the end.
    */
-  private gridCounts = new Float64Array(0);
+  private gridCounts: Float64Array = new Float64Array(0);
   /**
    * With the direct index, every group's key as columns (reserved like the records), which `finish` hands out as
    * they are; records then hold only the keys and counts of the groups the hash table found (`hashedGroups`).
@@ -369,13 +369,7 @@ export class GroupAccumulator {
       groupOf[i] = group;
     }
     this.groups = groups;
-    if (2 * groups > this.gridCounts.length) {
-      let size = Math.max(1 << 13, this.gridCounts.length * 2);
-      while (size < 2 * groups) size *= 2;
-      const next = new Float64Array(size);
-      next.set(this.gridCounts);
-      this.gridCounts = next;
-    }
+    this.gridCounts = withRoom(this.gridCounts, 2 * groups);
     addGroupCounts(this.gridCounts, groupOf, successes, attempts, count);
   }
 
@@ -383,25 +377,10 @@ export class GroupAccumulator {
   private keyRoom(groups: number): { latency: Float64Array; scale: Float64Array; difficulty: Float64Array } {
     const keys = this.keys as { latency: Float64Array; scale: Float64Array; difficulty: Float64Array };
     if (groups <= keys.latency.length) return keys;
-    let size = keys.latency.length * 2;
-    while (size < groups) size *= 2;
-    const grow = (column: Float64Array) => {
-      const next = new Float64Array(size);
-      next.set(column);
-      return next;
-    };
-    this.keys = { latency: grow(keys.latency), scale: grow(keys.scale), difficulty: grow(keys.difficulty) };
+    this.keys = { latency: withRoom(keys.latency, groups), scale: withRoom(keys.scale, groups), difficulty: withRoom(keys.difficulty, groups) };
     return this.keys;
   }
 
-  /** Records for at least `length` entries, keeping those held. */
-  private growRecords(length: number): void {
-    let size = this.records.length * 2;
-    while (size < length) size *= 2;
-    const next = new Float64Array(size);
-    next.set(this.records);
-    this.records = next;
-  }
 
   /** The rows `gridCells` marked -1 (still -1 in `groupOf`), in order, as columns of their own (weights and players are never on this path). */
   private gatherRest(columns: RowColumns, count: number, rest: number): RowColumns {
@@ -549,7 +528,7 @@ export class GroupAccumulator {
     const group = this.groups;
     const stride = this.stride;
     const base = group * stride;
-    if (base + stride > this.records.length) this.growRecords(base + stride);
+    this.records = withRoom(this.records, base + stride);
     const records = this.records;
     records[base] = columns.latency[i] as number;
     records[base + 1] = columns.scale[i] as number;
@@ -698,6 +677,16 @@ function readCells(grid: Int32Array, cells: Int32Array, groupOf: Int32Array, cou
     const cell = cells[i] as number;
     groupOf[i] = cell < 0 ? -1 : (grid[cell] as number) - 1;
   }
+}
+
+/** `array` itself when it holds at least `length` entries, else a copy grown by doubling (at least 8,192 entries). */
+function withRoom(array: Float64Array, length: number): Float64Array {
+  if (length <= array.length) return array;
+  let size = Math.max(1 << 13, array.length * 2);
+  while (size < length) size *= 2;
+  const next = new Float64Array(size);
+  next.set(array);
+  return next;
 }
 
 /** The direct index's counts: row i's to group `groupOf[i]` (two doubles a group), rows marked -1 skipped (a loop without unpredictable branches). */
