@@ -60,9 +60,14 @@ function block(hash: number, word: number): number {
   return Math.imul(hash ^ word, 0x01000193);
 }
 
+/** Put a covariate's bits in `scratchWords` (low word first), -0 as 0: the same covariate. */
+function loadBits(value: number): void {
+  scratch[0] = value === 0 ? 0 : value;
+}
+
 /** Mix one double's bits (both words) into the hash. */
 function mix(hash: number, value: number): number {
-  scratch[0] = value === 0 ? 0 : value; // -0 and 0 are the same covariate
+  loadBits(value);
   return block(block(hash, scratchWords[0] as number), scratchWords[1] as number);
 }
 
@@ -113,7 +118,7 @@ const SCALE_SLOTS = 64;
  * slot, rather than a search of the codes, has no branch that depends on which scale a row has.
  */
 function scaleSlot(value: number): number {
-  scratch[0] = value === 0 ? 0 : value;
+  loadBits(value);
   return Math.imul((scratchWords[1] as number) ^ Math.imul(scratchWords[0] as number, 0x85ebca6b), 0x9e3779b1) >>> 26;
 }
 
@@ -205,7 +210,8 @@ export class GroupAccumulator {
   private gridScaleCount = 0;
   /**
    * Successes and attempts of the groups the direct index counted, two doubles a group (a third of a record's
-   * size, so that the counting loop's random accesses span a third of the memory); added to the records at the end.
+   * size, so that the counting loop's random accesses span a third of the memory); `finishKeys` turns them into the
+   * count columns.
    */
   private gridCounts: Float64Array = new Float64Array(0);
   /**
@@ -380,7 +386,6 @@ export class GroupAccumulator {
     this.keys = { latency: withRoom(keys.latency, groups), scale: withRoom(keys.scale, groups), difficulty: withRoom(keys.difficulty, groups) };
     return this.keys;
   }
-
 
   /** The rows `gridCells` marked -1 (still -1 in `groupOf`), in order, as columns of their own (weights and players are never on this path). */
   private gatherRest(columns: RowColumns, count: number, rest: number): RowColumns {
@@ -573,8 +578,8 @@ export class GroupAccumulator {
       attempts[g] = gridCounts[2 * g + 1] as number;
     }
     for (const g of this.hashedGroups) {
-      successes[g] = (successes[g] as number) + (this.records[g * 5 + 3] as number);
-      attempts[g] = (attempts[g] as number) + (this.records[g * 5 + 4] as number);
+      successes[g] = (successes[g] as number) + (this.records[g * this.stride + 3] as number);
+      attempts[g] = (attempts[g] as number) + (this.records[g * this.stride + 4] as number);
     }
     const difficulty = keys.difficulty.subarray(0, groups);
     if (difficultyValue !== undefined) for (let g = 0; g < groups; g += 1) difficulty[g] = difficultyValue(difficulty[g] as number);
