@@ -20,6 +20,7 @@ import { type LobbySolve, solveLobby } from './solve-lobby.js';
 import { BINDINGS, type Binding, type ScaleForm, termOf } from './solve-scales.js';
 import { type DuelView, duelView } from './views/duel-view.js';
 import { type ExploitView, exploitView } from './views/exploit-view.js';
+import { orderingFigures } from './ordering.js';
 import { type UncertaintyOptions, type UncertaintyView, uncertaintyView } from './views/uncertainty-view.js';
 import { PLAIN, SQUARES, SolveWorkspace, orderFreeSum } from './workspace.js';
 
@@ -61,6 +62,12 @@ export interface LobbySummary {
   readonly team_gap_after: number | null;
   readonly assistance: number;
   readonly eligible_players: number;
+  /** The largest amount by which an eligible player's expected hit probability after ends above that of a better-connected player (higher before); 0 if nobody does. */
+  readonly largest_overtake: number;
+  /** The largest change one quantisation step makes to an eligible player's expected hit probability at their scale (0 without a step): the bound on overtakes with point latencies, and the most a player gains from a measured latency just high enough to move them one step up. */
+  readonly step_gain: number;
+  /** The lowest scale the ratio forces on every eligible player (the floor without a ratio). */
+  readonly lift: number;
 }
 
 /** The report views, present when asked for in `BalanceOptions.views`. */
@@ -154,7 +161,7 @@ function trainingWarnings(players: readonly PlayerBalance[], model: CompiledMode
   return warnings ?? [];
 }
 
-function playersOf(lobby: LobbyFile, model: CompiledModel, solved: LobbySolve): PlayerBalance[] {
+function playersOf(lobby: LobbyFile, model: CompiledModel, rules: CompiledRules, solved: LobbySolve): PlayerBalance[] {
   const { solution, slots, estimates } = solved;
   const target = solution.target;
   const players: PlayerBalance[] = new Array<PlayerBalance>(lobby.players.length);
@@ -162,8 +169,9 @@ function playersOf(lobby: LobbyFile, model: CompiledModel, solved: LobbySolve): 
     const player = lobby.players[index] as LobbyFile['players'][number];
     const slot = slots[index] as number;
     if (slot < 0) {
-      // Ineligible: reported at scale 1, with the prediction averaged over all their samples.
-      const samples = typeof player.latency_ms === 'number' ? [player.latency_ms] : player.latency_ms;
+      // Ineligible: reported at scale 1, with the prediction the rules' estimator gives (averaged over the samples for
+      // all_samples, at the estimated latency for a robust estimator), as for an eligible player.
+      const samples = typeof player.latency_ms === 'number' || rules.latency_estimator !== 'all_samples' ? [estimates[index] as number] : player.latency_ms;
       let sum = 0;
       const { base, basePerMs, scaleSlope, scaleSlopePerMs } = solved.line;
       const unitTerm = termOf(model.scaleForm as ScaleForm, 1);
@@ -216,7 +224,7 @@ export function balanceLobby(lobby: LobbyFile, model: CompiledModel, rules: Comp
   if (!solvedResult.ok) return { status: 'rejected', match_id: lobby.match_id, issues: solvedResult.issues, warnings: [] };
   const solved = solvedResult.value;
   const { solution } = solved;
-  const players = playersOf(lobby, model, solved);
+  const players = playersOf(lobby, model, rules, solved);
   const count = solution.count;
   let worstGap = -Infinity;
   let lowestBefore = Infinity;
@@ -243,6 +251,8 @@ export function balanceLobby(lobby: LobbyFile, model: CompiledModel, rules: Comp
     team_gap_after: teams.length < 2 ? null : spread(teams, (team) => team.mean_after),
     assistance: solution.assistance,
     eligible_players: count,
+    ...orderingFigures(count, solution.before, solution.after, solution.scales, solution.step, rules.scale_floor, solved.curves, model.link, model.scaleForm as ScaleForm, sharedWorkspace.order),
+    lift: solution.lift,
   };
   const result = {
     status: worstGap > rules.accepted_gap ? ('capped' as const) : ('balanced' as const),

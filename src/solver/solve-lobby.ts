@@ -11,7 +11,7 @@ import type { CompiledModel, PredictorLine } from '../model/compile.js';
 import { quantileSorted } from '../stats/quantile.js';
 import type { CompiledRules } from './rules.js';
 import { type CurveSet, smallestSlope } from './player-curve.js';
-import { type ScaleForm, type ScaleSolution, expectedBefore, needsOrder, solveScales, termOf } from './solve-scales.js';
+import { type ScaleForm, type ScaleSolution, expectedBefore, solveScales, termOf } from './solve-scales.js';
 import { SolveWorkspace } from './workspace.js';
 
 /** Per-player arrays are indexed as documented and may be longer than the lobby (they live in a `SolveWorkspace`). */
@@ -24,7 +24,6 @@ export interface LobbySolve {
   /** Per eligible slot: the lobby player's index. */
   readonly eligible: Int32Array;
   readonly curves: CurveSet;
-  readonly order: Int32Array | null;
   readonly solution: ScaleSolution;
 }
 
@@ -126,24 +125,16 @@ export function solveLobby(lobby: LobbyFile, model: CompiledModel, line: Predict
     target = -Infinity;
     for (let slot = 0; slot < eligibleCount; slot += 1) if ((before[slot] as number) > target) target = before[slot] as number;
   }
-  const order = needsOrder(curves, rules, line, form) ? bestConnectedOrder(before, estimates, eligible, lobby, workspace.order.subarray(0, eligibleCount)) : null;
-  const solved = solveScales(curves, before, target, model.link, form, rules, order, line, workspace);
-  if (!solved.ok) return fail(solved.issues);
-  return ok({ line, estimates, slots, eligible, curves, order, solution: solved.value });
+  const ids: string[] = new Array<string>(eligibleCount);
+  for (let slot = 0; slot < eligibleCount; slot += 1) ids[slot] = (players[eligible[slot] as number] as LobbyFile['players'][number]).id;
+  const solved = solveScales({ curves, before, target, link: model.link, form, rules, ids }, workspace);
+  if (!solved.ok) return fail(solved.issues.map((issue) => relocate(issue, eligible)));
+  return ok({ line, estimates, slots, eligible, curves, solution: solved.value });
 }
 
-/** Eligible slots from best-connected to worst: highest unscaled performance first, then lowest latency estimate, then id. */
-function bestConnectedOrder(before: Float64Array, estimates: Float64Array, eligible: Int32Array, lobby: LobbyFile, order: Int32Array): Int32Array {
-  for (let slot = 0; slot < order.length; slot += 1) order[slot] = slot;
-  return order.sort((left, right) => {
-    const byPerformance = (before[right] as number) - (before[left] as number);
-    if (byPerformance !== 0) return byPerformance;
-    const leftIndex = eligible[left] as number;
-    const rightIndex = eligible[right] as number;
-    const byLatency = (estimates[leftIndex] as number) - (estimates[rightIndex] as number);
-    if (byLatency !== 0) return byLatency;
-    const leftId = (lobby.players[leftIndex] as LobbyFile['players'][number]).id;
-    const rightId = (lobby.players[rightIndex] as LobbyFile['players'][number]).id;
-    return leftId < rightId ? -1 : leftId > rightId ? 1 : 0;
-  });
+/** An issue located at an eligible slot (`players[slot]`) moved to the lobby player's index. */
+function relocate(issue: Issue, eligible: Int32Array): Issue {
+  const match = /^players\[(\d+)\]$/.exec(issue.location);
+  if (match === null) return issue;
+  return { ...issue, location: `players[${eligible[Number(match[1])] as number}]` };
 }

@@ -1,35 +1,26 @@
 /**
- * `solveScalesInto(model, difficulty, latencies, rules, out)`: the bulk fast
- * path for matchmakers with one latency value per player. It solves one lobby
- * (the whole `latencies` array) with the same rules and the same result as
- * `balanceLobby` (scales only: no labels, no summary), writing the scales
- * into `out`.
+ * `solveScalesInto(model, difficulty, latencies, rules, out)`: the bulk path
+ * for matchmakers with one latency value per player. It solves one lobby
+ * (the whole `latencies` array) to the same answer as `balanceLobby`
+ * (docs/method.md, section 3), writing only the scales into `out`: no
+ * labels, no performances after, no summary, and no allocation per call
+ * beyond what a larger lobby than any before needs.
  *
- * Method: with a point latency the linear predictor is affine in the scale
- * term, so the scale that reaches a level L is closed form,
+ * The players have no ids here, so the one tie-break the definition leaves to
+ * ids (identical curves, a budget that pays a step for one of them only)
+ * goes to the lower index. Ineligible players (latency above the limit) get
+ * scale 1, as in `balanceLobby`.
  *
- *     h(s) = (g(L) - (a0 + a1 latency)) / (b0 + b1 latency),
- *
- * and g(L) is computed once per level: no inverse link per player at all.
- * Floor, soft cap, hard cap and the ratio lift are a pass each; a budget
- * bisects on L (about 50 passes); rounding to the grid and the soft cap's
- * order walk work on a sorted copy of the latencies (a player's scale depends
- * on their latency alone), kept in a scratch buffer that grows once and is
- * reused, so no call allocates per player.
- *
- * Ineligible players (latency above the limit) get scale 1, as in
- * `balanceLobby`.
- *
- * Cost: O(n) for the plain case (one exp per player in log form); O(n log n)
- * with rounding or a soft cap (a native sort of the latencies); x 50 with a
- * binding budget.
+ * Cost: as `balanceLobby`'s solve: O(n) for the common case (one closed-form
+ * inverse per player), more with a binding budget (see solve-scales.ts).
  */
 import { type Issue, error, show } from '../issues.js';
-import type { CompiledModel, PredictorLine } from '../model/compile.js';
+import type { CompiledModel } from '../model/compile.js';
 import type { CompiledRules } from './rules.js';
 import { quantileSorted } from '../stats/quantile.js';
 import type { CurveSet } from './player-curve.js';
-import { expectedBefore, gridDown, searchLimit, softCapMayOverCompensate, solveScales } from './solve-scales.js';
+import { expectedBefore, solveScales } from './solve-scales.js';
+import { SolveWorkspace } from './workspace.js';
 
 export type BulkSolveResult =
   | {
@@ -42,65 +33,7 @@ export type BulkSolveResult =
     }
   | { readonly status: 'rejected'; readonly issues: readonly Issue[] };
 
-let sortedScratch = new Float64Array(0);
-let scaleScratch = new Float64Array(0);
-
-interface Bulk {
-  readonly latencies: Float64Array;
-  readonly out: Float64Array;
-  readonly rules: CompiledRules;
-  readonly line: PredictorLine;
-  readonly link: CompiledModel['link'];
-  readonly logForm: boolean;
-  readonly limitLatency: number;
-  readonly searchLimit: number;
-  readonly floorTerm: number;
-  readonly highTerm: number;
-}
-
-/** Fill `out` at a level (granted, then lifted); returns the assistance. One pass without a ratio limit, two with. */
-function fillAt(bulk: Bulk, linked: number): number {
-  const { latencies, out, rules, limitLatency, line, logForm, floorTerm, highTerm } = bulk;
-  const count = latencies.length;
-  const { base, basePerMs, scaleSlope, scaleSlopePerMs } = line;
-  const floor = rules.scale_floor;
-  const floorWithin = floor * (1 + 1e-12);
-  const limit = bulk.searchLimit;
-  const cap = rules.scale_cap;
-  const soft = rules.soft_cap !== null;
-  const softAbove = rules.soft_cap === null ? Infinity : rules.soft_cap.above;
-  const softFraction = rules.soft_cap === null ? 1 : rules.soft_cap.fraction;
-  let largest = -Infinity;
-  let assistance = 0;
-  for (let index = 0; index < count; index += 1) {
-    const latency = latencies[index] as number;
-    if (latency > limitLatency) {
-      out[index] = 1;
-      continue;
-    }
-    const term = (linked - (base + basePerMs * latency)) / (scaleSlope + scaleSlopePerMs * latency);
-    let desired = !(term > floorTerm) ? floor : !(term < highTerm) ? limit : logForm ? Math.exp(term) : term;
-    if (desired < floorWithin) desired = floor;
-    else if (desired > limit) desired = limit;
-    // The soft cap, then the hard cap (softCapped in solve-scales.ts, inlined).
-    let granted = soft && desired > softAbove ? softAbove + softFraction * (desired - softAbove) : desired;
-    if (granted > cap) granted = cap;
-    out[index] = granted;
-    if (granted > largest) largest = granted;
-    if (granted > 1) assistance += granted - 1;
-  }
-  const ratio = rules.max_scale_ratio;
-  if (ratio === null) return assistance;
-  const lift = Math.max(floor, largest / ratio);
-  assistance = 0;
-  for (let index = 0; index < count; index += 1) {
-    if ((latencies[index] as number) > limitLatency) continue;
-    const scale = (out[index] as number) > lift ? (out[index] as number) : lift;
-    out[index] = scale;
-    if (scale > 1) assistance += scale - 1;
-  }
-  return assistance;
-}
+const bulkWorkspace = new SolveWorkspace();
 
 /**
  * Solve one lobby of point latencies into `out` (same length as
@@ -155,145 +88,34 @@ export function solveScalesInto(model: CompiledModel, difficulty: number | strin
   const unitTerm = logForm ? 0 : 1;
   const predictionAt = (latency: number) => link.inverse(line.base + line.basePerMs * latency + (line.scaleSlope + line.scaleSlopePerMs * latency) * unitTerm);
   const spec = rules.target;
+  // The best-connected player's prediction: the prediction is monotone in latency at scale 1, so it is at an extreme.
   const target =
     spec.kind === 'fixed' ? spec.probability : spec.kind === 'reference_latency' ? predictionAt(spec.latency_ms) : Math.max(predictionAt(lowest), predictionAt(highest));
-  const limit = searchLimit(rules);
-  const bulk: Bulk = {
-    latencies,
-    out,
-    rules,
-    line,
-    link,
-    logForm,
-    limitLatency,
-    searchLimit: limit,
-    floorTerm: logForm ? Math.log(rules.scale_floor) : rules.scale_floor,
-    highTerm: logForm ? Math.log(limit) : limit,
-  };
-  let level = target;
-  let assistance = fillAt(bulk, link.link(target));
-  const budget = rules.assistance_budget;
-  if (budget !== null && assistance > budget) {
-    // E at the floor is affine-then-link in latency: its smallest value is at an extreme.
-    const floorTerm = bulk.floorTerm;
-    const atFloor = (latency: number) => link.inverse(line.base + line.basePerMs * latency + (line.scaleSlope + line.scaleSlopePerMs * latency) * floorTerm);
-    let low = Math.min(target, atFloor(lowest), atFloor(highest));
-    if (fillAt(bulk, link.link(low)) > budget) {
-      return {
-        status: 'rejected',
-        issues: [error('budget_below_floor', 'rules.assistance_budget', `\`assistance_budget\` requires at least what the floor alone costs in this lobby, ${eligible} x (${rules.scale_floor} - 1) = ${eligible * Math.max(0, rules.scale_floor - 1)}, got ${budget}`)],
-      };
-    }
-    let high = target;
-    for (let iteration = 0; iteration < 200 && high - low > 1e-15; iteration += 1) {
-      const middle = 0.5 * (low + high);
-      if (middle <= low || middle >= high) break;
-      if (fillAt(bulk, link.link(middle)) <= budget) low = middle;
-      else high = middle;
-    }
-    level = low;
-    assistance = fillAt(bulk, link.link(level));
+  const workspace = bulkWorkspace.reserve(eligible, eligible);
+  const { offsets, alphas, betas } = workspace;
+  offsets[0] = 0;
+  let slot = 0;
+  for (let index = 0; index < count; index += 1) {
+    const latency = latencies[index] as number;
+    if (!(latency <= limitLatency)) continue;
+    alphas[slot] = line.base + line.basePerMs * latency;
+    betas[slot] = line.scaleSlope + line.scaleSlopePerMs * latency;
+    slot += 1;
+    offsets[slot] = slot;
   }
-  // The walk changes nothing unless rounding is on or the soft cap meets a model under which it could over-compensate
-  // (see needsOrder in solve-scales.ts); the curves here are points.
-  if (rules.quantisation_step !== null || softCapMayOverCompensate(rules, line, logForm ? 'log' : 'raw')) assistance = walkSorted(bulk, eligible, unitTerm);
-  return { status: 'solved', target, level, assistance, eligible_players: eligible };
+  const curves: CurveSet = { count: eligible, offsets, alphas, betas };
+  return finish(solveScales({ curves, before: workspace.before, target, link, form: model.scaleForm, rules, ids: null }, workspace, true), latencies, limitLatency, out, eligible);
 }
 
-/** Rounding and the order walk (see solve-scales.ts, steps 5 and 6) over the sorted distinct latencies; returns the assistance. */
-function walkSorted(bulk: Bulk, eligible: number, unitTerm: number): number {
-  const { latencies, out, rules, limitLatency, line, logForm } = bulk;
-  if (sortedScratch.length < eligible) {
-    sortedScratch = new Float64Array(Math.max(eligible, 2 * sortedScratch.length));
-    scaleScratch = new Float64Array(sortedScratch.length);
-  }
-  const sorted = sortedScratch.subarray(0, eligible);
-  let position = 0;
+/** Write the eligible players' scales (slot order is input order) and 1 for the others. */
+function finish(solved: ReturnType<typeof solveScales>, latencies: Float64Array, limitLatency: number, out: Float64Array, eligible: number): BulkSolveResult {
+  if (!solved.ok) return { status: 'rejected', issues: solved.issues };
+  const scales = solved.value.scales;
+  let slot = 0;
   for (let index = 0; index < latencies.length; index += 1) {
-    const latency = latencies[index] as number;
-    if (latency <= limitLatency) sorted[position++] = latency;
+    out[index] = (latencies[index] as number) <= limitLatency ? (scales[slot++] as number) : 1;
   }
-  sorted.sort();
-  // Best-connected first: highest unscaled prediction, i.e. lowest latency unless the model's latency slope at scale 1 is positive.
-  const ascending = line.basePerMs + line.scaleSlopePerMs * unitTerm <= 0;
-  const scales = scaleScratch;
-  // `out` holds each player's continuous scale; a binary search maps a player to their sorted slot (equal latencies share one).
-  for (let index = 0; index < latencies.length; index += 1) {
-    const latency = latencies[index] as number;
-    if (latency > limitLatency) continue;
-    scales[firstAtOrAbove(sorted, latency)] = out[index] as number;
-  }
-  for (let slot = 1; slot < eligible; slot += 1) if (sorted[slot] === sorted[slot - 1]) scales[slot] = scales[slot - 1] as number;
-  const step = rules.quantisation_step;
-  const ratio = rules.max_scale_ratio;
-  if (step !== null) {
-    let smallest = Infinity;
-    for (let slot = 0; slot < eligible; slot += 1) {
-      const rounded = Math.max(rules.scale_floor, gridDown(scales[slot] as number, step));
-      scales[slot] = rounded;
-      if (rounded < smallest) smallest = rounded;
-    }
-    if (ratio !== null) {
-      const bound = Math.max(smallest, gridDown(ratio * smallest, step));
-      for (let slot = 0; slot < eligible; slot += 1) if ((scales[slot] as number) > bound) scales[slot] = bound;
-    }
-  }
-  let largest = -Infinity;
-  for (let slot = 0; slot < eligible; slot += 1) largest = Math.max(largest, scales[slot] as number);
-  const lowestAllowed = ratio === null ? rules.scale_floor : Math.max(rules.scale_floor, largest / ratio);
-  const link = bulk.link;
-  const expected = (latency: number, scale: number) => {
-    const term = logForm ? Math.log(scale) : scale;
-    return link.inverse(line.base + line.basePerMs * latency + (line.scaleSlope + line.scaleSlopePerMs * latency) * term);
-  };
-  let previousScale = -Infinity;
-  let previousPerformance = Infinity;
-  for (let walked = 0; walked < eligible; walked += 1) {
-    const slot = ascending ? walked : eligible - 1 - walked;
-    const latency = sorted[slot] as number;
-    let scale = scales[slot] as number;
-    let performance = expected(latency, scale);
-    if (performance > previousPerformance) {
-      const bottom = scale >= previousScale ? Math.max(previousScale, lowestAllowed) : lowestAllowed;
-      if (step !== null) {
-        while (performance > previousPerformance && scale - step >= bottom * (1 - 1e-12)) {
-          scale = Math.max(scale - step, rules.scale_floor);
-          performance = expected(latency, scale);
-        }
-      } else if (bottom < scale) {
-        // Closed form: the scale at which this latency's prediction equals the previous performance.
-        const linked = link.link(previousPerformance);
-        const term = (linked - (line.base + line.basePerMs * latency)) / (line.scaleSlope + line.scaleSlopePerMs * latency);
-        const candidate = logForm ? Math.exp(term) : term;
-        scale = Math.min(scale, Math.max(bottom, candidate));
-        performance = expected(latency, scale);
-      }
-      scales[slot] = scale;
-    }
-    previousScale = scale;
-    if (performance <= previousPerformance) previousPerformance = performance;
-  }
-  let assistance = 0;
-  for (let index = 0; index < latencies.length; index += 1) {
-    const latency = latencies[index] as number;
-    if (latency > limitLatency) continue;
-    const scale = scales[firstAtOrAbove(sorted, latency)] as number;
-    out[index] = scale;
-    if (scale > 1) assistance += scale - 1;
-  }
-  return assistance;
-}
-
-/** The first index of `sorted` whose value is >= `value` (binary search). */
-function firstAtOrAbove(sorted: Float64Array, value: number): number {
-  let low = 0;
-  let high = sorted.length;
-  while (low < high) {
-    const middle = (low + high) >>> 1;
-    if ((sorted[middle] as number) < value) low = middle + 1;
-    else high = middle;
-  }
-  return low;
+  return { status: 'solved', target: solved.value.target, level: solved.value.level, assistance: solved.value.assistance, eligible_players: eligible };
 }
 
 let estimateScratch = new Float64Array(0);
@@ -361,9 +183,9 @@ export function solveSampledScalesInto(
   if (eligible === 0) {
     return { status: 'rejected', issues: [error('no_eligible_player', 'players', `a lobby requires at least one player within the latency limit (${String(rules.latency_limit_ms)} ms), got none`)] };
   }
-  const offsets = new Int32Array(eligible + 1);
-  const alphas = new Float64Array(eligible * perPlayer);
-  const betas = new Float64Array(eligible * perPlayer);
+  const workspace = bulkWorkspace.reserve(eligible, eligible * perPlayer);
+  const { offsets, alphas, betas } = workspace;
+  offsets[0] = 0;
   let slot = 0;
   for (let player = 0; player < count; player += 1) {
     if (Number.isNaN(out[player])) continue;
@@ -382,7 +204,7 @@ export function solveSampledScalesInto(
   }
   const curves: CurveSet = { count: eligible, offsets, alphas, betas };
   const form = model.scaleForm;
-  const before = expectedBefore(curves, model.link, form, new Float64Array(eligible));
+  const before = expectedBefore(curves, model.link, form, workspace.before);
   const spec = rules.target;
   let target = -Infinity;
   if (spec.kind === 'fixed') target = spec.probability;
@@ -390,7 +212,7 @@ export function solveSampledScalesInto(
     const unitTerm = form === 'log' ? 0 : 1;
     target = model.link.inverse(line.base + line.basePerMs * spec.latency_ms + (line.scaleSlope + line.scaleSlopePerMs * spec.latency_ms) * unitTerm);
   } else for (let index = 0; index < eligible; index += 1) target = Math.max(target, before[index] as number);
-  const solved = solveScales(curves, before, target, model.link, form, rules, null, line);
+  const solved = solveScales({ curves, before, target, link: model.link, form, rules, ids: null }, workspace, true);
   if (!solved.ok) return { status: 'rejected', issues: solved.issues };
   slot = 0;
   for (let player = 0; player < count; player += 1) {

@@ -1,66 +1,57 @@
 /**
- * The core of the lobby solver: given each eligible player's performance
- * curve and the target T, find scales that bring everyone to T where the rules
- * allow, and otherwise maximise the lowest expected performance, then the
- * next lowest, and so on (leximin), with performance counted up to T.
+ * The lobby solver's answer, as docs/method.md (section 3, "The answer")
+ * defines it, for the eligible players of one lobby.
  *
- * Method, for a common level L <= T:
- * 1. desired: each player's inverse of their curve at L, kept in
- *    [floor, search limit] (the search limit is the desired scale from which
- *    the soft cap grants the hard cap);
- * 2. granted: the soft cap maps a desired scale d above its threshold a to
- *    a + fraction (d - a), and nothing exceeds the hard cap;
- * 3. ratio: no granted scale may exceed `max_scale_ratio` times the smallest
- *    one. The cheapest way to honour that without taking anything from the
- *    worst-off is to lift the smallest scales to (largest granted) / ratio:
- *    lifting only raises someone already at or above L, so it never lowers
- *    the minimum (holding the largest scales down would). Lifted players are
- *    labelled `ratio`;
- * 4. budget: every step above is non-decreasing in L, so the assistance used,
- *    sum over players of (scale - 1)+, is non-decreasing too, and bisection
- *    finds the largest L whose assistance fits the budget (water-filling).
- *    Players a cap holds below L keep their largest allowed scale, which is
- *    what leximin asks;
- * 5. quantisation rounds every scale down to the grid (so caps and the
- *    budget still hold), then holds the largest scales to the grid point at
- *    or below ratio x the smallest rounded one;
- * 6. order: walking from the best-connected player to the worst (the caller's
- *    `order`), a player's scale is lowered, never below the previous player's
- *    scale (nor below largest / ratio), until their expected performance does
- *    not exceed the previous player's. After rounding this is what keeps
- *    "no over-compensation" true; without rounding it matters only for the
- *    soft cap and for sampled latencies, whose curves can cross.
+ * With the step q (real scales when there is none), the target T and each
+ * player's allowed scales A_i and ceiling u_i (player-ceilings.ts), a vector
+ * s is feasible when every s_i is in A_i, max(s) / min(s) <= ratio, the
+ * assistance sum of (s_i - 1)+ is within the budget, and s_i <= max(u_i, L(s))
+ * with L(s) the smallest multiple of q at or above max(s) / ratio (nobody is
+ * raised above the target except to the lowest scale the ratio forces). The
+ * answer is the feasible vector whose values min(E_i(s_i), T), sorted from
+ * the lowest, are lexicographically largest (leximin); among those the least
+ * assistance; remaining ties (identical curves) give the larger scale to the
+ * player whose id sorts first.
  *
- * Every step only lowers scales that an earlier step set, except the ratio
- * lift, whose cost the budget bisection already counts; so the floor, the
- * hard cap, the ratio and the budget hold for the final scales.
+ * How it is computed:
+ * - on the grid, every feasible vector has a lift index L (the smallest scale
+ *   anyone may have). For a given L the problem is a box per player,
+ *   [L, min(M_L, max(u_i, L), top_i)] with M_L the largest scale the ratio
+ *   allows above L, plus the budget, which the greedy of step-greedy.ts
+ *   solves exactly; the answer for L counts only if someone ends high enough
+ *   that L is really the lift (max(s) above ratio x (L - q)). Feasible lifts
+ *   form a range from the floor up, and the answer at a larger feasible lift
+ *   is at least as good: the largest one is found by bisection, then the
+ *   smallest lift with the same sorted values, whose assistance is least
+ *   (docs/method.md gives the argument; test/solver/exhaustive.test.ts
+ *   checks it against enumeration of every feasible vector);
+ * - without a step, water-filling on real scales (water-level.ts), with the
+ *   lift max(s) / ratio applied at every level and the largest scale kept to
+ *   ratio x the smallest upper_i, so that everyone can be lifted.
+ *
+ * Cost: O(players) for the common case (no budget); with a budget about
+ * 5-15 water levels and O(players log players) heap moves, times a few lifts
+ * with a ratio on the grid.
  */
 import { type Result, error, fail, ok } from '../issues.js';
 import type { Link } from '../model/links.js';
 import type { CompiledRules } from './rules.js';
-import type { PredictorLine } from '../model/compile.js';
-import { type CurveSet, expectedAtTerm, inverseTerm } from './player-curve.js';
+import { type CurveSet, expectedAtTerm } from './player-curve.js';
+import { type ScaleForm, playerCeilings, termOf } from './player-ceilings.js';
+import { type ScaleGrid, assistanceUnits, budgetUnits, gridValue, largestUnderLift, liftIndex, scaleGrid, unitsToAssistance } from './scale-grid.js';
+import { type StepBox, fillSteps } from './step-greedy.js';
+import { type LevelBox, waterLevel } from './water-level.js';
+import { labelPlayers } from './bindings.js';
 import { EXCESS_OVER_ONE, SolveWorkspace, orderFreeSum } from './workspace.js';
 
-/** Why a player's scale is what it is: the constraint that holds it, or `none`. */
-export const BINDINGS = ['none', 'floor', 'cap', 'soft_cap', 'ratio', 'budget', 'quantisation', 'ineligible'] as const;
-export type Binding = (typeof BINDINGS)[number];
-
-const NONE = 0;
-const FLOOR = 1;
-const CAP = 2;
-const SOFT_CAP = 3;
-const RATIO = 4;
-const BUDGET = 5;
-const QUANTISATION = 6;
-/** Index of `ineligible` in BINDINGS. */
-export const INELIGIBLE = 7;
+export { BINDINGS, type Binding, INELIGIBLE, AT_TARGET_TOLERANCE } from './bindings.js';
+export { type ScaleForm, scaleOf, searchLimit, softCapped, termOf } from './player-ceilings.js';
 
 /** Arrays are indexed by eligible slot 0 .. count - 1 and may be longer (they live in a `SolveWorkspace`). */
 export interface ScaleSolution {
   readonly count: number;
   readonly target: number;
-  /** The common level reached by every player no cap holds back (equals target unless a budget binds). */
+  /** The budget's water level: the level every player whose own limits allow it reaches; the target when the budget does not bind. */
   readonly level: number;
   readonly scales: Float64Array;
   readonly before: Float64Array;
@@ -69,63 +60,22 @@ export interface ScaleSolution {
   readonly binding: Uint8Array;
   /** Assistance used: sum over players of (scale - 1) for scales above 1. */
   readonly assistance: number;
+  /** The lowest scale the ratio forces on everyone (the floor without a ratio). */
+  readonly lift: number;
+  /** The quantisation step, or null. */
+  readonly step: number | null;
 }
 
-/** Probability tolerance under which a player counts as at the target. */
-export const AT_TARGET_TOLERANCE = 1e-9;
-/** Relative tolerance for comparing scales with a limit. */
-const SCALE_TOLERANCE = 1e-12;
-
-export type ScaleForm = 'log' | 'raw';
-
-export function termOf(form: ScaleForm, scale: number): number {
-  return form === 'log' ? Math.log(scale) : scale;
-}
-
-export function scaleOf(form: ScaleForm, term: number): number {
-  return form === 'log' ? Math.exp(term) : term;
-}
-
-/** The largest desired scale worth searching for: from it on the granted scale is the hard cap. */
-export function searchLimit(rules: CompiledRules): number {
-  const soft = rules.soft_cap;
-  return soft === null ? rules.scale_cap : soft.above + (rules.scale_cap - soft.above) / soft.fraction;
-}
-
-/** The granted scale for a desired one: the soft cap, then the hard cap. */
-export function softCapped(desired: number, rules: CompiledRules): number {
-  const soft = rules.soft_cap;
-  const granted = soft !== null && desired > soft.above ? soft.above + soft.fraction * (desired - soft.above) : desired;
-  return granted < rules.scale_cap ? granted : rules.scale_cap;
-}
-
-/** The largest multiple of `step` at or below `value` (a value within 1e-9 steps below a multiple counts as on it, and is kept). */
-export function gridDown(value: number, step: number): number {
-  const rounded = Math.floor(value / step + 1e-9) * step;
-  return rounded < value ? rounded : value;
-}
-
-/**
- * True when the solver needs the players' order (best-connected first) for the
- * walk of step 6: with rounding, with sampled curves, and with a soft cap
- * unless the model makes the walk a no-op. For point latencies, a soft cap
- * cannot cause over-compensation when the scale coefficient does not fall
- * with latency (b1 >= 0) and the latency slope a1 + b1 h is <= 0 over the
- * searched scales: a player's shortfall in the linear predictor is then
- * b (h(d) - h(granted(d))), non-decreasing in latency on both factors.
- */
-export function needsOrder(curves: CurveSet, rules: CompiledRules, line: PredictorLine, form: ScaleForm): boolean {
-  if (rules.quantisation_step !== null || (curves.offsets[curves.count] as number) !== curves.count) return true;
-  return softCapMayOverCompensate(rules, line, form);
-}
-
-/** For point latencies: whether the soft cap could leave a higher-latency player above a lower-latency one (see `needsOrder`). */
-export function softCapMayOverCompensate(rules: CompiledRules, line: PredictorLine, form: ScaleForm): boolean {
-  if (rules.soft_cap === null) return false;
-  const lowTerm = termOf(form, rules.scale_floor);
-  const highTerm = termOf(form, searchLimit(rules));
-  const safe = line.scaleSlopePerMs >= 0 && line.basePerMs + line.scaleSlopePerMs * lowTerm <= 0 && line.basePerMs + line.scaleSlopePerMs * highTerm <= 0;
-  return !safe;
+export interface ScaleProblem {
+  readonly curves: CurveSet;
+  /** E_i(1) per player (`expectedBefore`). */
+  readonly before: Float64Array;
+  readonly target: number;
+  readonly link: Link;
+  readonly form: ScaleForm;
+  readonly rules: CompiledRules;
+  /** The players' ids in slot order, for ties between identical curves; null: slot order decides. */
+  readonly ids: readonly string[] | null;
 }
 
 /** E_i at scale 1 for every player: the performance before compensation. */
@@ -135,221 +85,271 @@ export function expectedBefore(curves: CurveSet, link: Link, form: ScaleForm, ou
   return out;
 }
 
-interface Work {
-  readonly curves: CurveSet;
-  readonly link: Link;
-  readonly form: ScaleForm;
-  readonly rules: CompiledRules;
-  readonly lowTerm: number;
-  readonly highTerm: number;
-  readonly limit: number;
-  readonly desired: Float64Array;
-  readonly granted: Float64Array;
-  readonly scales: Float64Array;
-}
-
-/** Steps 1-3 at a level; returns the assistance used (an order-free sum, so that it does not depend on the players' input order). */
-function allocate(work: Work, level: number): number {
-  const { curves, link, form, rules, lowTerm, highTerm, limit, desired, granted, scales } = work;
-  const count = curves.count;
-  const floor = rules.scale_floor;
-  const linked = link.link(level);
-  let largest = -Infinity;
-  for (let player = 0; player < count; player += 1) {
-    const term = inverseTerm(curves, player, link, level, linked, lowTerm, highTerm);
-    let wanted = term <= lowTerm ? floor : term >= highTerm ? limit : scaleOf(form, term);
-    // Within rounding of the floor counts as the floor, so that a player who needs nothing costs nothing.
-    if (wanted < floor * (1 + SCALE_TOLERANCE)) wanted = floor;
-    else if (wanted > limit) wanted = limit;
-    desired[player] = wanted;
-    const given = softCapped(wanted, rules);
-    granted[player] = given;
-    if (given > largest) largest = given;
-  }
-  const ratio = rules.max_scale_ratio;
-  const lift = ratio === null ? -Infinity : Math.max(floor, largest / ratio);
-  for (let player = 0; player < count; player += 1) {
-    const given = granted[player] as number;
-    scales[player] = given > lift ? given : lift;
-  }
-  // The budget's bisection compares this sum with the budget, so it must not depend on the players' order; without a
-  // budget it is reported only once, at the end.
-  return rules.assistance_budget === null ? 0 : orderFreeSum(scales, count, EXCESS_OVER_ONE);
-}
-
 /**
- * Solve the scales of the eligible players.
+ * Solve the scales of the eligible players (see the module comment), in
+ * `workspace` (the solution's arrays point into it). With `scalesOnly` the
+ * performances after and the labels are left out (the bulk paths).
  *
- * @param curves the eligible players' curves.
- * @param before E_i(1) per player (`expectedBefore`).
- * @param target T.
- * @param order player indices from best-connected to worst (highest `before`
- *   first, ties broken by something independent of input order, e.g. the
- *   player id). Used when `needsOrder` says so (a fallback by `before`, then
- *   index, is built if it is null then); otherwise ignored.
- * @param line the predictor line (for `needsOrder`).
- * @param workspace arrays to work in; the solution's arrays point into it.
- * @returns the solution, or an issue when the rules contradict themselves for
- *   this lobby (a budget smaller than the floor alone costs).
- *
- * Cost: O(players x samples) per level; with a binding budget about 50 levels
- * (bisection to 1e-15 in probability).
+ * @returns the solution, or the issues that stop it: a target that is not a
+ *   probability strictly between 0 and 1 in floating point
+ *   (`target_out_of_range`: a model that predicts a hit probability of
+ *   exactly 1 or 0 there), a player with no allowed scale on the grid
+ *   (`no_allowed_scale`), a budget below what the floor alone costs
+ *   (`budget_below_floor`).
  */
-export function solveScales(
-  curves: CurveSet,
-  before: Float64Array,
-  target: number,
-  link: Link,
-  form: ScaleForm,
-  rules: CompiledRules,
-  order: Int32Array | null,
-  line: PredictorLine,
-  workspace: SolveWorkspace = new SolveWorkspace(),
-): Result<ScaleSolution> {
+export function solveScales(problem: ScaleProblem, workspace: SolveWorkspace = new SolveWorkspace(), scalesOnly = false): Result<ScaleSolution> {
+  const { curves, target, link, form, rules } = problem;
   const count = curves.count;
   workspace.reserve(count, 0);
-  if (!needsOrder(curves, rules, line, form)) order = null;
-  else if (order === null) order = fallbackOrder(before, count);
+  if (!(target > 0 && target < 1)) {
+    return fail([error('target_out_of_range', 'rules.target', `compensation requires a target hit probability strictly between 0 and 1, got ${String(target)}: the model predicts ${target >= 1 ? 'a certain hit' : 'a certain miss'} at the target's latency, in floating point, so no scale can be told from another`)]);
+  }
+  const step = rules.quantisation_step;
+  const grid = step === null ? null : scaleGrid(step, rules.scale_floor, rules.scale_cap);
+  const stuck = playerCeilings(curves, link, form, rules, target, grid, workspace);
+  if (stuck >= 0) {
+    return fail([error('no_allowed_scale', `players[${stuck}]`, `\`quantisation_step\` ${String(step)} requires a multiple of the step between \`scale_floor\` ${rules.scale_floor} and the player's largest allowed scale ${(workspace.upper[stuck] as number).toPrecision(6)}, got none`)]);
+  }
+  const budget = rules.assistance_budget;
+  const floorCost = count * Math.max(0, rules.scale_floor - 1);
+  if (budget !== null && (grid === null ? floorCost > budget : count * assistanceUnits(grid, grid.floorIndex) > budgetUnits(grid, budget))) {
+    return fail([error('budget_below_floor', 'rules.assistance_budget', `\`assistance_budget\` requires at least what the floor alone costs in this lobby, ${count} x (${rules.scale_floor} - 1) = ${floorCost}, got ${budget}`)]);
+  }
+  const answer = grid === null ? solveOnReals(problem, workspace) : solveOnGrid(problem, grid, workspace);
+  const scales = workspace.scales;
+  const after = workspace.after;
+  const binding = workspace.binding;
+  if (!scalesOnly) {
+    for (let player = 0; player < count; player += 1) after[player] = expectedAtTerm(curves, player, link, termOf(form, scales[player] as number));
+    labelPlayers({ count, target, rules, grid, scales, after, need: workspace.need, upper: workspace.upper, ceiling: workspace.ceiling, index: workspace.index, ratioCeiling: answer.ratioCeiling }, binding);
+  }
+  return ok({ count, target, level: answer.level, scales, before: problem.before, after, binding, assistance: answer.assistance, lift: answer.lift, step });
+}
+
+interface Answer {
+  readonly level: number;
+  readonly assistance: number;
+  readonly lift: number;
+  /** The largest scale the ratio allowed in the answer (a grid index with a step, a scale without); Infinity without a ratio. */
+  readonly ratioCeiling: number;
+}
+
+/** Without a step: water-filling on real scales, the ratio's lift applied at every level. */
+function solveOnReals(problem: ScaleProblem, workspace: SolveWorkspace): Answer {
+  const { curves, target, link, form, rules } = problem;
+  const count = curves.count;
   const floor = rules.scale_floor;
-  const cap = rules.scale_cap;
-  const limit = searchLimit(rules);
-  const work: Work = {
+  const ratio = rules.max_scale_ratio;
+  const { upper, ceiling, low, lowTerm, highScale, highTerm, scales } = workspace;
+  let ratioCeiling = Infinity;
+  if (ratio !== null) {
+    // Everyone must be liftable to max(s) / ratio, so max(s) <= ratio x the smallest upper_i.
+    let smallestUpper = Infinity;
+    for (let player = 0; player < count; player += 1) smallestUpper = Math.min(smallestUpper, upper[player] as number);
+    ratioCeiling = ratio * smallestUpper;
+  }
+  const floorTerm = termOf(form, floor);
+  let largest = -Infinity;
+  for (let player = 0; player < count; player += 1) {
+    const high = Math.min(ceiling[player] as number, ratioCeiling);
+    low[player] = floor;
+    lowTerm[player] = floorTerm;
+    highScale[player] = high;
+    highTerm[player] = termOf(form, high);
+    scales[player] = high;
+    if (high > largest) largest = high;
+  }
+  let lift = floor;
+  if (ratio !== null) {
+    lift = Math.max(floor, largest / ratio);
+    for (let player = 0; player < count; player += 1) if ((scales[player] as number) < lift) scales[player] = lift;
+  }
+  let assistance = orderFreeSum(scales, count, EXCESS_OVER_ONE);
+  const budget = rules.assistance_budget;
+  if (budget === null || assistance <= budget) return { level: target, assistance, lift, ratioCeiling };
+  const box: LevelBox = { curves, link, form, low, high: highScale, lowTerm, highTerm, ratio, floor, scales };
+  let lowLinked = Infinity;
+  for (let sample = 0; sample < (curves.offsets[count] as number); sample += 1) {
+    lowLinked = Math.min(lowLinked, (curves.alphas[sample] as number) + (curves.betas[sample] as number) * floorTerm);
+  }
+  const water = waterLevel(box, budget, lowLinked, Math.min(link.link(target), highestLinked(curves, highTerm)));
+  assistance = water.assistance;
+  largest = -Infinity;
+  for (let player = 0; player < count; player += 1) largest = Math.max(largest, scales[player] as number);
+  if (ratio !== null) lift = Math.max(floor, largest / ratio);
+  return { level: link.inverse(water.linked), assistance, lift, ratioCeiling };
+}
+
+/** With a step: the greedy inside the box of each candidate lift (see the module comment). */
+function solveOnGrid(problem: ScaleProblem, grid: ScaleGrid, workspace: SolveWorkspace): Answer {
+  const { curves, target, link, form, rules } = problem;
+  const count = curves.count;
+  const ratio = rules.max_scale_ratio;
+  const budget = rules.assistance_budget === null ? null : budgetUnits(grid, rules.assistance_budget);
+  const { top, ceiling, start, high, index, scales } = workspace;
+  const rank = workspace.rank.subarray(0, count);
+  // Ranks break ties in the budget's greedy only.
+  if (budget !== null) idRanks(problem.ids, count, rank);
+  const relaxation: LevelBox = {
     curves,
     link,
     form,
-    rules,
-    lowTerm: termOf(form, floor),
-    highTerm: termOf(form, limit),
-    limit,
-    desired: workspace.desired,
-    granted: workspace.granted,
-    scales: workspace.continuous,
+    low: workspace.low,
+    high: workspace.highScale,
+    lowTerm: workspace.lowTerm,
+    highTerm: workspace.highTerm,
+    ratio: null,
+    floor: rules.scale_floor,
+    scales: workspace.scratch,
   };
-  let level = target;
-  let assistance = allocate(work, target);
-  const budget = rules.assistance_budget;
-  if (budget !== null && assistance > budget) {
-    let low = Infinity;
-    for (let player = 0; player < count; player += 1) low = Math.min(low, expectedAtTerm(curves, player, link, work.lowTerm));
-    low = Math.min(low, target);
-    const floorCost = count * Math.max(0, floor - 1);
-    if (floorCost > budget) {
-      return fail([
-        error('budget_below_floor', 'rules.assistance_budget', `\`assistance_budget\` requires at least what the floor alone costs in this lobby, ${count} x (${floor} - 1) = ${floorCost}, got ${budget}`),
-      ]);
+  const box: StepBox = { grid, target, curves, link, form, rank, start, high, index, frozen: workspace.frozen, heap: workspace.heap, key: workspace.key, relaxation };
+  const floorIndex = grid.floorIndex;
+  const { flat, bestIndex } = workspace;
+  const valueAt = (at: number, player: number) => expectedAtTerm(curves, player, link, termOf(form, gridValue(grid, at)));
+  let ranked = budget !== null;
+  const rankOf = (player: number): number => {
+    if (!ranked) {
+      idRanks(problem.ids, count, rank);
+      ranked = true;
     }
-    if (allocate(work, low) > budget) {
-      // Only rounding in the inverse (a target near probability 1) can make the lowest level cost more than the floor:
-      // then everyone stays at the floor.
-      work.scales.fill(floor);
-      assistance = floorCost;
-    } else {
-      let high = target;
-      for (let iteration = 0; iteration < 200 && high - low > 1e-15; iteration += 1) {
-        const middle = 0.5 * (low + high);
-        if (middle <= low || middle >= high) break;
-        if (allocate(work, middle) <= budget) low = middle;
-        else high = middle;
-      }
-      assistance = allocate(work, low);
-    }
-    level = low;
-  }
-  const continuous = work.scales;
-  const scales = workspace.scales;
-  scales.set(continuous.subarray(0, count));
-  const step = rules.quantisation_step;
-  const ratio = rules.max_scale_ratio;
-  if (step !== null) {
-    let smallest = Infinity;
-    for (let player = 0; player < count; player += 1) {
-      const rounded = Math.max(floor, gridDown(continuous[player] as number, step));
-      scales[player] = rounded;
-      if (rounded < smallest) smallest = rounded;
-    }
-    if (ratio !== null) {
-      const bound = Math.max(smallest, gridDown(ratio * smallest, step));
-      for (let player = 0; player < count; player += 1) if ((scales[player] as number) > bound) scales[player] = bound;
-    }
-  }
-  const loweredBy = order === null ? null : orderWalk(work, scales, order, step, workspace.loweredBy, workspace.after);
-  const after = workspace.after;
-  // The walk leaves every player's final performance in `after`.
-  if (loweredBy === null) for (let player = 0; player < count; player += 1) after[player] = expectedAtTerm(curves, player, link, termOf(form, scales[player] as number));
+    return rank[player] as number;
+  };
 
-  // Labels, in order when a walk ran (a player the walk lowered takes the label of the player who bounds them).
-  const binding = workspace.binding;
-  const tolerance = AT_TARGET_TOLERANCE;
-  for (let position = 0; position < count; position += 1) {
-    const player = order === null ? position : (order[position] as number);
-    const performance = after[player] as number;
-    const scale = scales[player] as number;
-    const unrounded = continuous[player] as number;
-    let label = NONE;
-    if (performance >= target - tolerance) {
-      if (performance <= target + tolerance) label = NONE;
-      else if (unrounded > (work.granted[player] as number) * (1 + SCALE_TOLERANCE)) label = RATIO;
-      else if (scale <= floor * (1 + SCALE_TOLERANCE)) label = FLOOR;
-    } else if (unrounded >= cap * (1 - SCALE_TOLERANCE)) label = CAP;
-    else if ((work.granted[player] as number) < (work.desired[player] as number) * (1 - SCALE_TOLERANCE)) label = SOFT_CAP;
-    else if (level < target - tolerance && expectedAtTerm(curves, player, link, termOf(form, unrounded)) < target - tolerance) label = BUDGET;
-    else if (scale < unrounded * (1 - SCALE_TOLERANCE)) label = QUANTISATION;
-    else if (loweredBy !== null && (loweredBy[player] as number) >= 0) label = binding[loweredBy[player] as number] as number;
-    binding[player] = label;
+  /** The greedy for lift `lift`, or null when the lift is infeasible (or not really the lift). */
+  const atLift = (lift: number): { units: number; level: number; ceilingIndex: number } | null => {
+    if (budget !== null && count * assistanceUnits(grid, lift) > budget) return null;
+    const largestAllowed = ratio === null ? Infinity : largestUnderLift(grid, lift, ratio);
+    for (let player = 0; player < count; player += 1) {
+      const own = Math.max(ceiling[player] as number, lift);
+      const highest = Math.min(largestAllowed, own, top[player] as number);
+      if (highest < lift) return null;
+      high[player] = highest;
+      start[player] = Math.max(lift, Math.min(highest, grid.oneIndex));
+    }
+    const filled = fillSteps(box, budget);
+    let units = filled.units;
+    // Steps that leave a player at the target gain nothing (a curve flat in floating point): the least assistance drops them.
+    let shaved = -1;
+    for (let player = 0; player < count; player += 1) {
+      if (flat[player] === 0) continue;
+      const before = index[player] as number;
+      let at = before;
+      while (at > (start[player] as number) && valueAt(at - 1, player) >= target) at -= 1;
+      if (at < before) {
+        units -= assistanceUnits(grid, before) - assistanceUnits(grid, at);
+        bestIndex[player] = before;
+        index[player] = at;
+        shaved = player;
+      }
+    }
+    if (ratio !== null && lift > floorIndex) {
+      const needed = largestUnderLift(grid, lift - 1, ratio) + 1;
+      let largest = -Infinity;
+      for (let player = 0; player < count; player += 1) largest = Math.max(largest, index[player] as number);
+      if (largest < needed && shaved >= 0) {
+        // Shaving took away the scale that makes this lift the lift: give it back to one player, the first by id.
+        let chosenPlayer = -1;
+        for (let player = 0; player < count; player += 1) {
+          if (flat[player] === 1 && (bestIndex[player] as number) >= needed && (index[player] as number) < needed && (chosenPlayer < 0 || (rankOf(player) < rankOf(chosenPlayer)))) chosenPlayer = player;
+        }
+        if (chosenPlayer >= 0) {
+          units += assistanceUnits(grid, needed) - assistanceUnits(grid, index[chosenPlayer] as number);
+          index[chosenPlayer] = needed;
+          largest = needed;
+        }
+      }
+      if (largest < needed) return null;
+    }
+    return { units, level: filled.level, ceilingIndex: largestAllowed };
+  };
+
+  let chosen = floorIndex;
+  if (ratio !== null) {
+    let smallestTop = Infinity;
+    let largestCeiling = -Infinity;
+    for (let player = 0; player < count; player += 1) {
+      smallestTop = Math.min(smallestTop, top[player] as number);
+      largestCeiling = Math.max(largestCeiling, ceiling[player] as number);
+    }
+    // Lifts above the largest ceiling's own lift are possible only where the ratio forces equal scales (L(m) = m).
+    let equalUpTo = ratio <= 1 ? smallestTop : Math.min(smallestTop, Math.ceil(ratio / (ratio - 1)) + 1);
+    while (equalUpTo > floorIndex && liftIndex(grid, equalUpTo, ratio) !== equalUpTo) equalUpTo -= 1;
+    let low = floorIndex;
+    let highLift = Math.min(smallestTop, Math.max(liftIndex(grid, largestCeiling, ratio), equalUpTo));
+    while (low < highLift) {
+      const middle = Math.floor((low + highLift + 1) / 2);
+      if (atLift(middle) !== null) low = middle;
+      else highLift = middle - 1;
+    }
+    chosen = low;
+    // The smallest lift with the same sorted values: its assistance is least.
+    if (chosen > floorIndex) {
+      const best = workspace.bestObjective;
+      atLift(chosen);
+      sortedObjective(box, target, best);
+      const same = (lift: number): boolean => {
+        if (atLift(lift) === null) return false;
+        sortedObjective(box, target, workspace.objective);
+        for (let player = 0; player < count; player += 1) if (workspace.objective[player] !== best[player]) return false;
+        return true;
+      };
+      if (same(chosen - 1)) {
+        let bottom = floorIndex;
+        let upper = chosen - 1;
+        while (bottom < upper) {
+          const middle = Math.floor((bottom + upper) / 2);
+          if (same(middle)) upper = middle;
+          else bottom = middle + 1;
+        }
+        chosen = bottom;
+      }
+    }
   }
-  assistance = orderFreeSum(scales, count, EXCESS_OVER_ONE);
-  return ok({ count, target, level, scales, before, after, binding, assistance });
+  const answer = atLift(chosen) as { units: number; level: number; ceilingIndex: number };
+  for (let player = 0; player < count; player += 1) scales[player] = gridValue(grid, index[player] as number);
+  return {
+    level: answer.level === Infinity ? target : Math.min(target, answer.level),
+    assistance: unitsToAssistance(grid, answer.units),
+    lift: gridValue(grid, chosen),
+    ratioCeiling: answer.ceilingIndex,
+  };
+}
+
+/** min(E_i(s_i), T) for the box's indices, sorted ascending, into `out`. */
+function sortedObjective(box: StepBox, target: number, out: Float64Array): void {
+  const count = box.curves.count;
+  for (let player = 0; player < count; player += 1) {
+    const value = expectedAtTerm(box.curves, player, box.link, termOf(box.form, gridValue(box.grid, box.index[player] as number)));
+    out[player] = value < target ? value : target;
+  }
+  out.subarray(0, count).sort();
+}
+
+/** Each player's position in code-unit order of their ids (slot order when there are none, or for equal ids). */
+function idRanks(ids: readonly string[] | null, count: number, rank: Int32Array): void {
+  for (let player = 0; player < count; player += 1) rank[player] = player;
+  if (ids === null) return;
+  const order = Array.from({ length: count }, (_, player) => player);
+  order.sort((left, right) => {
+    const leftId = ids[left] as string;
+    const rightId = ids[right] as string;
+    return leftId < rightId ? -1 : leftId > rightId ? 1 : left - right;
+  });
+  for (let position = 0; position < count; position += 1) rank[order[position] as number] = position;
 }
 
 /**
- * Step 6 (see the module comment). Leaves each player's final performance in
- * `after`; returns, per player, the index of the player whose performance
- * bounded them, or -1.
+ * A finite link value at which every player's curve is at or below the value
+ * at their highest scale (so the water level there puts everyone at the top
+ * of their range): the largest predictor over all samples at that scale.
  */
-function orderWalk(work: Work, scales: Float64Array, order: Int32Array, step: number | null, loweredBy: Int32Array, after: Float64Array): Int32Array {
-  const { curves, link, form, rules } = work;
-  const count = curves.count;
-  let largest = -Infinity;
-  for (let player = 0; player < count; player += 1) if ((scales[player] as number) > largest) largest = scales[player] as number;
-  const ratio = rules.max_scale_ratio;
-  const lowest = ratio === null ? rules.scale_floor : Math.max(rules.scale_floor, largest / ratio);
-  loweredBy.fill(-1, 0, count);
-  let previousScale = -Infinity;
-  let previousPerformance = Infinity;
-  let bounding = -1;
-  for (let position = 0; position < count; position += 1) {
-    const player = order[position] as number;
-    let scale = scales[player] as number;
-    let performance = expectedAtTerm(curves, player, link, termOf(form, scale));
-    if (performance > previousPerformance) {
-      const bottom = scale >= previousScale ? Math.max(previousScale, lowest) : lowest;
-      const start = scale;
-      if (step !== null) {
-        while (performance > previousPerformance && scale - step >= bottom * (1 - SCALE_TOLERANCE)) {
-          scale = Math.max(scale - step, rules.scale_floor);
-          performance = expectedAtTerm(curves, player, link, termOf(form, scale));
-        }
-      } else if (bottom < scale) {
-        const term = inverseTerm(curves, player, link, previousPerformance, link.link(previousPerformance), termOf(form, bottom), termOf(form, scale));
-        scale = Math.min(start, Math.max(bottom, scaleOf(form, term)));
-        performance = expectedAtTerm(curves, player, link, termOf(form, scale));
-      }
-      if (scale < start) loweredBy[player] = bounding;
-      scales[player] = scale;
-    }
-    after[player] = performance;
-    previousScale = scale;
-    if (performance <= previousPerformance) {
-      previousPerformance = performance;
-      bounding = player;
+export function highestLinked(curves: CurveSet, highTerm: Float64Array): number {
+  let highest = -Infinity;
+  for (let player = 0; player < curves.count; player += 1) {
+    const term = highTerm[player] as number;
+    for (let sample = curves.offsets[player] as number; sample < (curves.offsets[player + 1] as number); sample += 1) {
+      highest = Math.max(highest, (curves.alphas[sample] as number) + (curves.betas[sample] as number) * term);
     }
   }
-  return loweredBy;
-}
-
-/** Highest `before` first, ties by index: used only when a caller passes no order. */
-function fallbackOrder(before: Float64Array, count: number): Int32Array {
-  const order = new Int32Array(count);
-  for (let index = 0; index < count; index += 1) order[index] = index;
-  return order.sort((left, right) => (before[right] as number) - (before[left] as number) || left - right);
+  return highest;
 }

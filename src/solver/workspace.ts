@@ -20,16 +20,35 @@ export class SolveWorkspace {
   alphas = new Float64Array(0);
   betas = new Float64Array(0);
   before = new Float64Array(0);
-  desired = new Float64Array(0);
-  granted = new Float64Array(0);
-  continuous = new Float64Array(0);
+  /** Each player's own limits (player-ceilings.ts). */
+  need = new Float64Array(0);
+  upper = new Float64Array(0);
+  top = new Float64Array(0);
+  ceiling = new Float64Array(0);
+  flat = new Uint8Array(0);
+  /** Box bounds and state of the grid greedy (step-greedy.ts), and its scratch. */
+  start = new Float64Array(0);
+  high = new Float64Array(0);
+  index = new Float64Array(0);
+  bestIndex = new Float64Array(0);
+  frozen = new Uint8Array(0);
+  heap = new Int32Array(0);
+  key = new Float64Array(0);
+  rank = new Int32Array(0);
+  /** Water-filling bounds and scales (water-level.ts). */
+  low = new Float64Array(0);
+  lowTerm = new Float64Array(0);
+  highScale = new Float64Array(0);
+  highTerm = new Float64Array(0);
+  /** Sorted objective vectors, for comparing candidate answers. */
+  objective = new Float64Array(0);
+  bestObjective = new Float64Array(0);
   scales = new Float64Array(0);
   after = new Float64Array(0);
   binding = new Uint8Array(0);
-  loweredBy = new Int32Array(0);
-  order = new Int32Array(0);
-  /** Scratch for the report (team figures); free once a solve is done. */
+  /** Scratch for the report (team figures, ordering); free once a solve is done. */
   scratch = new Float64Array(0);
+  order = new Int32Array(0);
 
   /** Make room for `players` players and `samples` samples in all. */
   reserve(players: number, samples: number): this {
@@ -41,15 +60,30 @@ export class SolveWorkspace {
       this.eligible = new Int32Array(size);
       this.offsets = new Int32Array(size + 1);
       this.before = new Float64Array(size);
-      this.desired = new Float64Array(size);
-      this.granted = new Float64Array(size);
-      this.continuous = new Float64Array(size);
+      this.need = new Float64Array(size);
+      this.upper = new Float64Array(size);
+      this.top = new Float64Array(size);
+      this.ceiling = new Float64Array(size);
+      this.flat = new Uint8Array(size);
+      this.start = new Float64Array(size);
+      this.high = new Float64Array(size);
+      this.index = new Float64Array(size);
+      this.bestIndex = new Float64Array(size);
+      this.frozen = new Uint8Array(size);
+      this.heap = new Int32Array(size);
+      this.key = new Float64Array(size);
+      this.rank = new Int32Array(size);
+      this.low = new Float64Array(size);
+      this.lowTerm = new Float64Array(size);
+      this.highScale = new Float64Array(size);
+      this.highTerm = new Float64Array(size);
+      this.objective = new Float64Array(size);
+      this.bestObjective = new Float64Array(size);
       this.scales = new Float64Array(size);
       this.after = new Float64Array(size);
       this.binding = new Uint8Array(size);
-      this.loweredBy = new Int32Array(size);
-      this.order = new Int32Array(size);
       this.scratch = new Float64Array(size);
+      this.order = new Int32Array(size);
     }
     if (samples > this.samples) {
       const size = Math.max(samples, 2 * this.samples);

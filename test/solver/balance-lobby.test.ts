@@ -6,6 +6,7 @@ import { type BalanceResult, balanceLobby } from '../../src/solver/balance-lobby
 import type { CompiledRules } from '../../src/solver/rules.js';
 import type { LobbyFile } from '../../src/formats/lobby-file.js';
 import { MATCHES, demoLobbyPaths, readJson } from '../helpers/demo.js';
+import { referenceCurve } from './reference-answer.js';
 import { type ModelSpec, compiled, lobbyLatenciesArbitrary, lobbyOf, modelSpecArbitrary, rulesArbitrary, rulesOf, teamsArbitrary } from './arbitraries.js';
 
 type Solved = Exclude<BalanceResult, { status: 'rejected' }>;
@@ -16,14 +17,21 @@ const caseArbitrary = (points: boolean) =>
     .chain(([spec, rules, latencies, difficulty]) => teamsArbitrary(latencies.length).map((teams) => ({ spec, rules, latencies, teams, difficulty })));
 
 /** Solve a generated case; a rejection is allowed only for the two reasons the rules and lobby can cause. */
-function solve(spec: ModelSpec, rulesInput: Parameters<typeof rulesOf>[0], lobby: LobbyFile): { result: Solved; rules: CompiledRules } | null {
+function solve(model: ModelSpec, rulesInput: Parameters<typeof rulesOf>[0], lobby: LobbyFile): { result: Solved; rules: CompiledRules } | null {
   const rules = rulesOf(rulesInput);
-  const result = balanceLobby(lobby, compiled(spec), rules);
+  const result = balanceLobby(lobby, compiled(model), rules);
   if (result.status === 'rejected') {
     const codes = result.issues.map((issue) => issue.code);
     const eligible = lobby.players.filter((player) => rules.latency_limit_ms === null || estimateOf(player.latency_ms, rules) <= rules.latency_limit_ms).length;
     const floorCost = eligible * Math.max(0, rules.scale_floor - 1);
     if (codes[0] === 'no_eligible_player') expect(eligible).toBe(0);
+    else if (codes[0] === 'target_out_of_range') {
+      // Only for a target of exactly 1 or 0 in floating point (written out independently).
+      const spec = rules.target;
+      const eligibleCurves = lobby.players.filter((player) => rules.latency_limit_ms === null || estimateOf(player.latency_ms, rules) <= rules.latency_limit_ms).map((player) => referenceCurve(model, lobby.difficulty as number, estimateSamples(player.latency_ms, rules)));
+      const target = spec.kind === 'fixed' ? spec.probability : spec.kind === 'reference_latency' ? referenceCurve(model, lobby.difficulty as number, [spec.latency_ms])(1) : Math.max(...eligibleCurves.map((curve) => curve(1)));
+      expect(target === 1 || target === 0).toBe(true);
+    }
     else {
       expect(codes).toEqual(['budget_below_floor']);
       expect(floorCost).toBeGreaterThan(rules.assistance_budget ?? Infinity);
@@ -31,6 +39,11 @@ function solve(spec: ModelSpec, rulesInput: Parameters<typeof rulesOf>[0], lobby
     return null;
   }
   return { result, rules };
+}
+
+/** The latencies a player's curve averages over under the rules' estimator. */
+function estimateSamples(latency: number | number[], rules: CompiledRules): number[] {
+  return typeof latency === 'number' || rules.latency_estimator === 'all_samples' ? (typeof latency === 'number' ? [latency] : latency) : [estimateOf(latency, rules)];
 }
 
 /** Independent latency estimate: mean, or R type-7 quantile written out here. */
@@ -87,7 +100,12 @@ describe('balanceLobby() invariants (seeded fast-check, schema-valid models, lob
       fc.property(modelSpecArbitrary, lobbyLatenciesArbitrary(false), fc.constantFrom<'all_samples' | 'median'>('all_samples', 'median'), (spec, latencies, estimator) => {
         const rules = rulesOf({ scale_cap: 1e300, latency_estimator: estimator });
         const result = balanceLobby(lobbyOf(latencies), compiled(spec), rules);
-        if (result.status === 'rejected') throw new Error(JSON.stringify(result.issues));
+        if (result.status === 'rejected') {
+          // Refused only when the best-connected player's prediction is exactly 1 in floating point (written out independently).
+          const best = Math.max(...latencies.map((latency) => referenceCurve(spec, 1, estimateSamples(latency, rules))(1)));
+          expect([result.issues.map((issue) => issue.code), best]).toEqual([['target_out_of_range'], 1]);
+          return;
+        }
         for (const player of result.players) {
           expect(player.binding).toBe('none');
           expect(Math.abs(player.expected_after - result.target)).toBeLessThanOrEqual(1e-9);
@@ -109,33 +127,28 @@ describe('balanceLobby() invariants (seeded fast-check, schema-valid models, lob
     );
   });
 
-  it('property (400 runs): after compensation a higher-latency player never expects more than a lower-latency one, rounding included', () => {
+  it('property (400 runs): with point latencies and no soft cap, a worse-connected player ends above a better-connected one by at most the one-step bound', () => {
     fc.assert(
       fc.property(caseArbitrary(true), ({ spec, rules: input, latencies, teams, difficulty }) => {
-        const solved = solve(spec, input, lobbyOf(latencies, teams, difficulty));
+        const solved = solve(spec, { ...input, soft_cap: null }, lobbyOf(latencies, teams, difficulty));
         if (solved === null) return;
-        const players = [...eligibleOf(solved.result)].sort((left, right) => left.latency_estimate_ms - right.latency_estimate_ms);
-        for (let index = 1; index < players.length; index += 1) {
-          const lower = players[index - 1] as (typeof players)[number];
-          const higher = players[index] as (typeof players)[number];
-          if (higher.latency_estimate_ms > lower.latency_estimate_ms) expect(higher.expected_after).toBeLessThanOrEqual(lower.expected_after + 1e-12);
-        }
+        const { summary } = solved.result;
+        // Without a step the bound is 0: only rounding in the inverse separates two players.
+        expect(summary.largest_overtake).toBeLessThanOrEqual(summary.step_gain + 1e-9);
       }),
       { seed: 4205, numRuns: 400 },
     );
   });
 
-  it('property (300 runs): with sampled latencies a player worse off before never expects more after than one better off before', () => {
+  it('property (300 runs): largest_overtake is the largest amount by which a player ends above one with a higher expected performance before', () => {
     fc.assert(
       fc.property(caseArbitrary(false), ({ spec, rules: input, latencies, teams, difficulty }) => {
         const solved = solve(spec, input, lobbyOf(latencies, teams, difficulty));
         if (solved === null) return;
-        const players = [...eligibleOf(solved.result)].sort((left, right) => right.expected_before - left.expected_before);
-        for (let index = 1; index < players.length; index += 1) {
-          const better = players[index - 1] as (typeof players)[number];
-          const worse = players[index] as (typeof players)[number];
-          if (worse.expected_before < better.expected_before) expect(worse.expected_after).toBeLessThanOrEqual(better.expected_after + 1e-12);
-        }
+        const players = eligibleOf(solved.result);
+        let largest = 0;
+        for (const worse of players) for (const better of players) if (better.expected_before > worse.expected_before) largest = Math.max(largest, worse.expected_after - better.expected_after);
+        expect(solved.result.summary.largest_overtake).toBe(largest); // the pairwise definition, written out
       }),
       { seed: 4206, numRuns: 300 },
     );

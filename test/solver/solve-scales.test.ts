@@ -1,6 +1,8 @@
 import { describe, expect, it } from 'vitest';
 import { balanceLobby } from '../../src/solver/balance-lobby.js';
-import { gridDown, searchLimit, softCapped } from '../../src/solver/solve-scales.js';
+import { searchLimit, softCapped } from '../../src/solver/solve-scales.js';
+import { gridValue, indexAtOrBelow, liftIndex, scaleGrid } from '../../src/solver/scale-grid.js';
+import { referenceAnswer } from './reference-answer.js';
 import { type ModelSpec, compiled, lobbyOf, rulesOf } from './arbitraries.js';
 
 // A log-scale logit model with no interaction: the scale reaching level L at latency l is, by hand,
@@ -17,7 +19,7 @@ function solved(latencies: number[], rules: Parameters<typeof rulesOf>[0]) {
   return result;
 }
 
-describe('softCapped(), searchLimit() and gridDown()', () => {
+describe('softCapped(), searchLimit() and the scale grid', () => {
   const rules = rulesOf({ scale_cap: 2, soft_cap: { above: 1.2, fraction: 0.5 } });
   it('grant a fraction of the scale above the threshold, then the hard cap', () => {
     expect(softCapped(1.1, rules)).toBe(1.1);
@@ -25,10 +27,18 @@ describe('softCapped(), searchLimit() and gridDown()', () => {
     expect(softCapped(5, rules)).toBe(2);
     expect(searchLimit(rules)).toBeCloseTo(2.8, 15); // 1.2 + (2 - 1.2) / 0.5, by hand
   });
-  it('rounds down to the grid, never above the value', () => {
-    expect(gridDown(1.37, 0.1)).toBeCloseTo(1.3, 15);
-    expect(gridDown(1.5, 0.1)).toBeLessThanOrEqual(1.5);
-    expect(gridDown(1.5, 0.1)).toBeCloseTo(1.5, 12);
+  it('rounds down to the grid, never above the value, and names multiples by their decimals', () => {
+    const grid = scaleGrid(0.05, 1, 2);
+    expect(gridValue(grid, indexAtOrBelow(grid, 1.37))).toBe(1.35);
+    expect(gridValue(grid, indexAtOrBelow(grid, 1.35))).toBe(1.35); // 1.35 / 0.05 = 26.999999999999996 counts as on the grid
+    expect(gridValue(grid, 23)).toBe(1.15); // not 1.1500000000000001
+    expect(gridValue(scaleGrid(0.3, 0.9, 2), 3)).toBe(0.9);
+    expect(scaleGrid(0.3, 0.9, 2).oneIndex).toBe(3); // 0.9 is the last multiple at or below 1
+  });
+  it('lifts to the smallest multiple at or above largest / ratio', () => {
+    const grid = scaleGrid(0.1, 1, 3);
+    expect(gridValue(grid, liftIndex(grid, 16, 1.25))).toBe(1.3); // 1.6 / 1.25 = 1.28, up to 1.3
+    expect(gridValue(grid, liftIndex(grid, 15, 1.5))).toBe(1); // 1.5 / 1.5 = 1 exactly: no lift
   });
 });
 
@@ -80,13 +90,25 @@ describe('solveScales() through balanceLobby(): bindings', () => {
     expect(result.level).toBeCloseTo(low, 12);
   });
 
-  it('rounds down to the grid and walks so that a higher latency never expects more', () => {
+  it('rounds down to the grid without a walk: a worse-connected player may end above a better-connected one by one step at most', () => {
     const result = solved([10, 33, 36, 90], { scale_cap: 3, quantisation_step: 0.1 });
-    const scales = result.players.map((player) => player.scale);
-    for (const scale of scales) expect(Math.abs(scale * 10 - Math.round(scale * 10))).toBeLessThan(1e-9);
-    const after = result.players.map((player) => player.expected_after);
-    for (let index = 1; index < after.length; index += 1) expect(after[index]).toBeLessThanOrEqual((after[index - 1] as number) + 1e-15);
+    result.players.forEach((player, index) => {
+      const need = needed(target, [10, 33, 36, 90][index] as number);
+      expect(player.scale).toBeCloseTo(Math.floor(need * 10 + 1e-9) / 10, 12); // largest multiple of 0.1 at or below the need, by hand
+    });
     expect(result.players[3]?.binding).toBe('quantisation');
+    expect(result.summary.largest_overtake).toBeLessThanOrEqual(result.summary.step_gain);
+  });
+
+  it('pays a cheaper step across 1 after a full step is out of reach (floor 0.9, step 0.3: 0.9 -> 1.2 costs 0.2)', () => {
+    // Far (140 ms) is worst off: its crossing step (0.2) and next step (0.3) come first; 0.45 pays the crossing and
+    // leaves 0.25, short of far's next step but enough for near's crossing step.
+    const latencies = [10, 60, 140];
+    const rules = rulesOf({ scale_floor: 0.9, scale_cap: 3, quantisation_step: 0.3, assistance_budget: 0.45 });
+    const result = solved(latencies, { scale_floor: 0.9, scale_cap: 3, quantisation_step: 0.3, assistance_budget: 0.45 });
+    const reference = referenceAnswer(spec, 0, latencies.map((latency, index) => ({ id: `p00${index}`, latencies: [latency] })), rules, result.target);
+    result.players.forEach((player, index) => expect(player.scale).toBeCloseTo(reference.scales[index] as number, 12)); // enumeration
+    expect(result.players.map((player) => player.scale)).toEqual([0.9, 1.2, 1.2]);
   });
 
   it('refuses a budget smaller than the floor costs, with a code', () => {
