@@ -36,7 +36,7 @@ import type { RulesInput } from '../../src/formats/rules-file.js';
 import type { RandomSource } from '../../src/random.js';
 import type { LinkName } from '../../src/model/links.js';
 import { type ModelSpec, MAX_LATENCY, compiled, rulesOf } from './arbitraries.js';
-import { referenceCurve } from './reference-answer.js';
+import { referenceCurve, referenceNeed } from './reference-answer.js';
 
 export const INVARIANTS = ['feasible', 'ineligible', 'finite', 'plain_rounding', 'above_target', 'labels', 'no_free_step', 'overtake_bound', 'permutation', 'bulk'] as const;
 export type Invariant = (typeof INVARIANTS)[number];
@@ -166,18 +166,7 @@ export function checkInvariants(drawn: FuzzCase, permutationKeys: readonly numbe
   const limit = soft === null ? cap : soft.above + (cap - soft.above) / soft.fraction;
 
   // Each player's need, upper_i, A_i's top and ceiling u_i, written out (bisection on the written-out curve).
-  const needFor = (curve: (s: number) => number, level: number): number => {
-    if (curve(floor) >= level) return floor;
-    if (curve(limit) < level) return Infinity;
-    let low = floor;
-    let high = limit;
-    for (let iteration = 0; iteration < 100 && high - low > 1e-14 * high; iteration += 1) {
-      const middle = 0.5 * (low + high);
-      if (curve(middle) < level) low = middle;
-      else high = middle;
-    }
-    return high;
-  };
+  const needFor = (curve: (s: number) => number, level: number): number => referenceNeed(curve, level, floor, limit);
   const own = curves.map((curve) => {
     const need = needFor(curve, target);
     // Where a curve is flat, scales 1e-9 apart in probability can be far apart: the soft cap's grant is allowed up to

@@ -52,6 +52,24 @@ export function referenceCurve(spec: ModelSpec, difficulty: number, latencies: r
   };
 }
 
+/**
+ * The scale at which a curve reaches `level`, by bisection on [floor, limit]
+ * to 1e-15 relative: the floor if the curve is already there, Infinity if it
+ * never gets there.
+ */
+export function referenceNeed(curve: (scale: number) => number, level: number, floor: number, limit: number): number {
+  if (curve(floor) >= level) return floor;
+  if (curve(limit) < level) return Infinity;
+  let low = floor;
+  let high = limit;
+  for (let iteration = 0; iteration < 200 && high - low > 1e-15 * high; iteration += 1) {
+    const middle = 0.5 * (low + high);
+    if (curve(middle) < level) low = middle;
+    else high = middle;
+  }
+  return high;
+}
+
 /** Enumerate every allowed vector and return the answer. Cost: product of the players' grid sizes. */
 export function referenceAnswer(spec: ModelSpec, difficulty: number, players: readonly ReferencePlayer[], rules: CompiledRules, target: number): ReferenceAnswer {
   const step = rules.quantisation_step;
@@ -63,20 +81,7 @@ export function referenceAnswer(spec: ModelSpec, difficulty: number, players: re
   const allowed: number[][] = [];
   const ceilings: number[] = [];
   curves.forEach((curve) => {
-    // The scale the player needs, by bisection on [floor, limit].
-    let need: number;
-    if (curve(floor) >= target) need = floor;
-    else if (curve(limit) < target) need = Infinity;
-    else {
-      let low = floor;
-      let high = limit;
-      for (let iteration = 0; iteration < 200 && high - low > 1e-15 * high; iteration += 1) {
-        const middle = 0.5 * (low + high);
-        if (curve(middle) < target) low = middle;
-        else high = middle;
-      }
-      need = high;
-    }
+    const need = referenceNeed(curve, target, floor, limit);
     const upper = soft !== null && need > soft.above ? Math.min(cap, soft.above + soft.fraction * (need - soft.above)) : cap;
     const values: number[] = [];
     for (let k = Math.ceil(floor / step - 1e-9); k * step <= upper + 1e-9 * step; k += 1) values.push(k * step);
