@@ -251,7 +251,7 @@ export function balanceLobby(lobby: LobbyFile, model: CompiledModel, rules: Comp
     team_gap_after: teams.length < 2 ? null : spread(teams, (team) => team.mean_after),
     assistance: solution.assistance,
     eligible_players: count,
-    ...orderingFigures(count, solution.before, solution.after, solution.scales, solution.step, rules.scale_floor, solved.curves, model.link, model.scaleForm as ScaleForm, sharedWorkspace.order),
+    ...orderingFigures(count, solution.before, solution.after, solution.scales, solution.step, rules.scale_floor, solved.curves, model.link, model.scaleForm as ScaleForm, sharedWorkspace.order, sharedWorkspace.heap),
     lift: solution.lift,
   };
   const result = {

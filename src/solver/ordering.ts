@@ -27,7 +27,7 @@ export interface OrderingFigures {
 /**
  * The ordering figures of a solved lobby.
  *
- * @param order scratch of at least `count` slots.
+ * @param order, buffer scratch of at least `count` slots each.
  * Cost: a sort of the players, plus two curve evaluations per player with a step.
  */
 export function orderingFigures(
@@ -41,10 +41,9 @@ export function orderingFigures(
   link: Link,
   form: ScaleForm,
   order: Int32Array,
+  buffer: Int32Array,
 ): OrderingFigures {
-  const slots = order.subarray(0, count);
-  for (let slot = 0; slot < count; slot += 1) slots[slot] = slot;
-  slots.sort((left, right) => (before[right] as number) - (before[left] as number));
+  const slots = sortDescending(before, count, order, buffer);
   let largest = 0;
   let lowestBetter = Infinity;
   let position = 0;
@@ -75,4 +74,42 @@ export function orderingFigures(
     }
   }
   return { largest_overtake: largest, step_gain: bound };
+}
+
+/**
+ * Slots 0 .. count - 1 ordered by `keys` from the largest, into `order`: a
+ * bottom-up merge sort (stable; Knuth, TAOCP vol. 3, 5.2.4) with the
+ * comparisons inline. A comparator passed to Array.prototype.sort cost a fifth
+ * of a 100-player balanceLobby here.
+ */
+export function sortDescending(keys: Float64Array, count: number, order: Int32Array, buffer: Int32Array): Int32Array {
+  let source = order;
+  let target = buffer;
+  for (let slot = 0; slot < count; slot += 1) source[slot] = slot;
+  for (let width = 1; width < count; width *= 2) {
+    for (let start = 0; start < count; start += 2 * width) {
+      const middle = Math.min(start + width, count);
+      const end = Math.min(start + 2 * width, count);
+      let left = start;
+      let right = middle;
+      let out = start;
+      while (left < middle && right < end) {
+        const leftSlot = source[left] as number;
+        const rightSlot = source[right] as number;
+        if ((keys[rightSlot] as number) > (keys[leftSlot] as number)) {
+          target[out++] = rightSlot;
+          right += 1;
+        } else {
+          target[out++] = leftSlot;
+          left += 1;
+        }
+      }
+      while (left < middle) target[out++] = source[left++] as number;
+      while (right < end) target[out++] = source[right++] as number;
+    }
+    const swap = source;
+    source = target;
+    target = swap;
+  }
+  return source.subarray(0, count);
 }

@@ -38,8 +38,9 @@ import type { Link } from '../model/links.js';
 import type { CompiledRules } from './rules.js';
 import { type CurveSet, expectedAtTerm } from './player-curve.js';
 import { type ScaleForm, playerCeilings, termOf } from './player-ceilings.js';
-import { type ScaleGrid, assistanceUnits, budgetUnits, gridValue, largestUnderLift, liftIndex, scaleGrid, unitsToAssistance } from './scale-grid.js';
-import { type StepBox, fillSteps } from './step-greedy.js';
+import { type ScaleGrid, assistanceUnits, budgetUnits, gridValue, scaleGrid, unitsToAssistance } from './scale-grid.js';
+import { LiftSearch } from './lift-search.js';
+import { highestLinked, lowestLinked } from './level-bounds.js';
 import { type LevelBox, waterLevel } from './water-level.js';
 import { labelPlayers } from './bindings.js';
 import { EXCESS_OVER_ONE, SolveWorkspace, orderFreeSum } from './workspace.js';
@@ -168,11 +169,9 @@ function solveOnReals(problem: ScaleProblem, workspace: SolveWorkspace): Answer 
   const budget = rules.assistance_budget;
   if (budget === null || assistance <= budget) return { level: target, assistance, lift, ratioCeiling };
   const box: LevelBox = { curves, link, form, low, high: highScale, lowTerm, highTerm, ratio, floor, scales };
-  let lowLinked = Infinity;
-  for (let sample = 0; sample < (curves.offsets[count] as number); sample += 1) {
-    lowLinked = Math.min(lowLinked, (curves.alphas[sample] as number) + (curves.betas[sample] as number) * floorTerm);
-  }
-  const water = waterLevel(box, budget, lowLinked, Math.min(link.link(target), highestLinked(curves, highTerm)));
+  const lowLinked = lowestLinked(curves, floorTerm);
+  const floorCost = count * Math.max(0, floor - 1);
+  const water = waterLevel(box, budget, { low: lowLinked, lowAssistance: floorCost, high: Math.min(link.link(target), highestLinked(curves, highTerm)), highAssistance: assistance }, 1e-14 * Math.max(1, budget));
   assistance = water.assistance;
   largest = -Infinity;
   for (let player = 0; player < count; player += 1) largest = Math.max(largest, scales[player] as number);
@@ -180,153 +179,23 @@ function solveOnReals(problem: ScaleProblem, workspace: SolveWorkspace): Answer 
   return { level: link.inverse(water.linked), assistance, lift, ratioCeiling };
 }
 
-/** With a step: the greedy inside the box of each candidate lift (see the module comment). */
+/** With a step: the greedy inside the box of each candidate lift (see the module comment and lift-search.ts). */
 function solveOnGrid(problem: ScaleProblem, grid: ScaleGrid, workspace: SolveWorkspace): Answer {
-  const { curves, target, link, form, rules } = problem;
-  const count = curves.count;
-  const ratio = rules.max_scale_ratio;
-  const budget = rules.assistance_budget === null ? null : budgetUnits(grid, rules.assistance_budget);
-  const { top, ceiling, start, high, index, scales } = workspace;
-  const rank = workspace.rank.subarray(0, count);
-  // Ranks break ties in the budget's greedy only.
-  if (budget !== null) idRanks(problem.ids, count, rank);
-  const relaxation: LevelBox = {
-    curves,
-    link,
-    form,
-    low: workspace.low,
-    high: workspace.highScale,
-    lowTerm: workspace.lowTerm,
-    highTerm: workspace.highTerm,
-    ratio: null,
-    floor: rules.scale_floor,
-    scales: workspace.scratch,
-  };
-  const box: StepBox = { grid, target, curves, link, form, rank, start, high, index, frozen: workspace.frozen, heap: workspace.heap, key: workspace.key, relaxation };
-  const floorIndex = grid.floorIndex;
-  const { flat, bestIndex } = workspace;
-  const valueAt = (at: number, player: number) => expectedAtTerm(curves, player, link, termOf(form, gridValue(grid, at)));
-  let ranked = budget !== null;
-  const rankOf = (player: number): number => {
-    if (!ranked) {
-      idRanks(problem.ids, count, rank);
-      ranked = true;
-    }
-    return rank[player] as number;
-  };
-
-  /** The greedy for lift `lift`, or null when the lift is infeasible (or not really the lift). */
-  const atLift = (lift: number): { units: number; level: number; ceilingIndex: number } | null => {
-    if (budget !== null && count * assistanceUnits(grid, lift) > budget) return null;
-    const largestAllowed = ratio === null ? Infinity : largestUnderLift(grid, lift, ratio);
-    for (let player = 0; player < count; player += 1) {
-      const own = Math.max(ceiling[player] as number, lift);
-      const highest = Math.min(largestAllowed, own, top[player] as number);
-      if (highest < lift) return null;
-      high[player] = highest;
-      start[player] = Math.max(lift, Math.min(highest, grid.oneIndex));
-    }
-    const filled = fillSteps(box, budget);
-    let units = filled.units;
-    // Steps that leave a player at the target gain nothing (a curve flat in floating point): the least assistance drops them.
-    let shaved = -1;
-    for (let player = 0; player < count; player += 1) {
-      if (flat[player] === 0) continue;
-      const before = index[player] as number;
-      let at = before;
-      while (at > (start[player] as number) && valueAt(at - 1, player) >= target) at -= 1;
-      if (at < before) {
-        units -= assistanceUnits(grid, before) - assistanceUnits(grid, at);
-        bestIndex[player] = before;
-        index[player] = at;
-        shaved = player;
-      }
-    }
-    if (ratio !== null && lift > floorIndex) {
-      const needed = largestUnderLift(grid, lift - 1, ratio) + 1;
-      let largest = -Infinity;
-      for (let player = 0; player < count; player += 1) largest = Math.max(largest, index[player] as number);
-      if (largest < needed && shaved >= 0) {
-        // Shaving took away the scale that makes this lift the lift: give it back to one player, the first by id.
-        let chosenPlayer = -1;
-        for (let player = 0; player < count; player += 1) {
-          if (flat[player] === 1 && (bestIndex[player] as number) >= needed && (index[player] as number) < needed && (chosenPlayer < 0 || (rankOf(player) < rankOf(chosenPlayer)))) chosenPlayer = player;
-        }
-        if (chosenPlayer >= 0) {
-          units += assistanceUnits(grid, needed) - assistanceUnits(grid, index[chosenPlayer] as number);
-          index[chosenPlayer] = needed;
-          largest = needed;
-        }
-      }
-      if (largest < needed) return null;
-    }
-    return { units, level: filled.level, ceilingIndex: largestAllowed };
-  };
-
-  let chosen = floorIndex;
-  if (ratio !== null) {
-    let smallestTop = Infinity;
-    let largestCeiling = -Infinity;
-    for (let player = 0; player < count; player += 1) {
-      smallestTop = Math.min(smallestTop, top[player] as number);
-      largestCeiling = Math.max(largestCeiling, ceiling[player] as number);
-    }
-    // Lifts above the largest ceiling's own lift are possible only where the ratio forces equal scales (L(m) = m).
-    let equalUpTo = ratio <= 1 ? smallestTop : Math.min(smallestTop, Math.ceil(ratio / (ratio - 1)) + 1);
-    while (equalUpTo > floorIndex && liftIndex(grid, equalUpTo, ratio) !== equalUpTo) equalUpTo -= 1;
-    let low = floorIndex;
-    let highLift = Math.min(smallestTop, Math.max(liftIndex(grid, largestCeiling, ratio), equalUpTo));
-    while (low < highLift) {
-      const middle = Math.floor((low + highLift + 1) / 2);
-      if (atLift(middle) !== null) low = middle;
-      else highLift = middle - 1;
-    }
-    chosen = low;
-    // The smallest lift with the same sorted values: its assistance is least.
-    if (chosen > floorIndex) {
-      const best = workspace.bestObjective;
-      atLift(chosen);
-      sortedObjective(box, target, best);
-      const same = (lift: number): boolean => {
-        if (atLift(lift) === null) return false;
-        sortedObjective(box, target, workspace.objective);
-        for (let player = 0; player < count; player += 1) if (workspace.objective[player] !== best[player]) return false;
-        return true;
-      };
-      if (same(chosen - 1)) {
-        let bottom = floorIndex;
-        let upper = chosen - 1;
-        while (bottom < upper) {
-          const middle = Math.floor((bottom + upper) / 2);
-          if (same(middle)) upper = middle;
-          else bottom = middle + 1;
-        }
-        chosen = bottom;
-      }
-    }
-  }
-  const answer = atLift(chosen) as { units: number; level: number; ceilingIndex: number };
-  for (let player = 0; player < count; player += 1) scales[player] = gridValue(grid, index[player] as number);
+  const search = new LiftSearch(problem, grid, workspace, idRanks);
+  const chosen = search.answerLift();
+  const trial = search.trial(chosen);
+  const { scales, index } = workspace;
+  for (let player = 0; player < problem.curves.count; player += 1) scales[player] = gridValue(grid, index[player] as number);
   return {
-    level: answer.level === Infinity ? target : Math.min(target, answer.level),
-    assistance: unitsToAssistance(grid, answer.units),
+    level: trial.level === Infinity ? problem.target : Math.min(problem.target, trial.level),
+    assistance: unitsToAssistance(grid, trial.units),
     lift: gridValue(grid, chosen),
-    ratioCeiling: answer.ceilingIndex,
+    ratioCeiling: trial.ratioCeiling,
   };
-}
-
-/** min(E_i(s_i), T) for the box's indices, sorted ascending, into `out`. */
-function sortedObjective(box: StepBox, target: number, out: Float64Array): void {
-  const count = box.curves.count;
-  for (let player = 0; player < count; player += 1) {
-    const value = expectedAtTerm(box.curves, player, box.link, termOf(box.form, gridValue(box.grid, box.index[player] as number)));
-    out[player] = value < target ? value : target;
-  }
-  out.subarray(0, count).sort();
 }
 
 /** Each player's position in code-unit order of their ids (slot order when there are none, or for equal ids). */
-function idRanks(ids: readonly string[] | null, count: number, rank: Int32Array): void {
+export function idRanks(ids: readonly string[] | null, count: number, rank: Int32Array): void {
   for (let player = 0; player < count; player += 1) rank[player] = player;
   if (ids === null) return;
   const order = Array.from({ length: count }, (_, player) => player);
@@ -338,18 +207,3 @@ function idRanks(ids: readonly string[] | null, count: number, rank: Int32Array)
   for (let position = 0; position < count; position += 1) rank[order[position] as number] = position;
 }
 
-/**
- * A finite link value at which every player's curve is at or below the value
- * at their highest scale (so the water level there puts everyone at the top
- * of their range): the largest predictor over all samples at that scale.
- */
-export function highestLinked(curves: CurveSet, highTerm: Float64Array): number {
-  let highest = -Infinity;
-  for (let player = 0; player < curves.count; player += 1) {
-    const term = highTerm[player] as number;
-    for (let sample = curves.offsets[player] as number; sample < (curves.offsets[player + 1] as number); sample += 1) {
-      highest = Math.max(highest, (curves.alphas[sample] as number) + (curves.betas[sample] as number) * term);
-    }
-  }
-  return highest;
-}

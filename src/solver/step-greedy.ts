@@ -38,6 +38,7 @@ import { type CurveSet, expectedAtTerm } from './player-curve.js';
 import { type ScaleForm, termOf } from './player-ceilings.js';
 import { type ScaleGrid, assistanceUnits, gridValue, indexAtOrAbove } from './scale-grid.js';
 import { type LevelBox, waterLevel } from './water-level.js';
+import { highestLinked, lowestLinked } from './level-bounds.js';
 
 export interface StepBox {
   readonly grid: ScaleGrid;
@@ -53,10 +54,11 @@ export interface StepBox {
   readonly high: Float64Array;
   /** Receives each player's index. */
   readonly index: Float64Array;
-  /** Scratch: per-player flags, heap slots and heap keys. */
+  /** Scratch: per-player flags, heap slots, and the curve's value before each player's last step and next step (heap keys). */
   readonly frozen: Uint8Array;
   readonly heap: Int32Array;
-  readonly key: Float64Array;
+  readonly lastKey: Float64Array;
+  readonly nextKey: Float64Array;
   /** Scratch for the relaxation: its scales, bounds and terms (`scales` may alias nothing else). */
   readonly relaxation: LevelBox;
 }
@@ -73,21 +75,20 @@ function valueAt(box: StepBox, player: number, index: number): number {
 }
 
 /** Heap order: by key, then by rank; `sign` 1 for a min-heap, -1 for a max-heap. */
-function before(box: StepBox, left: number, right: number, sign: number): boolean {
-  const leftKey = box.key[left] as number;
-  const rightKey = box.key[right] as number;
+function before(keys: Float64Array, rank: Int32Array, left: number, right: number, sign: number): boolean {
+  const leftKey = keys[left] as number;
+  const rightKey = keys[right] as number;
   if (leftKey !== rightKey) return sign > 0 ? leftKey < rightKey : leftKey > rightKey;
-  return sign > 0 ? (box.rank[left] as number) < (box.rank[right] as number) : (box.rank[left] as number) > (box.rank[right] as number);
+  return sign > 0 ? (rank[left] as number) < (rank[right] as number) : (rank[left] as number) > (rank[right] as number);
 }
 
-function push(box: StepBox, size: number, player: number, sign: number): number {
-  const heap = box.heap;
+function push(heap: Int32Array, keys: Float64Array, rank: Int32Array, size: number, player: number, sign: number): number {
   let position = size;
   heap[position] = player;
   while (position > 0) {
     const parent = (position - 1) >> 1;
     const above = heap[parent] as number;
-    if (!before(box, player, above, sign)) break;
+    if (!before(keys, rank, player, above, sign)) break;
     heap[position] = above;
     heap[parent] = player;
     position = parent;
@@ -95,24 +96,32 @@ function push(box: StepBox, size: number, player: number, sign: number): number 
   return size + 1;
 }
 
-function pop(box: StepBox, size: number, sign: number): number {
-  const heap = box.heap;
-  const last = heap[size - 1] as number;
-  const count = size - 1;
-  let position = 0;
-  heap[0] = last;
+function siftDown(heap: Int32Array, keys: Float64Array, rank: Int32Array, size: number, from: number, sign: number): void {
+  const moving = heap[from] as number;
+  let position = from;
   for (;;) {
     const left = 2 * position + 1;
-    if (left >= count) break;
+    if (left >= size) break;
     const right = left + 1;
     let child = left;
-    if (right < count && before(box, heap[right] as number, heap[left] as number, sign)) child = right;
-    if (!before(box, heap[child] as number, last, sign)) break;
+    if (right < size && before(keys, rank, heap[right] as number, heap[left] as number, sign)) child = right;
+    if (!before(keys, rank, heap[child] as number, moving, sign)) break;
     heap[position] = heap[child] as number;
-    heap[child] = last;
     position = child;
   }
-  return count;
+  heap[position] = moving;
+}
+
+/** Remove the top; returns the new size. */
+function pop(heap: Int32Array, keys: Float64Array, rank: Int32Array, size: number, sign: number): number {
+  heap[0] = heap[size - 1] as number;
+  if (size > 2) siftDown(heap, keys, rank, size - 1, 0, sign);
+  return size - 1;
+}
+
+/** Order the first `size` entries of `heap` into a heap (Floyd's construction, O(size)). */
+function heapify(heap: Int32Array, keys: Float64Array, rank: Int32Array, size: number, sign: number): void {
+  for (let from = (size >> 1) - 1; from >= 0; from -= 1) siftDown(heap, keys, rank, size, from, sign);
 }
 
 /**
@@ -121,7 +130,7 @@ function pop(box: StepBox, size: number, sign: number): number {
  * that every player at `start` is affordable.
  */
 export function fillSteps(box: StepBox, budget: number | null): StepFill {
-  const { grid, curves, start, high, index, frozen } = box;
+  const { grid, curves, start, high, index, frozen, heap, rank, lastKey, nextKey } = box;
   const count = curves.count;
   let units = 0;
   let highest = 0;
@@ -131,9 +140,10 @@ export function fillSteps(box: StepBox, budget: number | null): StepFill {
   }
   if (budget === null || highest <= budget) return { units: highest, level: Infinity };
 
-  // Warm start: the relaxation's water level, then every player at the events below it.
+  // Warm start: the relaxation's water level, to within a step of assistance (the heaps below move the rest).
   const relaxation = box.relaxation;
-  let lowLinked = Infinity;
+  let lowAssistance = 0;
+  let highAssistance = 0;
   for (let player = 0; player < count; player += 1) {
     const bottom = gridValue(grid, start[player] as number);
     const top = gridValue(grid, high[player] as number);
@@ -141,29 +151,42 @@ export function fillSteps(box: StepBox, budget: number | null): StepFill {
     relaxation.high[player] = top;
     relaxation.lowTerm[player] = termOf(box.form, bottom);
     relaxation.highTerm[player] = termOf(box.form, top);
-    const first = curves.offsets[player] as number;
-    const end = curves.offsets[player + 1] as number;
-    for (let sample = first; sample < end; sample += 1) {
-      const linked = (curves.alphas[sample] as number) + (curves.betas[sample] as number) * (relaxation.lowTerm[player] as number);
-      if (linked < lowLinked) lowLinked = linked;
-    }
+    lowAssistance += Math.max(0, bottom - 1);
+    highAssistance += Math.max(0, top - 1);
   }
-  let highLinked = -Infinity;
-  for (let player = 0; player < count; player += 1) {
-    const term = relaxation.highTerm[player] as number;
-    for (let sample = curves.offsets[player] as number; sample < (curves.offsets[player + 1] as number); sample += 1) {
-      highLinked = Math.max(highLinked, (curves.alphas[sample] as number) + (curves.betas[sample] as number) * term);
-    }
-  }
-  const relaxed = waterLevel(relaxation, unitsToScale(grid, budget), Math.min(lowLinked, highLinked), highLinked);
+  const highLinked = highestLinked(curves, relaxation.highTerm);
+  const lowLinked = Math.min(highLinked, lowestLinked(curves, relaxation.lowTerm));
+  const relaxed = waterLevel(relaxation, unitsToScale(grid, budget), { low: lowLinked, lowAssistance, high: highLinked, highAssistance }, grid.step);
   const theta = box.link.inverse(relaxed.linked);
+  // Every player takes exactly the events below theta; the curve's values next to the answer are kept as heap keys.
   for (let player = 0; player < count; player += 1) {
     const first = start[player] as number;
     const top = high[player] as number;
     let at = Math.min(top, Math.max(first, indexAtOrAbove(grid, relaxation.scales[player] as number)));
-    while (at > first && valueAt(box, player, at - 1) >= theta) at -= 1;
-    while (at < top && valueAt(box, player, at) < theta) at += 1;
+    let below = Number.NaN;
+    let above = Number.NaN;
+    while (at > first) {
+      const value = valueAt(box, player, at - 1);
+      if (value < theta) {
+        below = value;
+        break;
+      }
+      above = value;
+      at -= 1;
+    }
+    while (at < top) {
+      const value = Number.isNaN(above) ? valueAt(box, player, at) : above;
+      if (value >= theta) {
+        above = value;
+        break;
+      }
+      below = value;
+      above = Number.NaN;
+      at += 1;
+    }
     index[player] = at;
+    lastKey[player] = below;
+    nextKey[player] = above;
     frozen[player] = 0;
     units += assistanceUnits(grid, at);
   }
@@ -172,52 +195,46 @@ export function fillSteps(box: StepBox, budget: number | null): StepFill {
   // Backward: give back the last events taken, latest first, until the budget holds.
   if (units > budget) {
     let size = 0;
-    for (let player = 0; player < count; player += 1) {
-      if ((index[player] as number) > (start[player] as number)) {
-        box.key[player] = valueAt(box, player, (index[player] as number) - 1);
-        size = push(box, size, player, -1);
-      }
-    }
+    for (let player = 0; player < count; player += 1) if ((index[player] as number) > (start[player] as number)) heap[size++] = player;
+    heapify(heap, lastKey, rank, size, -1);
     while (units > budget && size > 0) {
-      const player = box.heap[0] as number;
-      size = pop(box, size, -1);
+      const player = heap[0] as number;
+      size = pop(heap, lastKey, rank, size, -1);
       const at = index[player] as number;
       units -= assistanceUnits(grid, at) - assistanceUnits(grid, at - 1);
       index[player] = at - 1;
+      nextKey[player] = lastKey[player] as number;
       if (units <= budget) {
-        level = box.key[player] as number;
+        level = lastKey[player] as number;
         frozen[player] = 1;
         break;
       }
       if (at - 1 > (start[player] as number)) {
-        box.key[player] = valueAt(box, player, at - 2);
-        size = push(box, size, player, -1);
+        lastKey[player] = valueAt(box, player, at - 2);
+        size = push(heap, lastKey, rank, size, player, -1);
       }
     }
   }
-  // Forward: the next events in order; one the budget cannot pay freezes its player.
+  // Forward: the next events in order; one the budget cannot pay freezes its player, one at the target gains nothing.
   let size = 0;
-  for (let player = 0; player < count; player += 1) {
-    if (frozen[player] === 0 && (index[player] as number) < (high[player] as number)) {
-      box.key[player] = valueAt(box, player, index[player] as number);
-      size = push(box, size, player, 1);
-    }
-  }
+  for (let player = 0; player < count; player += 1) if (frozen[player] === 0 && (index[player] as number) < (high[player] as number)) heap[size++] = player;
+  heapify(heap, nextKey, rank, size, 1);
   while (size > 0) {
-    const player = box.heap[0] as number;
-    size = pop(box, size, 1);
+    const player = heap[0] as number;
+    size = pop(heap, nextKey, rank, size, 1);
     const at = index[player] as number;
+    const key = nextKey[player] as number;
+    if (key >= box.target) continue;
     const step = assistanceUnits(grid, at + 1) - assistanceUnits(grid, at);
-    if ((box.key[player] as number) >= box.target) continue;
     if (units + step > budget) {
-      if (level === Infinity) level = box.key[player] as number;
+      if (level === Infinity) level = key;
       continue;
     }
     units += step;
     index[player] = at + 1;
     if (at + 1 < (high[player] as number)) {
-      box.key[player] = valueAt(box, player, at + 1);
-      size = push(box, size, player, 1);
+      nextKey[player] = valueAt(box, player, at + 1);
+      size = push(heap, nextKey, rank, size, player, 1);
     }
   }
   return { units, level };

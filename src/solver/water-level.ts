@@ -10,10 +10,12 @@
  * and continuous: the largest affordable level is the root of
  * assistance(theta) = budget. It is found on the link scale g(theta) (so that
  * levels near 0 or 1, players around a second of latency, are resolved as
- * finely as any other) by the Illinois variant of regula falsi (Dowell and
- * Jarratt (1971), "A modified regula falsi method for computing the root of
- * an equation", BIT 11, 168-174), kept inside the bracket, until the bracket
- * is a few ulps wide or the assistance is within 1e-14 of the budget.
+ * finely as any other) by regula falsi with the Anderson-Bjorck weights
+ * (Anderson and Bjorck (1973), "A new high order method of regula falsi
+ * type for computing a root of an equation", BIT 13, 253-264; the Illinois
+ * halving of Dowell and Jarratt (1971) where their factor is not positive),
+ * kept inside the bracket, until the bracket is a few ulps wide or the
+ * assistance is within the caller's tolerance of the budget.
  * The level returned is the bracket's affordable end.
  *
  * Cost: O(players x samples) per level (closed-form inverse for a point
@@ -66,39 +68,67 @@ export function fillAtLevel(box: LevelBox, linked: number): number {
   return orderFreeSum(scales, count, EXCESS_OVER_ONE);
 }
 
+/** A bracket of the water level: link values whose assistance is known to be within the budget (low) and above it (high). */
+export interface LevelBracket {
+  readonly low: number;
+  readonly lowAssistance: number;
+  readonly high: number;
+  readonly highAssistance: number;
+}
+
 /**
- * The largest link value in [lowLinked, highLinked] whose level is affordable,
- * given assistance(lowLinked) <= budget < assistance(highLinked). Leaves
- * `box.scales` filled at it and returns it with its assistance.
+ * The largest link value in the bracket whose level is affordable, given
+ * assistance(low) <= budget < assistance(high): it stops when the bracket is
+ * a few ulps wide or the affordable end is within `closeEnough` of the
+ * budget. Leaves `box.scales` filled at it and returns it with its
+ * assistance.
  */
-export function waterLevel(box: LevelBox, budget: number, lowLinked: number, highLinked: number): { readonly linked: number; readonly assistance: number } {
-  let low = lowLinked;
-  let high = highLinked;
-  let lowValue = fillAtLevel(box, low) - budget;
-  const highValue = fillAtLevel(box, high) - budget;
-  // Illinois: the weights halve the stale end's value when the same end moves twice in a row.
+export function waterLevel(box: LevelBox, budget: number, bracket: LevelBracket, closeEnough: number): { readonly linked: number; readonly assistance: number } {
+  let { low, high } = bracket;
+  let lowValue = bracket.lowAssistance - budget;
   let lowWeight = lowValue;
-  let highWeight = highValue;
+  let highWeight = bracket.highAssistance - budget;
   let side = 0;
-  const closeEnough = 1e-14 * Math.max(1, budget);
+  let filledAtLow = false;
+  let width = Infinity;
   for (let iteration = 0; iteration < 200; iteration += 1) {
     if (high - low <= 4 * Number.EPSILON * Math.max(1, Math.abs(low), Math.abs(high))) break;
     if (lowValue >= -closeEnough) break;
+    // Safeguard (as Brent's method does): if two steps have not halved the bracket, bisect, so that kinks (players
+    // reaching their bounds) cannot slow the search below bisection's pace.
     let middle = high - (highWeight * (high - low)) / (highWeight - lowWeight);
-    if (!(middle > low && middle < high)) middle = 0.5 * (low + high);
+    if (!(middle > low && middle < high) || (iteration % 2 === 0 && high - low > 0.5 * width)) middle = 0.5 * (low + high);
+    if (iteration % 2 === 0) width = high - low;
+    // The root reached from above: step just below it by twice the secant's estimate (and a few ulps), so that the
+    // affordable end arrives too instead of creeping up by bisection.
+    if (side === 1 && highWeight <= closeEnough) {
+      const slope = (highWeight - lowValue) / (high - low);
+      const below = high - 2 * (highWeight / slope) - 4 * Number.EPSILON * Math.max(1, Math.abs(high));
+      if (below > low && below < high) middle = below;
+    }
     const value = fillAtLevel(box, middle) - budget;
+    // Anderson-Bjorck: when the same end moves twice, the stale end's weight shrinks by m = 1 - f(new) / f(old), or
+    // halves (Illinois) when m <= 0 (Anderson and Bjorck (1973), BIT 13, 253-264).
     if (value <= 0) {
+      if (side === -1) {
+        const shrink = 1 - value / lowWeight;
+        highWeight *= shrink > 0 ? shrink : 0.5;
+      }
       low = middle;
       lowValue = value;
       lowWeight = value;
-      if (side === -1) highWeight *= 0.5;
+      filledAtLow = true;
       side = -1;
     } else {
+      if (side === 1) {
+        const shrink = 1 - value / highWeight;
+        lowWeight *= shrink > 0 ? shrink : 0.5;
+      }
       high = middle;
       highWeight = value;
-      if (side === 1) lowWeight *= 0.5;
+      filledAtLow = false;
       side = 1;
     }
   }
-  return { linked: low, assistance: fillAtLevel(box, low) };
+  return { linked: low, assistance: filledAtLow ? lowValue + budget : fillAtLevel(box, low) };
 }

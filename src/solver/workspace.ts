@@ -33,7 +33,8 @@ export class SolveWorkspace {
   bestIndex = new Float64Array(0);
   frozen = new Uint8Array(0);
   heap = new Int32Array(0);
-  key = new Float64Array(0);
+  lastKey = new Float64Array(0);
+  nextKey = new Float64Array(0);
   rank = new Int32Array(0);
   /** Water-filling bounds and scales (water-level.ts). */
   low = new Float64Array(0);
@@ -71,7 +72,8 @@ export class SolveWorkspace {
       this.bestIndex = new Float64Array(size);
       this.frozen = new Uint8Array(size);
       this.heap = new Int32Array(size);
-      this.key = new Float64Array(size);
+      this.lastKey = new Float64Array(size);
+      this.nextKey = new Float64Array(size);
       this.rank = new Int32Array(size);
       this.low = new Float64Array(size);
       this.lowTerm = new Float64Array(size);

@@ -16,6 +16,7 @@ import { balanceLobby, type BalanceOptions } from '../../src/solver/balance-lobb
 import { compileRules } from '../../src/solver/rules.js';
 import { solveSampledScalesInto, solveScalesInto } from '../../src/solver/solve-scales-into.js';
 import type { LobbyFile } from '../../src/formats/lobby-file.js';
+import { solveTargets } from './solve-targets.js';
 
 const root = join(import.meta.dirname, '..', '..');
 const modelResult = compileModel(JSON.parse(readFileSync(join(root, 'matches', 'model.json'), 'utf8')));
@@ -76,7 +77,12 @@ function time(run: () => void, minimumRuns: number, budgetMs: number): { perSeco
 
 const allViews: BalanceOptions = { views: { duel: true, exploit: true, uncertainty: true } };
 const format = (value: number, digits = 1) => value.toLocaleString('en-US', { maximumFractionDigits: digits, minimumFractionDigits: digits });
-const lines: string[] = [];
+const lines: string[] = solveTargets();
+lines.push('');
+if (process.argv.includes('--targets')) {
+  process.stdout.write(`${lines.join('\n')}\n`);
+  process.exit(0);
+}
 lines.push(`lagparity bench:solve on node ${process.version} (${process.arch}); model matches/model.json, rules matches/league-rules.json (soft cap) unless "plain" (floor 1, cap 1.5, limit 220 ms)`);
 lines.push('');
 lines.push('players  latencies              views   lobbies/s     median us   runs');

@@ -1,0 +1,166 @@
+/**
+ * `npm run bench:solve` starts here: the two figures issue 14 sets for the
+ * matchmaker's hot path, `balanceLobby` on 100-player lobbies with sampled
+ * latencies (32 samples a player, views off):
+ *
+ * 1. the league's rules (matches/league-rules.json: cap, soft cap, latency
+ *    limit, p10 estimator) and model: median microseconds per lobby, over
+ *    20,000 runs of one lobby; target <= 20 us with one latency a player (the
+ *    shape the issue measured); with 32 samples a player too, for reference;
+ * 2. random rules and models: 600 seeded draws, each combining the
+ *    constraints at random (quantisation step 0.01-0.1, ratio, budget, soft
+ *    cap, latency limit, every target kind, floor 1, cap 1.2-3) with a random
+ *    model (every link, log or raw scale term); each draw's time is the
+ *    median of 15 runs of its lobby, and the figures are the median and the
+ *    99th percentile over the draws; target p99 <= 200 us with one latency a
+ *    player. With 32 samples the robust estimators cost a selection per
+ *    player, and `all_samples` a pass over every sample per curve evaluation
+ *    (3,200 link evaluations for 100 players): printed for reference. The
+ *    99th percentile of single runs is printed too (it includes garbage
+ *    collection pauses).
+ *
+ * Inputs come from seeded sources, so every run solves the same lobbies.
+ * The machine's speed moves by a third from minute to minute (DEVELOPERS.md):
+ * a CPU calibration loop is timed and printed beside the figures.
+ */
+import { readFileSync } from 'node:fs';
+import { join } from 'node:path';
+import { compileModel } from '../../src/model/compile.js';
+import { createRandomSource } from '../../src/random.js';
+import { balanceLobby } from '../../src/solver/balance-lobby.js';
+import { type CompiledRules, compileRules } from '../../src/solver/rules.js';
+import type { CompiledModel } from '../../src/model/compile.js';
+import type { LobbyFile } from '../../src/formats/lobby-file.js';
+import type { LinkName } from '../../src/model/links.js';
+
+const root = join(import.meta.dirname, '..', '..');
+const PLAYERS = 100;
+
+function compiledModel(document: unknown): CompiledModel {
+  const result = compileModel(document);
+  if (!result.ok) throw new Error(result.issues.map((issue) => issue.message).join('; '));
+  return result.value;
+}
+
+function compiledRules(document: unknown): CompiledRules {
+  const result = compileRules(document);
+  if (!result.ok) throw new Error(result.issues.map((issue) => issue.message).join('; '));
+  return result.value;
+}
+
+function lobbyOf(random: () => number, difficulty: number | string, samples: number): LobbyFile {
+  return {
+    format: 'lagparity/lobby@1',
+    match_id: 'bench',
+    attribute: 'hit_area',
+    difficulty,
+    players: Array.from({ length: PLAYERS }, (_, index) => {
+      const base = 10 + 180 * random();
+      return { id: `player-${index}`, team: index % 2 === 0 ? 'red' : 'blue', latency_ms: samples === 1 ? base : Array.from({ length: samples }, () => base + 25 * random() ** 3) };
+    }),
+  };
+}
+
+function medianMicros(run: () => unknown, runs: number): { median: number; single: number[] } {
+  const single: number[] = [];
+  for (let index = 0; index < runs; index += 1) {
+    const start = process.hrtime.bigint();
+    run();
+    single.push(Number(process.hrtime.bigint() - start) / 1000);
+  }
+  const sorted = [...single].sort((left, right) => left - right);
+  return { median: sorted[sorted.length >> 1] as number, single };
+}
+
+function percentile(values: number[], probability: number): number {
+  const sorted = [...values].sort((left, right) => left - right);
+  return sorted[Math.min(sorted.length - 1, Math.floor(probability * sorted.length))] as number;
+}
+
+/** A fixed loop of floating-point work, timed: how fast the machine is this minute. */
+function calibration(): number {
+  const start = process.hrtime.bigint();
+  let value = 0;
+  for (let index = 0; index < 20_000_000; index += 1) value += Math.sqrt(index) * 1e-9;
+  if (value < 0) process.stdout.write('');
+  return Number(process.hrtime.bigint() - start) / 1e6;
+}
+
+export function randomDraw(random: () => number, samples: number, estimators: readonly unknown[]): { model: CompiledModel; rules: CompiledRules; lobby: LobbyFile; document: unknown } {
+  const pick = <T>(values: readonly T[]): T => values[Math.floor(random() * values.length)] as T;
+  const between = (low: number, high: number) => low + (high - low) * random();
+  const form = pick(['log', 'raw'] as const);
+  const scaleTerm = form === 'log' ? 'log_scale' : 'scale';
+  const terms = ['intercept', 'latency', scaleTerm, 'difficulty', `latency_x_${scaleTerm}`];
+  const latency = between(-0.015, -0.003);
+  const scale = between(0.6, 2.5);
+  const estimates = [between(-0.5, 1.5), latency, scale, between(-0.5, 0), between(-0.4, 0.4) * Math.min(scale / 300, -latency / 3)];
+  const document = {
+    format: 'lagparity/model@1',
+    family: 'binomial',
+    link: pick(['logit', 'probit', 'cloglog'] as LinkName[]),
+    terms,
+    difficulty: { kind: 'numeric' },
+    coefficients: { names: terms, estimates, covariance: terms.map((_, row) => terms.map((__, column) => (row === column ? 1e-4 : 0))), covariance_kind: 'model' },
+    training: { latency_ms: { min: 0, max: 300 }, scale: { min: 1, max: 3 }, difficulty: { min: 0, max: 2 }, rows: 1, attempts: 1 },
+    provenance: { file: 'bench', rows: 1, sha256: '0'.repeat(64) },
+  };
+  const model = compiledModel(document);
+  const cap = Math.round(between(1.2, 3) * 100) / 100;
+  const rules = compiledRules({
+    format: 'lagparity/rules@1',
+    scale_cap: cap,
+    quantisation_step: random() < 0.5 ? pick([0.01, 0.05, 0.1]) : null,
+    max_scale_ratio: random() < 0.5 ? between(1.05, 2) : null,
+    assistance_budget: random() < 0.5 ? between(0, 0.4 * PLAYERS) : null,
+    soft_cap: random() < 0.5 ? { above: 1 + between(0.1, 0.9) * (cap - 1), fraction: between(0.2, 0.8) } : null,
+    latency_limit_ms: random() < 0.5 ? between(150, 300) : null,
+    target: pick([{ kind: 'best_connected' }, { kind: 'reference_latency', latency_ms: between(0, 60) }, { kind: 'fixed', probability: between(0.3, 0.8) }]),
+    latency_estimator: pick(estimators),
+  });
+  return { model, rules, lobby: lobbyOf(random, between(0, 2), samples), document };
+}
+
+/** Per-draw medians and every single run, over `draws`, each run `runs` times after a warm-up of every draw. */
+function overDraws(draws: readonly { model: CompiledModel; rules: CompiledRules; lobby: LobbyFile }[], runs: number): { medians: number[]; singles: number[]; rejected: number } {
+  for (let round = 0; round < 3; round += 1) for (const draw of draws) balanceLobby(draw.lobby, draw.model, draw.rules);
+  const medians: number[] = [];
+  const singles: number[] = [];
+  let rejected = 0;
+  for (const draw of draws) {
+    if (balanceLobby(draw.lobby, draw.model, draw.rules).status === 'rejected') rejected += 1;
+    const timed = medianMicros(() => balanceLobby(draw.lobby, draw.model, draw.rules), runs);
+    medians.push(timed.median);
+    singles.push(...timed.single);
+  }
+  return { medians, singles, rejected };
+}
+
+export function solveTargets(): string[] {
+  const lines: string[] = [];
+  const leagueModel = compiledModel(JSON.parse(readFileSync(join(root, 'matches', 'model.json'), 'utf8')));
+  const leagueRules = compiledRules(JSON.parse(readFileSync(join(root, 'matches', 'league-rules.json'), 'utf8')));
+  const before = calibration();
+  const format = (value: number) => value.toFixed(1).padStart(8);
+  lines.push(`issue 14 targets: balanceLobby on ${PLAYERS}-player lobbies, views off; "point" = one latency a player, "32 samples" = 32 measured samples a player`);
+  for (const samples of [1, 32]) {
+    const lobby = lobbyOf(createRandomSource(2026), 'veteran', samples);
+    for (let index = 0; index < 3000; index += 1) balanceLobby(lobby, leagueModel, leagueRules);
+    const league = medianMicros(() => balanceLobby(lobby, leagueModel, leagueRules), 20_000);
+    lines.push(`  league rules and model, ${samples === 1 ? 'point     ' : '32 samples'}, one lobby x 20,000 runs:   median ${format(league.median)} us${samples === 1 ? '   (target <= 20 us)' : ''}`);
+  }
+  for (const [label, samples, estimators] of [
+    ['point', 1, ['median']],
+    ['32 samples, median or p10', 32, ['median', { percentile: 10 }]],
+    ['32 samples, all_samples', 32, ['all_samples']],
+  ] as const) {
+    const random = createRandomSource(14);
+    const draws = Array.from({ length: 600 }, () => randomDraw(random, samples, estimators));
+    const { medians, singles, rejected } = overDraws(draws, samples === 32 && estimators[0] === 'all_samples' ? 5 : 15);
+    lines.push(
+      `  random rules and models, ${label.padEnd(26)} 600 draws: median ${format(percentile(medians, 0.5))} us   p99 ${format(percentile(medians, 0.99))} us   max ${format(Math.max(...medians))} us   single runs p99 ${format(percentile(singles, 0.99))} us${samples === 1 ? '   (target p99 <= 200 us)' : ''}${rejected > 0 ? `   (${rejected} rejected by their rules)` : ''}`,
+    );
+  }
+  lines.push(`  calibration loop: ${before.toFixed(0)} ms before, ${calibration().toFixed(0)} ms after (a slower machine minute shows as a longer loop)`);
+  return lines;
+}
