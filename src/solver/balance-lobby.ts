@@ -9,8 +9,9 @@
  * - `capped`: some player is held below the target by more than the accepted gap;
  * - `rejected`: the lobby cannot be solved with this model and rules (issues say why).
  *
- * The views (duel, exploit, uncertainty) are for reports and are off by
- * default: a matchmaker's hot path solves the scales and the summary only.
+ * The views (ordering, duel, exploit, uncertainty) are for reports and are
+ * off by default: a matchmaker's hot path solves the scales and the summary
+ * only.
  */
 import { type Issue, show, warning } from '../issues.js';
 import type { LobbyFile } from '../formats/lobby-file.js';
@@ -20,7 +21,7 @@ import { type LobbySolve, solveLobby } from './solve-lobby.js';
 import { BINDINGS, type Binding, type ScaleForm, termOf } from './solve-scales.js';
 import { type DuelView, duelView } from './views/duel-view.js';
 import { type ExploitView, exploitView } from './views/exploit-view.js';
-import { orderingFigures } from './ordering.js';
+import { type OrderingFigures, orderingFigures } from './ordering.js';
 import { type UncertaintyOptions, type UncertaintyView, uncertaintyView } from './views/uncertainty-view.js';
 import { PLAIN, SQUARES, SolveWorkspace, orderFreeSum } from './workspace.js';
 
@@ -62,16 +63,14 @@ export interface LobbySummary {
   readonly team_gap_after: number | null;
   readonly assistance: number;
   readonly eligible_players: number;
-  /** The largest amount by which an eligible player's expected hit probability after ends above that of a better-connected player (higher before); 0 if nobody does. */
-  readonly largest_overtake: number;
-  /** The largest change one quantisation step makes to an eligible player's expected hit probability at their scale (0 without a step): the bound on overtakes with point latencies, and the most a player gains from a measured latency just high enough to move them one step up. */
-  readonly step_gain: number;
   /** The lowest scale the ratio forces on every eligible player (the floor without a ratio). */
   readonly lift: number;
 }
 
 /** The report views, present when asked for in `BalanceOptions.views`. */
 export interface LobbyViews {
+  /** Whether the answer keeps the players in order (ordering.ts): the largest overtake and the one-step bound. */
+  readonly ordering?: OrderingFigures;
   readonly duel?: DuelView;
   readonly exploit?: ExploitView;
   readonly uncertainty?: UncertaintyView;
@@ -80,6 +79,8 @@ export interface LobbyViews {
 export interface BalanceOptions {
   /** Report views; all off by default (the matchmaker's hot path). */
   readonly views?: {
+    /** The ordering figures: largest_overtake and step_gain (a sort of the players; the audit uses them). */
+    readonly ordering?: boolean;
     readonly duel?: boolean;
     readonly exploit?: boolean;
     /** `true` for 200 draws with the fixed default seed, or the draws and seed. */
@@ -118,21 +119,41 @@ function jainOf(values: Float64Array, count: number, scratch: Float64Array): num
   return Math.min(1, (sum * sum) / (count * squares));
 }
 
-function teamFigures(players: readonly PlayerBalance[], scratch: Float64Array): TeamFigures[] {
+/** Per team (eligible players with a team), by team name: order-free means of the solution's before and after. */
+function teamFigures(lobby: LobbyFile, solved: LobbySolve, workspace: SolveWorkspace): TeamFigures[] {
+  const { solution, eligible } = solved;
+  const count = solution.count;
+  const teamOf = workspace.rank;
+  const scratch = workspace.scratch;
   let names: string[] | null = null;
-  for (const player of players) {
-    if (player.eligible && player.team !== null && (names === null || !names.includes(player.team))) (names ??= []).push(player.team);
+  for (let slot = 0; slot < count; slot += 1) {
+    const team = (lobby.players[eligible[slot] as number] as LobbyFile['players'][number]).team;
+    if (team === undefined) {
+      teamOf[slot] = -1;
+      continue;
+    }
+    names ??= [];
+    let number = names.indexOf(team);
+    if (number < 0) {
+      number = names.length;
+      names.push(team);
+    }
+    teamOf[slot] = number;
   }
   if (names === null) return [];
-  names.sort();
-  return names.map((team) => {
-    let count = 0;
-    for (const player of players) if (player.eligible && player.team === team) scratch[count++] = player.expected_before;
-    const meanBefore = orderFreeSum(scratch, count, PLAIN) / count;
-    count = 0;
-    for (const player of players) if (player.eligible && player.team === team) scratch[count++] = player.expected_after;
-    return { team, players: count, mean_before: meanBefore, mean_after: orderFreeSum(scratch, count, PLAIN) / count };
-  });
+  const named = names;
+  const mean = (values: Float64Array, number: number): { mean: number; players: number } => {
+    let members = 0;
+    for (let slot = 0; slot < count; slot += 1) if (teamOf[slot] === number) scratch[members++] = values[slot] as number;
+    return { mean: orderFreeSum(scratch, members, PLAIN) / members, players: members };
+  };
+  return [...named]
+    .sort()
+    .map((team) => {
+      const number = named.indexOf(team);
+      const before = mean(solution.before, number);
+      return { team, players: before.players, mean_before: before.mean, mean_after: mean(solution.after, number).mean };
+    });
 }
 
 function spread(values: readonly TeamFigures[], pick: (team: TeamFigures) => number): number {
@@ -206,11 +227,12 @@ const sharedWorkspace = new SolveWorkspace();
 /**
  * Balance one lobby. See the module comment for the result's meaning.
  *
- * Cost without views: O(players x samples) (a closed form per player for
- * point latencies or a robust estimator; a safeguarded Newton solve per
- * player for `all_samples`), times about 50 with a binding budget, plus a
- * sort of the players when rounding, a soft cap, a budget or sampled curves
- * need the best-connected order. Views: duel O(players^2), exploit
+ * Cost without views: O(players x samples) for the common case (a closed
+ * form per player for point latencies or a robust estimator; a safeguarded
+ * Newton solve per player for `all_samples`); with a binding budget about
+ * 5-15 water levels of that and O(players log players) heap moves, times
+ * about three lifts with a ratio on the grid (see solve-scales.ts). Views:
+ * ordering O(players log players), duel O(players^2), exploit
  * O(players^2 x samples), uncertainty O(draws x players x samples).
  *
  * @example
@@ -240,7 +262,7 @@ export function balanceLobby(lobby: LobbyFile, model: CompiledModel, rules: Comp
     if (after > highestAfter) highestAfter = after;
     if (solution.target - after > worstGap) worstGap = solution.target - after;
   }
-  const teams = teamFigures(players, sharedWorkspace.scratch);
+  const teams = teamFigures(lobby, solved, sharedWorkspace);
   const summary: LobbySummary = {
     largest_gap_before: highestBefore - lowestBefore,
     largest_gap_after: highestAfter - lowestAfter,
@@ -251,7 +273,6 @@ export function balanceLobby(lobby: LobbyFile, model: CompiledModel, rules: Comp
     team_gap_after: teams.length < 2 ? null : spread(teams, (team) => team.mean_after),
     assistance: solution.assistance,
     eligible_players: count,
-    ...orderingFigures(count, solution.before, solution.after, solution.scales, solution.step, rules.scale_floor, solved.curves, model.link, model.scaleForm as ScaleForm, sharedWorkspace.order, sharedWorkspace.heap),
     lift: solution.lift,
   };
   const result = {
@@ -266,8 +287,11 @@ export function balanceLobby(lobby: LobbyFile, model: CompiledModel, rules: Comp
     warnings: trainingWarnings(players, model),
   };
   const asked = options.views;
-  if (asked === undefined || !(asked.duel || asked.exploit || asked.uncertainty)) return result;
-  const views: { duel?: DuelView; exploit?: ExploitView; uncertainty?: UncertaintyView } = {};
+  if (asked === undefined || !(asked.ordering || asked.duel || asked.exploit || asked.uncertainty)) return result;
+  const views: { ordering?: OrderingFigures; duel?: DuelView; exploit?: ExploitView; uncertainty?: UncertaintyView } = {};
+  if (asked.ordering) {
+    views.ordering = orderingFigures(count, solution.before, solution.after, solution.scales, solution.step, rules.scale_floor, solved.curves, model.link, model.scaleForm as ScaleForm, sharedWorkspace.scratch, sharedWorkspace.objective, sharedWorkspace.heap);
+  }
   // Ineligible players are never scaled and are left out of every fairness figure, duels included.
   if (asked.duel) views.duel = duelView(players.filter((player) => player.eligible), rules);
   if (asked.exploit) views.exploit = exploitView(lobby, model, rules, solved);

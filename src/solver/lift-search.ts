@@ -30,7 +30,7 @@
 import { expectedAtTerm } from './player-curve.js';
 import { termOf } from './player-ceilings.js';
 import { type ScaleGrid, assistanceUnits, budgetUnits, gridValue, indexAtOrAbove, largestUnderLift, liftIndex } from './scale-grid.js';
-import { type StepBox, fillSteps } from './step-greedy.js';
+import { type PlayerRanks, type StepBox, fillSteps } from './step-greedy.js';
 import { type LevelBox, waterLevel } from './water-level.js';
 import { highestLinked, lowestLinked } from './level-bounds.js';
 import type { SolveWorkspace } from './workspace.js';
@@ -54,22 +54,28 @@ export class LiftSearch {
   private readonly budget: number | null;
   private readonly ratio: number | null;
   private readonly box: StepBox;
-  private ranked: boolean;
+  private readonly ranks: PlayerRanks;
 
   constructor(
     private readonly problem: ScaleProblem,
     private readonly grid: ScaleGrid,
     private readonly workspace: SolveWorkspace,
-    private readonly idRanks: (ids: readonly string[] | null, count: number, rank: Int32Array) => void,
+    idRanks: (idOf: ((slot: number) => string) | null, count: number, rank: Int32Array) => void,
   ) {
     const { curves, target, link, form, rules } = problem;
     this.count = curves.count;
     this.ratio = rules.max_scale_ratio;
     this.budget = rules.assistance_budget === null ? null : budgetUnits(grid, rules.assistance_budget);
-    const rank = workspace.rank.subarray(0, this.count);
-    // Ranks break ties in the budget's greedy, and decide who keeps a shaved scale.
-    this.ranked = this.budget !== null;
-    if (this.ranked) idRanks(problem.ids, this.count, rank);
+    // Ranks break ties in the budget's greedy, and decide who keeps a shaved scale: computed on first need.
+    const count = this.count;
+    this.ranks = {
+      ready: false,
+      values: workspace.rank,
+      compute() {
+        idRanks(problem.idOf, count, workspace.rank);
+        this.ready = true;
+      },
+    };
     const relaxation: LevelBox = {
       curves,
       link,
@@ -81,8 +87,13 @@ export class LiftSearch {
       ratio: null,
       floor: rules.scale_floor,
       scales: workspace.scratch,
+      slope: Number.NaN,
     };
-    this.box = { grid, target, curves, link, form, rank, start: workspace.start, high: workspace.high, index: workspace.index, frozen: workspace.frozen, heap: workspace.heap, lastKey: workspace.lastKey, nextKey: workspace.nextKey, relaxation };
+    this.cached = [
+      { lift: Number.NaN, trial: null, index: workspace.cachedIndex },
+      { lift: Number.NaN, trial: null, index: workspace.olderIndex },
+    ];
+    this.box = { grid, target, curves, link, form, ranks: this.ranks, start: workspace.start, high: workspace.high, index: workspace.index, frozen: workspace.frozen, heap: workspace.heap, lastKey: workspace.lastKey, nextKey: workspace.nextKey, relaxation, hint: Number.NaN };
   }
 
   private valueAt(player: number, at: number): number {
@@ -91,22 +102,36 @@ export class LiftSearch {
   }
 
   private rankOf(player: number): number {
-    if (!this.ranked) {
-      this.idRanks(this.problem.ids, this.count, this.workspace.rank);
-      this.ranked = true;
-    }
-    return this.workspace.rank[player] as number;
+    if (!this.ranks.ready) this.ranks.compute();
+    return this.ranks.values[player] as number;
   }
 
-  private lastLift = Number.NaN;
-  private lastTrial: LiftTrial | null = null;
+  /** The last two lifts solved, with their answers' indices, so that the search can go back to one without solving it again. */
+  private readonly cached: { lift: number; trial: LiftTrial | null; index: Float64Array }[];
+  private current = Number.NaN;
 
-  /** Solve the box of lift `lift` into `workspace.index` (the last lift's answer is still there if asked again). */
+  /** Solve the box of lift `lift` into `workspace.index` (from the cache when it is one of the last two lifts). */
   trial(lift: number): LiftTrial {
-    if (lift === this.lastLift && this.lastTrial !== null) return this.lastTrial;
-    this.lastTrial = this.solveBox(lift);
-    this.lastLift = lift;
-    return this.lastTrial;
+    const index = this.workspace.index;
+    const count = this.count;
+    if (lift === this.current) return (this.cached[0] as (typeof this.cached)[number]).trial as LiftTrial;
+    const [recent, older] = this.cached as [(typeof this.cached)[number], (typeof this.cached)[number]];
+    if (lift === older.lift && older.trial !== null) {
+      index.set(older.index.subarray(0, count));
+      this.cached[0] = older;
+      this.cached[1] = recent;
+      this.current = lift;
+      return older.trial;
+    }
+    const trial = this.solveBox(lift);
+    // Keep this answer in the older entry's array, which becomes the recent one.
+    older.index.set(index.subarray(0, count));
+    older.lift = lift;
+    older.trial = trial;
+    this.cached[0] = older;
+    this.cached[1] = recent;
+    this.current = lift;
+    return trial;
   }
 
   private solveBox(lift: number): LiftTrial {
@@ -248,7 +273,7 @@ export class LiftSearch {
       for (let player = 0; player < count; player += 1) highAssistance += Math.max(0, Math.max(highScale[player] as number, lift) - 1);
       if (highAssistance > budget) {
         const lowLinked = lowestLinked(curves, floorTerm);
-        const box: LevelBox = { curves, link, form, low, high: highScale, lowTerm, highTerm, ratio, floor, scales: scratch };
+        const box: LevelBox = { curves, link, form, low, high: highScale, lowTerm, highTerm, ratio, floor, scales: scratch, slope: Number.NaN };
         const highLinked = Math.min(link.link(target), highestLinked(curves, highTerm));
         waterLevel(box, budget, { low: Math.min(lowLinked, highLinked), lowAssistance: count * Math.max(0, floor - 1), high: highLinked, highAssistance }, grid.step);
         largest = -Infinity;

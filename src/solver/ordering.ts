@@ -27,8 +27,9 @@ export interface OrderingFigures {
 /**
  * The ordering figures of a solved lobby.
  *
- * @param order, buffer scratch of at least `count` slots each.
- * Cost: a sort of the players, plus two curve evaluations per player with a step.
+ * @param sortedCopy, lowestAt, above scratch of at least `count` slots each.
+ * Cost: a native sort of the befores and a binary search per player, plus two
+ * curve evaluations per player with a step.
  */
 export function orderingFigures(
   count: number,
@@ -40,25 +41,39 @@ export function orderingFigures(
   curves: CurveSet,
   link: Link,
   form: ScaleForm,
-  order: Int32Array,
-  buffer: Int32Array,
+  sortedCopy: Float64Array,
+  lowestAt: Float64Array,
+  above: Int32Array,
 ): OrderingFigures {
-  const slots = sortDescending(before, count, order, buffer);
-  let largest = 0;
-  let lowestBetter = Infinity;
-  let position = 0;
-  while (position < count) {
-    const groupBefore = before[slots[position] as number] as number;
-    let end = position;
-    while (end < count && before[slots[end] as number] === groupBefore) end += 1;
-    let lowestInGroup = Infinity;
-    for (let member = position; member < end; member += 1) {
-      const value = after[slots[member] as number] as number;
-      if (value - lowestBetter > largest) largest = value - lowestBetter;
-      if (value < lowestInGroup) lowestInGroup = value;
+  // Rank each player by how many have a strictly higher before (a native sort and a binary search each); the lowest
+  // after among all players of rank r, running over r, gives the lowest after among the better-connected.
+  const sorted = sortedCopy.subarray(0, count);
+  sorted.set(before.subarray(0, count));
+  sorted.sort();
+  for (let rank = 0; rank < count; rank += 1) lowestAt[rank] = Infinity;
+  for (let slot = 0; slot < count; slot += 1) {
+    const value = before[slot] as number;
+    let low = 0;
+    let high = count;
+    while (low < high) {
+      const middle = (low + high) >>> 1;
+      if ((sorted[middle] as number) <= value) low = middle + 1;
+      else high = middle;
     }
-    if (lowestInGroup < lowestBetter) lowestBetter = lowestInGroup;
-    position = end;
+    const rank = count - low;
+    above[slot] = rank;
+    if ((after[slot] as number) < (lowestAt[rank] as number)) lowestAt[rank] = after[slot] as number;
+  }
+  let running = Infinity;
+  for (let rank = 0; rank < count; rank += 1) {
+    const here = lowestAt[rank] as number;
+    lowestAt[rank] = running;
+    if (here < running) running = here;
+  }
+  let largest = 0;
+  for (let slot = 0; slot < count; slot += 1) {
+    const overtake = (after[slot] as number) - (lowestAt[above[slot] as number] as number);
+    if (overtake > largest) largest = overtake;
   }
   let bound = 0;
   if (step !== null) {
@@ -76,40 +91,3 @@ export function orderingFigures(
   return { largest_overtake: largest, step_gain: bound };
 }
 
-/**
- * Slots 0 .. count - 1 ordered by `keys` from the largest, into `order`: a
- * bottom-up merge sort (stable; Knuth, TAOCP vol. 3, 5.2.4) with the
- * comparisons inline. A comparator passed to Array.prototype.sort cost a fifth
- * of a 100-player balanceLobby here.
- */
-export function sortDescending(keys: Float64Array, count: number, order: Int32Array, buffer: Int32Array): Int32Array {
-  let source = order;
-  let target = buffer;
-  for (let slot = 0; slot < count; slot += 1) source[slot] = slot;
-  for (let width = 1; width < count; width *= 2) {
-    for (let start = 0; start < count; start += 2 * width) {
-      const middle = Math.min(start + width, count);
-      const end = Math.min(start + 2 * width, count);
-      let left = start;
-      let right = middle;
-      let out = start;
-      while (left < middle && right < end) {
-        const leftSlot = source[left] as number;
-        const rightSlot = source[right] as number;
-        if ((keys[rightSlot] as number) > (keys[leftSlot] as number)) {
-          target[out++] = rightSlot;
-          right += 1;
-        } else {
-          target[out++] = leftSlot;
-          left += 1;
-        }
-      }
-      while (left < middle) target[out++] = source[left++] as number;
-      while (right < end) target[out++] = source[right++] as number;
-    }
-    const swap = source;
-    source = target;
-    target = swap;
-  }
-  return source.subarray(0, count);
-}

@@ -125,9 +125,8 @@ export function solveLobby(lobby: LobbyFile, model: CompiledModel, line: Predict
     target = -Infinity;
     for (let slot = 0; slot < eligibleCount; slot += 1) if ((before[slot] as number) > target) target = before[slot] as number;
   }
-  const ids: string[] = new Array<string>(eligibleCount);
-  for (let slot = 0; slot < eligibleCount; slot += 1) ids[slot] = (players[eligible[slot] as number] as LobbyFile['players'][number]).id;
-  const solved = solveScales({ curves, before, target, link: model.link, form, rules, ids }, workspace);
+  const idOf = (slot: number) => (players[eligible[slot] as number] as LobbyFile['players'][number]).id;
+  const solved = solveScales({ curves, before, target, link: model.link, form, rules, idOf }, workspace);
   if (!solved.ok) return fail(solved.issues.map((issue) => relocate(issue, eligible)));
   return ok({ line, estimates, slots, eligible, curves, solution: solved.value });
 }

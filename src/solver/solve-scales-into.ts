@@ -104,7 +104,7 @@ export function solveScalesInto(model: CompiledModel, difficulty: number | strin
     offsets[slot] = slot;
   }
   const curves: CurveSet = { count: eligible, offsets, alphas, betas };
-  return finish(solveScales({ curves, before: workspace.before, target, link, form: model.scaleForm, rules, ids: null }, workspace, true), latencies, limitLatency, out, eligible);
+  return finish(solveScales({ curves, before: workspace.before, target, link, form: model.scaleForm, rules, idOf: null }, workspace, true), latencies, limitLatency, out, eligible);
 }
 
 /** Write the eligible players' scales (slot order is input order) and 1 for the others. */
@@ -212,7 +212,7 @@ export function solveSampledScalesInto(
     const unitTerm = form === 'log' ? 0 : 1;
     target = model.link.inverse(line.base + line.basePerMs * spec.latency_ms + (line.scaleSlope + line.scaleSlopePerMs * spec.latency_ms) * unitTerm);
   } else for (let index = 0; index < eligible; index += 1) target = Math.max(target, before[index] as number);
-  const solved = solveScales({ curves, before, target, link: model.link, form, rules, ids: null }, workspace, true);
+  const solved = solveScales({ curves, before, target, link: model.link, form, rules, idOf: null }, workspace, true);
   if (!solved.ok) return { status: 'rejected', issues: solved.issues };
   slot = 0;
   for (let player = 0; player < count; player += 1) {

@@ -75,8 +75,8 @@ export interface ScaleProblem {
   readonly link: Link;
   readonly form: ScaleForm;
   readonly rules: CompiledRules;
-  /** The players' ids in slot order, for ties between identical curves; null: slot order decides. */
-  readonly ids: readonly string[] | null;
+  /** A player's id by slot, for ties between identical curves; null: slot order decides. */
+  readonly idOf: ((slot: number) => string) | null;
 }
 
 /** E_i at scale 1 for every player: the performance before compensation. */
@@ -149,14 +149,9 @@ function solveOnReals(problem: ScaleProblem, workspace: SolveWorkspace): Answer 
     for (let player = 0; player < count; player += 1) smallestUpper = Math.min(smallestUpper, upper[player] as number);
     ratioCeiling = ratio * smallestUpper;
   }
-  const floorTerm = termOf(form, floor);
   let largest = -Infinity;
   for (let player = 0; player < count; player += 1) {
     const high = Math.min(ceiling[player] as number, ratioCeiling);
-    low[player] = floor;
-    lowTerm[player] = floorTerm;
-    highScale[player] = high;
-    highTerm[player] = termOf(form, high);
     scales[player] = high;
     if (high > largest) largest = high;
   }
@@ -168,7 +163,16 @@ function solveOnReals(problem: ScaleProblem, workspace: SolveWorkspace): Answer 
   let assistance = orderFreeSum(scales, count, EXCESS_OVER_ONE);
   const budget = rules.assistance_budget;
   if (budget === null || assistance <= budget) return { level: target, assistance, lift, ratioCeiling };
-  const box: LevelBox = { curves, link, form, low, high: highScale, lowTerm, highTerm, ratio, floor, scales };
+  // The budget binds: water-filling between the floor and each player's highest scale.
+  const floorTerm = termOf(form, floor);
+  for (let player = 0; player < count; player += 1) {
+    const high = Math.min(ceiling[player] as number, ratioCeiling);
+    low[player] = floor;
+    lowTerm[player] = floorTerm;
+    highScale[player] = high;
+    highTerm[player] = termOf(form, high);
+  }
+  const box: LevelBox = { curves, link, form, low, high: highScale, lowTerm, highTerm, ratio, floor, scales, slope: Number.NaN };
   const lowLinked = lowestLinked(curves, floorTerm);
   const floorCost = count * Math.max(0, floor - 1);
   const water = waterLevel(box, budget, { low: lowLinked, lowAssistance: floorCost, high: Math.min(link.link(target), highestLinked(curves, highTerm)), highAssistance: assistance }, 1e-14 * Math.max(1, budget));
@@ -195,9 +199,10 @@ function solveOnGrid(problem: ScaleProblem, grid: ScaleGrid, workspace: SolveWor
 }
 
 /** Each player's position in code-unit order of their ids (slot order when there are none, or for equal ids). */
-export function idRanks(ids: readonly string[] | null, count: number, rank: Int32Array): void {
+export function idRanks(idOf: ((slot: number) => string) | null, count: number, rank: Int32Array): void {
   for (let player = 0; player < count; player += 1) rank[player] = player;
-  if (ids === null) return;
+  if (idOf === null) return;
+  const ids = Array.from({ length: count }, (_, slot) => idOf(slot));
   const order = Array.from({ length: count }, (_, player) => player);
   order.sort((left, right) => {
     const leftId = ids[left] as string;
@@ -206,4 +211,3 @@ export function idRanks(ids: readonly string[] | null, count: number, rank: Int3
   });
   for (let position = 0; position < count; position += 1) rank[order[position] as number] = position;
 }
-

@@ -47,8 +47,8 @@ export interface StepBox {
   readonly curves: CurveSet;
   readonly link: Link;
   readonly form: ScaleForm;
-  /** The player's position when the players are sorted by id (code-unit order); ties go to the lower rank. */
-  readonly rank: Int32Array;
+  /** The players' positions when sorted by id (code-unit order); ties between equal values go to the lower rank. */
+  readonly ranks: PlayerRanks;
   /** Per player: the first index (after the free steps below 1) and the box's top index. */
   readonly start: Float64Array;
   readonly high: Float64Array;
@@ -61,6 +61,19 @@ export interface StepBox {
   readonly nextKey: Float64Array;
   /** Scratch for the relaxation: its scales, bounds and terms (`scales` may alias nothing else). */
   readonly relaxation: LevelBox;
+  /** The relaxation's last water level (link scale), tried first by the next fill of a box like this one; NaN at first. */
+  hint: number;
+}
+
+/**
+ * Players' id ranks, computed the first time two equal values meet in a heap
+ * (identical curves): sorting the ids cost about a twentieth of a solve with a
+ * budget, and most lobbies never need it.
+ */
+export interface PlayerRanks {
+  ready: boolean;
+  readonly values: Int32Array;
+  compute(): void;
 }
 
 export interface StepFill {
@@ -75,20 +88,22 @@ function valueAt(box: StepBox, player: number, index: number): number {
 }
 
 /** Heap order: by key, then by rank; `sign` 1 for a min-heap, -1 for a max-heap. */
-function before(keys: Float64Array, rank: Int32Array, left: number, right: number, sign: number): boolean {
+function before(keys: Float64Array, ranks: PlayerRanks, left: number, right: number, sign: number): boolean {
   const leftKey = keys[left] as number;
   const rightKey = keys[right] as number;
   if (leftKey !== rightKey) return sign > 0 ? leftKey < rightKey : leftKey > rightKey;
+  if (!ranks.ready) ranks.compute();
+  const rank = ranks.values;
   return sign > 0 ? (rank[left] as number) < (rank[right] as number) : (rank[left] as number) > (rank[right] as number);
 }
 
-function push(heap: Int32Array, keys: Float64Array, rank: Int32Array, size: number, player: number, sign: number): number {
+function push(heap: Int32Array, keys: Float64Array, ranks: PlayerRanks, size: number, player: number, sign: number): number {
   let position = size;
   heap[position] = player;
   while (position > 0) {
     const parent = (position - 1) >> 1;
     const above = heap[parent] as number;
-    if (!before(keys, rank, player, above, sign)) break;
+    if (!before(keys, ranks, player, above, sign)) break;
     heap[position] = above;
     heap[parent] = player;
     position = parent;
@@ -96,7 +111,7 @@ function push(heap: Int32Array, keys: Float64Array, rank: Int32Array, size: numb
   return size + 1;
 }
 
-function siftDown(heap: Int32Array, keys: Float64Array, rank: Int32Array, size: number, from: number, sign: number): void {
+function siftDown(heap: Int32Array, keys: Float64Array, ranks: PlayerRanks, size: number, from: number, sign: number): void {
   const moving = heap[from] as number;
   let position = from;
   for (;;) {
@@ -104,8 +119,8 @@ function siftDown(heap: Int32Array, keys: Float64Array, rank: Int32Array, size: 
     if (left >= size) break;
     const right = left + 1;
     let child = left;
-    if (right < size && before(keys, rank, heap[right] as number, heap[left] as number, sign)) child = right;
-    if (!before(keys, rank, heap[child] as number, moving, sign)) break;
+    if (right < size && before(keys, ranks, heap[right] as number, heap[left] as number, sign)) child = right;
+    if (!before(keys, ranks, heap[child] as number, moving, sign)) break;
     heap[position] = heap[child] as number;
     position = child;
   }
@@ -113,15 +128,15 @@ function siftDown(heap: Int32Array, keys: Float64Array, rank: Int32Array, size: 
 }
 
 /** Remove the top; returns the new size. */
-function pop(heap: Int32Array, keys: Float64Array, rank: Int32Array, size: number, sign: number): number {
+function pop(heap: Int32Array, keys: Float64Array, ranks: PlayerRanks, size: number, sign: number): number {
   heap[0] = heap[size - 1] as number;
-  if (size > 2) siftDown(heap, keys, rank, size - 1, 0, sign);
+  if (size > 2) siftDown(heap, keys, ranks, size - 1, 0, sign);
   return size - 1;
 }
 
 /** Order the first `size` entries of `heap` into a heap (Floyd's construction, O(size)). */
-function heapify(heap: Int32Array, keys: Float64Array, rank: Int32Array, size: number, sign: number): void {
-  for (let from = (size >> 1) - 1; from >= 0; from -= 1) siftDown(heap, keys, rank, size, from, sign);
+function heapify(heap: Int32Array, keys: Float64Array, ranks: PlayerRanks, size: number, sign: number): void {
+  for (let from = (size >> 1) - 1; from >= 0; from -= 1) siftDown(heap, keys, ranks, size, from, sign);
 }
 
 /**
@@ -130,7 +145,7 @@ function heapify(heap: Int32Array, keys: Float64Array, rank: Int32Array, size: n
  * that every player at `start` is affordable.
  */
 export function fillSteps(box: StepBox, budget: number | null): StepFill {
-  const { grid, curves, start, high, index, frozen, heap, rank, lastKey, nextKey } = box;
+  const { grid, curves, start, high, index, frozen, heap, ranks, lastKey, nextKey } = box;
   const count = curves.count;
   let units = 0;
   let highest = 0;
@@ -140,7 +155,8 @@ export function fillSteps(box: StepBox, budget: number | null): StepFill {
   }
   if (budget === null || highest <= budget) return { units: highest, level: Infinity };
 
-  // Warm start: the relaxation's water level, to within a step of assistance (the heaps below move the rest).
+  // Warm start: the relaxation's water level, to within n/8 steps of assistance: the heaps below move the rest, at
+  // O(log n) an event, cheaper than another level at O(n).
   const relaxation = box.relaxation;
   let lowAssistance = 0;
   let highAssistance = 0;
@@ -156,7 +172,8 @@ export function fillSteps(box: StepBox, budget: number | null): StepFill {
   }
   const highLinked = highestLinked(curves, relaxation.highTerm);
   const lowLinked = Math.min(highLinked, lowestLinked(curves, relaxation.lowTerm));
-  const relaxed = waterLevel(relaxation, unitsToScale(grid, budget), { low: lowLinked, lowAssistance, high: highLinked, highAssistance }, grid.step);
+  const relaxed = waterLevel(relaxation, unitsToScale(grid, budget), { low: lowLinked, lowAssistance, high: highLinked, highAssistance }, grid.step * Math.max(1, count / 8), box.hint);
+  box.hint = relaxed.linked;
   const theta = box.link.inverse(relaxed.linked);
   // Every player takes exactly the events below theta; the curve's values next to the answer are kept as heap keys.
   for (let player = 0; player < count; player += 1) {
@@ -196,10 +213,10 @@ export function fillSteps(box: StepBox, budget: number | null): StepFill {
   if (units > budget) {
     let size = 0;
     for (let player = 0; player < count; player += 1) if ((index[player] as number) > (start[player] as number)) heap[size++] = player;
-    heapify(heap, lastKey, rank, size, -1);
+    heapify(heap, lastKey, ranks, size, -1);
     while (units > budget && size > 0) {
       const player = heap[0] as number;
-      size = pop(heap, lastKey, rank, size, -1);
+      size = pop(heap, lastKey, ranks, size, -1);
       const at = index[player] as number;
       units -= assistanceUnits(grid, at) - assistanceUnits(grid, at - 1);
       index[player] = at - 1;
@@ -211,17 +228,17 @@ export function fillSteps(box: StepBox, budget: number | null): StepFill {
       }
       if (at - 1 > (start[player] as number)) {
         lastKey[player] = valueAt(box, player, at - 2);
-        size = push(heap, lastKey, rank, size, player, -1);
+        size = push(heap, lastKey, ranks, size, player, -1);
       }
     }
   }
   // Forward: the next events in order; one the budget cannot pay freezes its player, one at the target gains nothing.
   let size = 0;
   for (let player = 0; player < count; player += 1) if (frozen[player] === 0 && (index[player] as number) < (high[player] as number)) heap[size++] = player;
-  heapify(heap, nextKey, rank, size, 1);
+  heapify(heap, nextKey, ranks, size, 1);
   while (size > 0) {
     const player = heap[0] as number;
-    size = pop(heap, nextKey, rank, size, 1);
+    size = pop(heap, nextKey, ranks, size, 1);
     const at = index[player] as number;
     const key = nextKey[player] as number;
     if (key >= box.target) continue;
@@ -234,7 +251,7 @@ export function fillSteps(box: StepBox, budget: number | null): StepFill {
     index[player] = at + 1;
     if (at + 1 < (high[player] as number)) {
       nextKey[player] = valueAt(box, player, at + 1);
-      size = push(heap, nextKey, rank, size, player, 1);
+      size = push(heap, nextKey, ranks, size, player, 1);
     }
   }
   return { units, level };

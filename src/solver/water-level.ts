@@ -10,12 +10,14 @@
  * and continuous: the largest affordable level is the root of
  * assistance(theta) = budget. It is found on the link scale g(theta) (so that
  * levels near 0 or 1, players around a second of latency, are resolved as
- * finely as any other) by regula falsi with the Anderson-Bjorck weights
+ * finely as any other): for point latencies by Newton's method on the
+ * assistance's derivative, else by regula falsi with the Anderson-Bjorck weights
  * (Anderson and Bjorck (1973), "A new high order method of regula falsi
  * type for computing a root of an equation", BIT 13, 253-264; the Illinois
  * halving of Dowell and Jarratt (1971) where their factor is not positive),
- * kept inside the bracket, until the bracket is a few ulps wide or the
- * assistance is within the caller's tolerance of the budget.
+ * every step kept inside the bracket (and bisection whenever two steps have
+ * not halved it), until the bracket is a few ulps wide or the assistance is
+ * within the caller's tolerance of the budget.
  * The level returned is the bracket's affordable end.
  *
  * Cost: O(players x samples) per level (closed-form inverse for a point
@@ -41,30 +43,69 @@ export interface LevelBox {
   readonly floor: number;
   /** Receives each player's scale at the level. */
   readonly scales: Float64Array;
+  /** Receives the assistance's derivative in the link value at the last level filled (NaN: unknown). */
+  slope: number;
 }
 
-/** Fill `box.scales` at the level whose link value is `linked`; returns the assistance (an order-free sum). */
+/**
+ * Fill `box.scales` at the level whose link value is `linked`; returns the
+ * assistance (an order-free sum). For point latencies it also leaves in
+ * `box.slope` the assistance's derivative in the link value (players within
+ * their bounds: ds/d(link) = s / beta for log s, 1 / beta for s; lifted
+ * players follow the largest scale / ratio), for Newton steps; NaN for
+ * sampled curves.
+ */
 export function fillAtLevel(box: LevelBox, linked: number): number {
   const { curves, link, form, low, high, lowTerm, highTerm, scales } = box;
   const count = curves.count;
   const level = link.inverse(linked);
+  const points = (curves.offsets[count] as number) === count;
+  const logForm = form === 'log';
+  const betas = curves.betas;
   let largest = -Infinity;
+  let largestSlope = 0;
+  let slope = 0;
   for (let player = 0; player < count; player += 1) {
     const bottom = lowTerm[player] as number;
     const topTerm = highTerm[player] as number;
     let scale: number;
+    let change = 0;
     if (!(topTerm > bottom)) scale = low[player] as number;
     else {
       const term = inverseTerm(curves, player, link, level, linked, bottom, topTerm);
-      scale = term <= bottom ? (low[player] as number) : term >= topTerm ? (high[player] as number) : scaleOf(form, term);
+      if (term <= bottom) scale = low[player] as number;
+      else if (term >= topTerm) scale = high[player] as number;
+      else {
+        scale = scaleOf(form, term);
+        if (points) change = (logForm ? scale : 1) / (betas[player] as number);
+      }
     }
     scales[player] = scale;
-    if (scale > largest) largest = scale;
+    if (scale > 1) slope += change;
+    if (scale > largest) {
+      largest = scale;
+      largestSlope = change;
+    }
   }
   if (box.ratio !== null) {
-    const lift = Math.max(box.floor, largest / box.ratio);
-    for (let player = 0; player < count; player += 1) if ((scales[player] as number) < lift) scales[player] = lift;
+    const lifted = largest / box.ratio;
+    const lift = Math.max(box.floor, lifted);
+    const liftSlope = lifted > box.floor && lift > 1 ? largestSlope / box.ratio : 0;
+    for (let player = 0; player < count; player += 1) {
+      const scale = scales[player] as number;
+      if (scale < lift) {
+        // The player's own change no longer counts: they follow the lift.
+        if (points && scale > 1) {
+          const bottom = lowTerm[player] as number;
+          const topTerm = highTerm[player] as number;
+          if (topTerm > bottom && scale > (low[player] as number) && scale < (high[player] as number)) slope -= (logForm ? scale : 1) / (betas[player] as number);
+        }
+        scales[player] = lift;
+        slope += liftSlope;
+      }
+    }
   }
+  box.slope = points ? slope : Number.NaN;
   return orderFreeSum(scales, count, EXCESS_OVER_ONE);
 }
 
@@ -80,10 +121,10 @@ export interface LevelBracket {
  * The largest link value in the bracket whose level is affordable, given
  * assistance(low) <= budget < assistance(high): it stops when the bracket is
  * a few ulps wide or the affordable end is within `closeEnough` of the
- * budget. Leaves `box.scales` filled at it and returns it with its
- * assistance.
+ * budget. `hint`, a level from a similar problem, is tried first. Leaves
+ * `box.scales` filled at it and returns it with its assistance.
  */
-export function waterLevel(box: LevelBox, budget: number, bracket: LevelBracket, closeEnough: number): { readonly linked: number; readonly assistance: number } {
+export function waterLevel(box: LevelBox, budget: number, bracket: LevelBracket, closeEnough: number, hint = Number.NaN): { readonly linked: number; readonly assistance: number } {
   let { low, high } = bracket;
   let lowValue = bracket.lowAssistance - budget;
   let lowWeight = lowValue;
@@ -91,6 +132,10 @@ export function waterLevel(box: LevelBox, budget: number, bracket: LevelBracket,
   let side = 0;
   let filledAtLow = false;
   let width = Infinity;
+  let lastLinked = Number.NaN;
+  let lastValue = Number.NaN;
+  let lastSlope = Number.NaN;
+  let steppedBelow = false;
   for (let iteration = 0; iteration < 200; iteration += 1) {
     if (high - low <= 4 * Number.EPSILON * Math.max(1, Math.abs(low), Math.abs(high))) break;
     if (lowValue >= -closeEnough) break;
@@ -99,14 +144,30 @@ export function waterLevel(box: LevelBox, budget: number, bracket: LevelBracket,
     let middle = high - (highWeight * (high - low)) / (highWeight - lowWeight);
     if (!(middle > low && middle < high) || (iteration % 2 === 0 && high - low > 0.5 * width)) middle = 0.5 * (low + high);
     if (iteration % 2 === 0) width = high - low;
-    // The root reached from above: step just below it by twice the secant's estimate (and a few ulps), so that the
-    // affordable end arrives too instead of creeping up by bisection.
-    if (side === 1 && highWeight <= closeEnough) {
-      const slope = (highWeight - lowValue) / (high - low);
-      const below = high - 2 * (highWeight / slope) - 4 * Number.EPSILON * Math.max(1, Math.abs(high));
-      if (below > low && below < high) middle = below;
+    // Newton's step from the last level, where its derivative is known (point latencies), inside the bracket.
+    if (lastSlope > 0) {
+      const newton = lastLinked - lastValue / lastSlope;
+      if (newton > low && newton < high) middle = newton;
     }
+    // A level from a similar problem (the lift next to this one) is a better first try than the secant.
+    if (iteration === 0 && hint > low && hint < high) middle = hint;
+    // The root reached from above: step just below it by twice the estimated distance (and a few ulps), so that the
+    // affordable end arrives too instead of creeping up by bisection.
+    // Once only in a row: on a flat stretch (everyone at a bound) the estimate is no good, and bisection takes over.
+    let steppingBelow = false;
+    if (side === 1 && highWeight <= closeEnough && !steppedBelow) {
+      const slope = lastSlope > 0 && lastLinked === high ? lastSlope : (highWeight - lowValue) / (high - low);
+      const below = high - 2 * (highWeight / slope) - 4 * Number.EPSILON * Math.max(1, Math.abs(high));
+      if (below > low && below < high) {
+        middle = below;
+        steppingBelow = true;
+      }
+    } else if (steppedBelow) middle = 0.5 * (low + high);
+    steppedBelow = steppingBelow;
     const value = fillAtLevel(box, middle) - budget;
+    lastLinked = middle;
+    lastValue = value;
+    lastSlope = box.slope;
     // Anderson-Bjorck: when the same end moves twice, the stale end's weight shrinks by m = 1 - f(new) / f(old), or
     // halves (Illinois) when m <= 0 (Anderson and Bjorck (1973), BIT 13, 253-264).
     if (value <= 0) {

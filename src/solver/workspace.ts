@@ -31,6 +31,9 @@ export class SolveWorkspace {
   high = new Float64Array(0);
   index = new Float64Array(0);
   bestIndex = new Float64Array(0);
+  /** The last two lifts' answers (lift-search.ts). */
+  cachedIndex = new Float64Array(0);
+  olderIndex = new Float64Array(0);
   frozen = new Uint8Array(0);
   heap = new Int32Array(0);
   lastKey = new Float64Array(0);
@@ -70,6 +73,8 @@ export class SolveWorkspace {
       this.high = new Float64Array(size);
       this.index = new Float64Array(size);
       this.bestIndex = new Float64Array(size);
+      this.cachedIndex = new Float64Array(size);
+      this.olderIndex = new Float64Array(size);
       this.frozen = new Uint8Array(size);
       this.heap = new Int32Array(size);
       this.lastKey = new Float64Array(size);
