@@ -88,6 +88,7 @@ export class LiftSearch {
       floor: rules.scale_floor,
       scales: workspace.scratch,
       slope: Number.NaN,
+      changes: workspace.changes,
     };
     this.cached = [
       { lift: Number.NaN, trial: null, index: workspace.cachedIndex },
@@ -273,7 +274,7 @@ export class LiftSearch {
       for (let player = 0; player < count; player += 1) highAssistance += Math.max(0, Math.max(highScale[player] as number, lift) - 1);
       if (highAssistance > budget) {
         const lowLinked = lowestLinked(curves, floorTerm);
-        const box: LevelBox = { curves, link, form, low, high: highScale, lowTerm, highTerm, ratio, floor, scales: scratch, slope: Number.NaN };
+        const box: LevelBox = { curves, link, form, low, high: highScale, lowTerm, highTerm, ratio, floor, scales: scratch, slope: Number.NaN, changes: this.workspace.changes };
         const highLinked = Math.min(link.link(target), highestLinked(curves, highTerm));
         waterLevel(box, budget, { low: Math.min(lowLinked, highLinked), lowAssistance: count * Math.max(0, floor - 1), high: highLinked, highAssistance }, grid.step);
         largest = -Infinity;

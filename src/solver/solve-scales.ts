@@ -172,7 +172,7 @@ function solveOnReals(problem: ScaleProblem, workspace: SolveWorkspace): Answer 
     highScale[player] = high;
     highTerm[player] = termOf(form, high);
   }
-  const box: LevelBox = { curves, link, form, low, high: highScale, lowTerm, highTerm, ratio, floor, scales, slope: Number.NaN };
+  const box: LevelBox = { curves, link, form, low, high: highScale, lowTerm, highTerm, ratio, floor, scales, slope: Number.NaN, changes: workspace.changes };
   const lowLinked = lowestLinked(curves, floorTerm);
   const floorCost = count * Math.max(0, floor - 1);
   const water = waterLevel(box, budget, { low: lowLinked, lowAssistance: floorCost, high: Math.min(link.link(target), highestLinked(curves, highTerm)), highAssistance: assistance }, 1e-14 * Math.max(1, budget));

@@ -27,7 +27,7 @@
 import type { Link } from '../model/links.js';
 import { type CurveSet, inverseTerm } from './player-curve.js';
 import { type ScaleForm, scaleOf } from './player-ceilings.js';
-import { EXCESS_OVER_ONE, orderFreeSum } from './workspace.js';
+import { EXCESS_OVER_ONE, PLAIN, orderFreeSum } from './workspace.js';
 
 export interface LevelBox {
   readonly curves: CurveSet;
@@ -45,6 +45,8 @@ export interface LevelBox {
   readonly scales: Float64Array;
   /** Receives the assistance's derivative in the link value at the last level filled (NaN: unknown). */
   slope: number;
+  /** Scratch: each player's share of that derivative. */
+  readonly changes: Float64Array;
 }
 
 /**
@@ -64,7 +66,7 @@ export function fillAtLevel(box: LevelBox, linked: number): number {
   const betas = curves.betas;
   let largest = -Infinity;
   let largestSlope = 0;
-  let slope = 0;
+  const changes = box.changes;
   for (let player = 0; player < count; player += 1) {
     const bottom = lowTerm[player] as number;
     const topTerm = highTerm[player] as number;
@@ -81,7 +83,7 @@ export function fillAtLevel(box: LevelBox, linked: number): number {
       }
     }
     scales[player] = scale;
-    if (scale > 1) slope += change;
+    changes[player] = scale > 1 ? change : 0;
     if (scale > largest) {
       largest = scale;
       largestSlope = change;
@@ -95,17 +97,13 @@ export function fillAtLevel(box: LevelBox, linked: number): number {
       const scale = scales[player] as number;
       if (scale < lift) {
         // The player's own change no longer counts: they follow the lift.
-        if (points && scale > 1) {
-          const bottom = lowTerm[player] as number;
-          const topTerm = highTerm[player] as number;
-          if (topTerm > bottom && scale > (low[player] as number) && scale < (high[player] as number)) slope -= (logForm ? scale : 1) / (betas[player] as number);
-        }
         scales[player] = lift;
-        slope += liftSlope;
+        changes[player] = liftSlope;
       }
     }
   }
-  box.slope = points ? slope : Number.NaN;
+  // Order-free like the assistance, so that permuting the players cannot move a Newton step by a bit.
+  box.slope = points ? orderFreeSum(changes, count, PLAIN) : Number.NaN;
   return orderFreeSum(scales, count, EXCESS_OVER_ONE);
 }
 

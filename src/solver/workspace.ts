@@ -44,6 +44,7 @@ export class SolveWorkspace {
   lowTerm = new Float64Array(0);
   highScale = new Float64Array(0);
   highTerm = new Float64Array(0);
+  changes = new Float64Array(0);
   /** Sorted objective vectors, for comparing candidate answers. */
   objective = new Float64Array(0);
   bestObjective = new Float64Array(0);
@@ -84,6 +85,7 @@ export class SolveWorkspace {
       this.lowTerm = new Float64Array(size);
       this.highScale = new Float64Array(size);
       this.highTerm = new Float64Array(size);
+      this.changes = new Float64Array(size);
       this.objective = new Float64Array(size);
       this.bestObjective = new Float64Array(size);
       this.scales = new Float64Array(size);
