@@ -23,7 +23,7 @@ import { type DuelView, duelView } from './views/duel-view.js';
 import { type ExploitView, exploitView } from './views/exploit-view.js';
 import { type OrderingFigures, orderingFigures } from './ordering.js';
 import { type UncertaintyOptions, type UncertaintyView, uncertaintyView } from './views/uncertainty-view.js';
-import { PLAIN, SQUARES, SolveWorkspace, orderFreeSum } from './workspace.js';
+import { SolveWorkspace, unitSums } from './workspace.js';
 
 export interface PlayerBalance {
   readonly id: string;
@@ -108,23 +108,23 @@ export type BalanceResult =
  * as `jainIndex` in src/stats/jain-index.ts, 1 for all-zero shares), with
  * order-free sums so that it does not depend on the players' order.
  */
-function jainOf(values: Float64Array, count: number, scratch: Float64Array): number {
+function jainOf(values: Float64Array, count: number): number {
   // Shares divided by the largest first, as jainIndex does: J is unchanged, and equal shares give exactly 1.
   let largest = 0;
   for (let index = 0; index < count; index += 1) if ((values[index] as number) > largest) largest = values[index] as number;
   if (largest === 0) return 1;
-  for (let index = 0; index < count; index += 1) scratch[index] = (values[index] as number) / largest;
-  const sum = orderFreeSum(scratch, count, PLAIN);
-  const squares = orderFreeSum(scratch, count, SQUARES);
-  return Math.min(1, (sum * sum) / (count * squares));
+  unitSums(values, count, largest, null, 0, sums);
+  return Math.min(1, (sums.sum * sums.sum) / (count * sums.squares));
 }
+
+/** Scratch for `unitSums`. */
+const sums = { sum: 0, squares: 0, count: 0 };
 
 /** Per team (eligible players with a team), by team name: order-free means of the solution's before and after. */
 function teamFigures(lobby: LobbyFile, solved: LobbySolve, workspace: SolveWorkspace): TeamFigures[] {
   const { solution, eligible } = solved;
   const count = solution.count;
   const teamOf = workspace.rank;
-  const scratch = workspace.scratch;
   let names: string[] | null = null;
   for (let slot = 0; slot < count; slot += 1) {
     const team = (lobby.players[eligible[slot] as number] as LobbyFile['players'][number]).team;
@@ -142,17 +142,15 @@ function teamFigures(lobby: LobbyFile, solved: LobbySolve, workspace: SolveWorks
   }
   if (names === null) return [];
   const named = names;
-  const mean = (values: Float64Array, number: number): { mean: number; players: number } => {
-    let members = 0;
-    for (let slot = 0; slot < count; slot += 1) if (teamOf[slot] === number) scratch[members++] = values[slot] as number;
-    return { mean: orderFreeSum(scratch, members, PLAIN) / members, players: members };
-  };
   return [...named]
     .sort()
     .map((team) => {
       const number = named.indexOf(team);
-      const before = mean(solution.before, number);
-      return { team, players: before.players, mean_before: before.mean, mean_after: mean(solution.after, number).mean };
+      unitSums(solution.before, count, 1, teamOf, number, sums);
+      const players = sums.count;
+      const meanBefore = sums.sum / players;
+      unitSums(solution.after, count, 1, teamOf, number, sums);
+      return { team, players, mean_before: meanBefore, mean_after: sums.sum / players };
     });
 }
 
@@ -167,18 +165,23 @@ function spread(values: readonly TeamFigures[], pick: (team: TeamFigures) => num
   return largest - smallest;
 }
 
-function trainingWarnings(players: readonly PlayerBalance[], model: CompiledModel): Issue[] {
+function trainingWarnings(lobby: LobbyFile, solved: LobbySolve, model: CompiledModel): Issue[] {
   let warnings: Issue[] | null = null;
   const { latency_ms: latencyRange, scale: scaleRange } = model.training;
-  players.forEach((player, index) => {
-    if (!player.eligible) return;
-    if (player.latency_estimate_ms < latencyRange.min || player.latency_estimate_ms > latencyRange.max) {
-      (warnings ??= []).push(warning('outside_training_range', `players[${index}].latency_ms`, `player ${show(player.id)} at ${player.latency_estimate_ms.toFixed(1)} ms is outside the model's training latencies ${latencyRange.min}-${latencyRange.max} ms: the prediction is an extrapolation`));
+  const { solution, eligible, estimates } = solved;
+  for (let slot = 0; slot < solution.count; slot += 1) {
+    const index = eligible[slot] as number;
+    const latency = estimates[index] as number;
+    const scale = solution.scales[slot] as number;
+    if (latency < latencyRange.min || latency > latencyRange.max) {
+      const id = (lobby.players[index] as LobbyFile['players'][number]).id;
+      (warnings ??= []).push(warning('outside_training_range', `players[${index}].latency_ms`, `player ${show(id)} at ${latency.toFixed(1)} ms is outside the model's training latencies ${latencyRange.min}-${latencyRange.max} ms: the prediction is an extrapolation`));
     }
-    if (player.scale > scaleRange.max + 1e-12 || player.scale < scaleRange.min - 1e-12) {
-      (warnings ??= []).push(warning('outside_training_range', `players[${index}].scale`, `the scale ${player.scale.toFixed(3)} for player ${show(player.id)} is outside the model's training scales ${scaleRange.min}-${scaleRange.max}: the prediction is an extrapolation`));
+    if (scale > scaleRange.max + 1e-12 || scale < scaleRange.min - 1e-12) {
+      const id = (lobby.players[index] as LobbyFile['players'][number]).id;
+      (warnings ??= []).push(warning('outside_training_range', `players[${index}].scale`, `the scale ${scale.toFixed(3)} for player ${show(id)} is outside the model's training scales ${scaleRange.min}-${scaleRange.max}: the prediction is an extrapolation`));
     }
-  });
+  }
   return warnings ?? [];
 }
 
@@ -266,8 +269,8 @@ export function balanceLobby(lobby: LobbyFile, model: CompiledModel, rules: Comp
   const summary: LobbySummary = {
     largest_gap_before: highestBefore - lowestBefore,
     largest_gap_after: highestAfter - lowestAfter,
-    jain_before: jainOf(solution.before, count, sharedWorkspace.scratch),
-    jain_after: jainOf(solution.after, count, sharedWorkspace.scratch),
+    jain_before: jainOf(solution.before, count),
+    jain_after: jainOf(solution.after, count),
     teams,
     team_gap_before: teams.length < 2 ? null : spread(teams, (team) => team.mean_before),
     team_gap_after: teams.length < 2 ? null : spread(teams, (team) => team.mean_after),
@@ -284,7 +287,7 @@ export function balanceLobby(lobby: LobbyFile, model: CompiledModel, rules: Comp
     level: solution.level,
     players,
     summary,
-    warnings: trainingWarnings(players, model),
+    warnings: trainingWarnings(lobby, solved, model),
   };
   const asked = options.views;
   if (asked === undefined || !(asked.ordering || asked.duel || asked.exploit || asked.uncertainty)) return result;

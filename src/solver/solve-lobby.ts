@@ -8,9 +8,9 @@
 import { type Issue, type Result, error, fail, ok, show } from '../issues.js';
 import type { LobbyFile } from '../formats/lobby-file.js';
 import type { CompiledModel, PredictorLine } from '../model/compile.js';
-import { quantileSorted } from '../stats/quantile.js';
+import { quantileSelect } from '../stats/quantile-select.js';
 import type { CompiledRules } from './rules.js';
-import { type CurveSet, smallestSlope } from './player-curve.js';
+import type { CurveSet } from './player-curve.js';
 import { type ScaleForm, type ScaleSolution, expectedBefore, solveScales, termOf } from './solve-scales.js';
 import { SolveWorkspace } from './workspace.js';
 
@@ -27,7 +27,10 @@ export interface LobbySolve {
   readonly solution: ScaleSolution;
 }
 
-/** The latency the estimator takes from one value or from samples. */
+/** Scratch for the estimator's selection, grown to the longest sample list seen. */
+let selectionScratch = new Float64Array(64);
+
+/** The latency the estimator takes from one value or from samples (type 7 quantiles by selection, quantile-select.ts). */
 export function latencyEstimate(latency: number | readonly number[], rules: CompiledRules): number {
   if (typeof latency === 'number') return latency;
   if (latency.length === 1) return latency[0] as number;
@@ -37,8 +40,8 @@ export function latencyEstimate(latency: number | readonly number[], rules: Comp
     for (const value of latency) sum += value;
     return sum / latency.length;
   }
-  const sorted = Float64Array.from(latency).sort();
-  return quantileSorted(sorted, estimator === 'median' ? 0.5 : estimator.percentile / 100, 7);
+  if (selectionScratch.length < latency.length) selectionScratch = new Float64Array(Math.max(latency.length, 2 * selectionScratch.length));
+  return quantileSelect(latency, estimator === 'median' ? 0.5 : estimator.percentile / 100, selectionScratch);
 }
 
 /** The prediction (hit probability) at one latency and scale 1 under a line. */
@@ -85,37 +88,39 @@ export function solveLobby(lobby: LobbyFile, model: CompiledModel, line: Predict
   offsets[0] = 0;
   const { base, basePerMs, scaleSlope, scaleSlopePerMs } = line;
   let position = 0;
+  let issues: Issue[] | null = null;
   for (let index = 0; index < total; index += 1) {
     const slot = slots[index] as number;
     if (slot < 0) continue;
     eligible[slot] = index;
     const latency = (players[index] as LobbyFile['players'][number]).latency_ms;
+    let slope: number;
     if (pooled && typeof latency !== 'number') {
+      slope = Infinity;
       for (const value of latency) {
         alphas[position] = base + basePerMs * value;
-        betas[position] = scaleSlope + scaleSlopePerMs * value;
+        const beta = scaleSlope + scaleSlopePerMs * value;
+        betas[position] = beta;
+        if (!(beta >= slope)) slope = beta;
         position += 1;
       }
     } else {
       const value = estimates[index] as number;
       alphas[position] = base + basePerMs * value;
-      betas[position] = scaleSlope + scaleSlopePerMs * value;
+      slope = scaleSlope + scaleSlopePerMs * value;
+      betas[position] = slope;
       position += 1;
     }
     offsets[slot + 1] = position;
-  }
-  const curves: CurveSet = { count: eligibleCount, offsets, alphas, betas };
-  let issues: Issue[] | null = null;
-  for (let slot = 0; slot < eligibleCount; slot += 1) {
-    const slope = smallestSlope(curves, slot);
+    // E is increasing in the scale exactly when every sample's scale coefficient is positive.
     if (!(slope > 0)) {
-      const index = eligible[slot] as number;
       (issues ??= []).push(
         error('scale_not_increasing', `players[${index}]`, `compensation requires hit probability to increase with the scale, but under this model it does not for player ${show((players[index] as LobbyFile['players'][number]).id)} at ${(estimates[index] as number).toFixed(1)} ms (the scale term's coefficient there is ${slope.toPrecision(3)})`),
       );
     }
   }
   if (issues !== null) return fail(issues);
+  const curves: CurveSet = { count: eligibleCount, offsets, alphas, betas };
   const before = expectedBefore(curves, model.link, form, workspace.before);
   const spec = rules.target;
   let target: number;

@@ -17,7 +17,7 @@
 import { type Issue, error, show } from '../issues.js';
 import type { CompiledModel } from '../model/compile.js';
 import type { CompiledRules } from './rules.js';
-import { quantileSorted } from '../stats/quantile.js';
+import { quantileSelect } from '../stats/quantile-select.js';
 import type { CurveSet } from './player-curve.js';
 import { expectedBefore, solveScales } from './solve-scales.js';
 import { SolveWorkspace } from './workspace.js';
@@ -127,7 +127,7 @@ let estimateScratch = new Float64Array(0);
  * players.
  *
  * With a robust estimator (median, low percentile) each player's samples
- * become one latency (a sort of k values in a reused buffer) and the point
+ * become one latency (a selection of k values in a buffer, quantile-select.ts) and the point
  * path above does the rest. With `all_samples` each player's curve averages
  * over their k samples and the scale is found by the safeguarded Newton
  * iteration of `inverseTerm`; the curves take three typed arrays per call
@@ -157,9 +157,7 @@ export function solveSampledScalesInto(
       const buffer = new Float64Array(perPlayer);
       const probability = estimator === 'all_samples' ? 0.5 : estimator === 'median' ? 0.5 : estimator.percentile / 100;
       for (let player = 0; player < count; player += 1) {
-        for (let index = 0; index < perPlayer; index += 1) buffer[index] = samples[player * perPlayer + index] as number;
-        buffer.sort();
-        estimates[player] = quantileSorted(buffer, probability, 7);
+        estimates[player] = quantileSelect(samples.subarray(player * perPlayer, (player + 1) * perPlayer), probability, buffer);
       }
     }
     return solveScalesInto(model, difficulty, estimates, rules, out);

@@ -182,3 +182,39 @@ function splitter(largest: number): number {
   }
   return sigma;
 }
+
+/**
+ * The splitter of `orderFreeSum` for terms in [0, 1]: with it, a sum of shares
+ * or probabilities needs no pass to find its largest term.
+ */
+const UNIT_SPLITTER = splitter(1);
+
+/**
+ * Order-free sums (as `orderFreeSum`, Rump, Ogita and Oishi's ExtractScalar)
+ * of values in [0, 1] selected by `pick` (an index into `values`, or skip
+ * with -1), in one pass: the sum and the sum of squares. For Jain's index and
+ * team means, whose terms are probabilities or shares of the largest.
+ */
+export function unitSums(values: Float64Array, count: number, scale: number, members: Int32Array | null, member: number, out: { sum: number; squares: number; count: number }): void {
+  const sigma = UNIT_SPLITTER;
+  let highSum = 0;
+  let lowSum = 0;
+  let highSquares = 0;
+  let lowSquares = 0;
+  let taken = 0;
+  for (let index = 0; index < count; index += 1) {
+    if (members !== null && members[index] !== member) continue;
+    const term = (values[index] as number) / scale;
+    const high = term + sigma - sigma;
+    highSum += high;
+    lowSum += term - high;
+    const square = term * term;
+    const highSquare = square + sigma - sigma;
+    highSquares += highSquare;
+    lowSquares += square - highSquare;
+    taken += 1;
+  }
+  out.sum = highSum + lowSum;
+  out.squares = highSquares + lowSquares;
+  out.count = taken;
+}
