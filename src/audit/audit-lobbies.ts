@@ -55,7 +55,7 @@ function reason(rule: AuditRule, value: number | null, limit: number | null, pla
 
 /** Audit one lobby. `source` names the file it came from. Pure. */
 export function auditLobby(lobby: LobbyFile, model: CompiledModel, rules: CompiledRules, source = ''): LobbyAudit {
-  const result = balanceLobby(lobby, model, rules, { views: { duel: true, exploit: true } });
+  const result = balanceLobby(lobby, model, rules, { views: { ordering: true, duel: true, exploit: true } });
   if (result.status === 'rejected') {
     return {
       match_id: lobby.match_id,
@@ -86,10 +86,26 @@ export function auditLobby(lobby: LobbyFile, model: CompiledModel, rules: Compil
       reasons.push(reason('latency_limit_ms', player.latency_estimate_ms, rules.latency_limit_ms, player.id, 'ineligible', `player ${show(player.id)} at ${player.latency_estimate_ms.toFixed(1)} ms is above the eligibility limit ${rules.latency_limit_ms ?? '?'} ms`));
     }
   }
+  // With a step, the same lobby solved without it: what the rounding costs, player by player and for the lobby.
+  const step = rules.quantisation_step;
+  const withoutStep = step === null ? null : balanceLobby(lobby, model, { ...rules, quantisation_step: null });
+  const gapWithoutStep = new Map<string, number>();
+  if (withoutStep !== null && withoutStep.status !== 'rejected') for (const player of withoutStep.players) if (player.eligible) gapWithoutStep.set(player.id, player.gap_to_target);
   for (const player of result.players) {
     if (player.eligible && player.gap_to_target > rules.accepted_gap) {
-      reasons.push(reason('accepted_gap', player.gap_to_target, rules.accepted_gap, player.id, player.binding, `residual gap ${three(player.gap_to_target)} above the accepted ${three(rules.accepted_gap)} for player ${show(player.id)}, ${describeBinding(player.binding, rules)}`));
+      const unrounded = gapWithoutStep.get(player.id);
+      const rounding = player.binding === 'quantisation' && unrounded !== undefined ? ` (without the step ${step ?? '?'}: ${three(Math.max(0, unrounded))})` : '';
+      reasons.push(reason('accepted_gap', player.gap_to_target, rules.accepted_gap, player.id, player.binding, `residual gap ${three(player.gap_to_target)} above the accepted ${three(rules.accepted_gap)} for player ${show(player.id)}, ${describeBinding(player.binding, rules)}${rounding}`));
     }
+  }
+  const worstWith = largestGap(result.players);
+  const worstWithout = gapWithoutStep.size === 0 ? null : Math.max(0, ...gapWithoutStep.values());
+  if (step !== null && worstWithout !== null && worstWith - worstWithout > rules.accepted_gap) {
+    reasons.push(reason('quantisation_step', worstWith - worstWithout, rules.accepted_gap, null, 'quantisation', `the quantisation step ${step} costs this lobby ${three(worstWith - worstWithout)} of hit probability: the worst residual gap is ${three(worstWith)} with it and ${three(worstWithout)} without it, a difference above the accepted gap ${three(rules.accepted_gap)}; a finer step closes it`));
+  }
+  const ordering = result.views?.ordering;
+  if (step !== null && ordering !== undefined && ordering.step_gain > rules.accepted_step_gain) {
+    reasons.push(reason('accepted_step_gain', ordering.step_gain, rules.accepted_step_gain, null, null, `one quantisation step (${step}) changes a player's expected hit probability by up to ${three(ordering.step_gain)}: a worse-connected player can end that far above a better-connected one (largest here ${three(ordering.largest_overtake)}), and a player measured just high enough to move up a step gains that much; above the accepted ${three(rules.accepted_step_gain)}`));
   }
   if (duel !== undefined && worstPair !== undefined && worstDuel > rules.accepted_duel_deviation) {
     reasons.push(reason('accepted_duel_deviation', worstDuel, rules.accepted_duel_deviation, worstPair.a, null, `an equal-skill duel of ${show(worstPair.a)} against ${show(worstPair.b)} (first to ${duel.hits_to_win} hits, ${duel.volleys} volleys) is won ${three(worstPair.a_wins_after)} of the time: ${three(worstDuel)} from even odds, above the accepted ${three(rules.accepted_duel_deviation)}`));
@@ -134,17 +150,24 @@ export function auditLobby(lobby: LobbyFile, model: CompiledModel, rules: Compil
       worst_duel_deviation_after: worstDuel,
       worst_spike_gain: exploit?.worst_spike_gain ?? 0,
       worst_shift_gain: exploit?.worst_shift_gain ?? 0,
+      step_gain: ordering?.step_gain ?? 0,
+      largest_overtake: ordering?.largest_overtake ?? 0,
+      worst_gap_without_step: worstWithout,
     },
     warnings: [...result.warnings],
   };
 }
 
+/** The largest residual gap among eligible players (0 if none is short of the target). */
+function largestGap(players: readonly { eligible: boolean; gap_to_target: number }[]): number {
+  let worst = 0;
+  for (const player of players) if (player.eligible) worst = Math.max(worst, player.gap_to_target);
+  return worst;
+}
+
 /** The largest residual gap among a lobby's eligible players; null if it was not solved. */
 export function worstGap(audit: LobbyAudit): number | null {
-  if (audit.figures === null) return null;
-  let worst = 0;
-  for (const player of audit.players) if (player.eligible) worst = Math.max(worst, player.gap_to_target);
-  return worst;
+  return audit.figures === null ? null : largestGap(audit.players);
 }
 
 function summarise(audits: readonly LobbyAudit[]): AuditSummary {

@@ -8,13 +8,13 @@ import { z } from 'zod';
 export const AUDIT_FORMAT = 'lagparity/audit-result@1';
 
 export const BINDINGS = ['none', 'floor', 'cap', 'soft_cap', 'ratio', 'budget', 'quantisation', 'ineligible'] as const;
-export const AUDIT_RULES = ['solvable', 'latency_limit_ms', 'accepted_gap', 'accepted_duel_deviation', 'accepted_team_gap', 'accepted_exploit_gain'] as const;
+export const AUDIT_RULES = ['solvable', 'latency_limit_ms', 'accepted_gap', 'quantisation_step', 'accepted_duel_deviation', 'accepted_team_gap', 'accepted_exploit_gain', 'accepted_step_gain'] as const;
 
 const probability = z.number().min(0).max(1);
 
 export const auditReasonSchema = z
   .object({
-    rule: z.enum(AUDIT_RULES).describe('The rule that broke (`solvable`: the model cannot solve the lobby).'),
+    rule: z.enum(AUDIT_RULES).describe('The rule that broke (`solvable`: the model cannot solve the lobby; `quantisation_step`: the step costs the lobby more than the accepted gap).'),
     value: z.number().nullable().describe('The number that broke it.'),
     limit: z.number().nullable().describe('What the rules accept.'),
     player: z.string().nullable(),
@@ -58,6 +58,9 @@ export const lobbyAuditSchema = z
         worst_duel_deviation_after: z.number(),
         worst_spike_gain: z.number(),
         worst_shift_gain: z.number(),
+        step_gain: z.number().describe("The largest change one quantisation step makes to an eligible player's expected hit probability at their scale (0 without a step); judged against `accepted_step_gain`."),
+        largest_overtake: z.number().describe('The largest amount by which an eligible player ends above a player with a higher expected hit probability before.'),
+        worst_gap_without_step: z.number().nullable().describe('With a quantisation step: the worst residual gap the same lobby would have without it; null without a step.'),
       })
       .strict()
       .nullable()

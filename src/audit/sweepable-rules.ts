@@ -16,6 +16,7 @@ export const SWEEPABLE_RULES = [
   'accepted_duel_deviation',
   'accepted_team_gap',
   'accepted_exploit_gain',
+  'accepted_step_gain',
   'spike_fraction',
 ] as const;
 

@@ -22,7 +22,7 @@ export async function runBalance(paths: string[], options: BalanceOptions): Prom
     reportIssues(issues);
     return EXIT_BAD_INPUT;
   }
-  const results: BalanceResult[] = lobbies.value.map(({ lobby }) => balanceLobby(lobby, model.value, rules.value));
+  const results: BalanceResult[] = lobbies.value.map(({ lobby }) => balanceLobby(lobby, model.value, rules.value, { views: { ordering: true } }));
   let extrapolated = false;
   results.forEach((result, index) => {
     const file = lobbies.value[index]?.path ?? '';

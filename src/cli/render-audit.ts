@@ -34,6 +34,7 @@ function renderLobby(audit: LobbyAudit, style: Style): string {
         figures.team_gap_before === null ? null : `team gap ${fixed(figures.team_gap_before)} -> ${fixed(figures.team_gap_after)}`,
         `worst equal-skill duel off even odds ${fixed(figures.worst_duel_deviation_before)} -> ${fixed(figures.worst_duel_deviation_after)}`,
         `exploit gain: spikes ${fixed(figures.worst_spike_gain)}, uniform shift ${fixed(figures.worst_shift_gain)}`,
+        figures.worst_gap_without_step === null ? null : `rounding: one step moves a player up to ${fixed(figures.step_gain)}, largest overtake ${fixed(figures.largest_overtake)}, worst gap without the step ${fixed(figures.worst_gap_without_step)}`,
       ]
         .filter((part) => part !== null)
         .join('; '),

@@ -32,11 +32,13 @@ export function renderBalance(result: BalanceResult): string {
   const table = compactTable(PLAYER_HEAD, PLAYER_ALIGN);
   for (const player of result.players) table.push(playerCells(player));
   const summary = result.summary;
+  const ordering = result.views?.ordering;
   const lines = [
     `${result.match_id} (${result.attribute}, difficulty ${String(result.difficulty)}): ${result.status}`,
     table.toString(),
     `target P(hit) ${fixed(result.target)}; largest gap ${fixed(summary.largest_gap_before)} -> ${fixed(summary.largest_gap_after)}; Jain's index ${fixed(summary.jain_before, 4)} -> ${fixed(summary.jain_after, 4)}` +
-      (summary.team_gap_before === null ? '' : `; team gap ${fixed(summary.team_gap_before)} -> ${fixed(summary.team_gap_after)}`),
+      (summary.team_gap_before === null ? '' : `; team gap ${fixed(summary.team_gap_before)} -> ${fixed(summary.team_gap_after)}`) +
+      (ordering === undefined || ordering.step_gain === 0 ? '' : `; one step moves a player up to ${fixed(ordering.step_gain)}, largest overtake ${fixed(ordering.largest_overtake)}`),
   ];
   return lines.join('\n');
 }

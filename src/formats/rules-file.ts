@@ -50,6 +50,12 @@ export const rulesFileSchema = z
     accepted_duel_deviation: z.number().gt(0, { error: 'a probability above 0 (0 would fail every lobby on rounding alone)' }).max(0.5).default(0.05).describe('Largest accepted deviation from even odds (1/2) of a duel between opposing players of equal skill, after compensation.'),
     accepted_team_gap: z.number().gt(0, { error: 'a probability above 0 (0 would fail every lobby on rounding alone)' }).max(1).default(0.02).describe('Largest accepted gap between team means of expected hit probability, after compensation.'),
     accepted_exploit_gain: z.number().gt(0, { error: 'a probability above 0 (0 would fail every lobby on rounding alone)' }).max(1).default(0.01).describe('Largest accepted gain in expected hit probability a player could get from latency spikes (the exploit view).'),
+    accepted_step_gain: z
+      .number()
+      .gt(0, { error: 'a probability above 0 (0 would fail every lobby with a step on rounding alone)' })
+      .max(1)
+      .default(0.02)
+      .describe("Largest accepted change one quantisation step makes to a player's expected hit probability at their scale: how far a worse-connected player may end above a better-connected one, and the most a player gains from a measured latency just high enough to move them one step up. Judged only with a `quantisation_step`."),
     spike_fraction: z.number().gt(0, { error: 'a fraction in (0, 1]' }).max(1, { error: 'a fraction in (0, 1]' }).default(0.25).describe('Share of a player\'s samples the exploit view makes read at the latency limit.'),
   })
   .strict()

@@ -57,6 +57,33 @@ describe('auditLobby()', () => {
     expect(mean.players[0]?.spike_gain).toBeNull(); // a single latency value has no samples to spike
   });
 
+  it('explains rounding: a step that costs more than the accepted gap is a reason naming the step and the gap without it', () => {
+    // A step of 0.25 leaves players needing up to about 1.24 at 1.0; without the step everyone reaches the target.
+    const players = [{ id: 'a', team: 'x', latency_ms: 20 }, { id: 'b', team: 'y', latency_ms: 55 }, { id: 'c', team: 'y', latency_ms: 70 }];
+    const audit = auditLobby(lobby(players), model, defaultRules({ scale_cap: 2, quantisation_step: 0.25 }));
+    const rounding = audit.reasons.find((entry) => entry.rule === 'quantisation_step');
+    const unrounded = auditLobby(lobby(players), model, defaultRules({ scale_cap: 2 }));
+    const worstWith = Math.max(...audit.players.map((player) => player.gap_to_target));
+    const worstWithout = Math.max(0, ...unrounded.players.map((player) => player.gap_to_target));
+    expect(audit.figures?.worst_gap_without_step).toBeCloseTo(worstWithout, 15); // the same lobby solved without the step
+    expect(rounding).toMatchObject({ binding: 'quantisation', limit: 0.02 });
+    expect(rounding?.value).toBeCloseTo(worstWith - worstWithout, 15);
+    expect(rounding?.message).toMatch(/^the quantisation step 0\.25 costs this lobby 0\.\d{3} of hit probability: the worst residual gap is 0\.\d{3} with it and 0\.000 without it/);
+    const gap = audit.reasons.find((entry) => entry.rule === 'accepted_gap' && entry.binding === 'quantisation');
+    expect(gap?.message).toMatch(/held by the quantisation step 0\.25 \(without the step 0\.25: 0\.000\)$/);
+  });
+
+  it('judges one step\'s effect against accepted_step_gain only when there is a step', () => {
+    const players = [{ id: 'a', team: 'x', latency_ms: 20 }, { id: 'b', team: 'y', latency_ms: 60 }];
+    const coarse = auditLobby(lobby(players), model, defaultRules({ scale_cap: 2, quantisation_step: 0.25, accepted_step_gain: 0.01 }));
+    const stepGain = coarse.reasons.find((entry) => entry.rule === 'accepted_step_gain');
+    expect(stepGain?.value).toBe(coarse.figures?.step_gain);
+    expect(stepGain?.value).toBeGreaterThan(0.01);
+    const continuous = auditLobby(lobby(players), model, defaultRules({ scale_cap: 2, accepted_step_gain: 0.01 }));
+    expect(continuous.figures).toMatchObject({ step_gain: 0, worst_gap_without_step: null });
+    expect(continuous.reasons.some((entry) => entry.rule === 'accepted_step_gain')).toBe(false);
+  });
+
   it('reports a lobby the model cannot solve as a failure with the reason', () => {
     const audit = auditLobby(parseLobby({ format: 'lagparity/lobby@1', match_id: 'm', attribute: 'hit_area', difficulty: 'nightmare', players: [{ id: 'a', latency_ms: 20 }] }), model, defaultRules());
     expect(audit).toMatchObject({ verdict: 'fail', figures: null, reasons: [{ rule: 'solvable' }] });
