@@ -62,17 +62,6 @@ export function curveSet(line: PredictorLine, latencies: readonly ArrayLike<numb
   return { count, offsets, alphas, betas };
 }
 
-/** The smallest scale-term coefficient over a player's samples; E is increasing in s iff this is > 0. */
-export function smallestSlope(curves: CurveSet, player: number): number {
-  const end = curves.offsets[player + 1] as number;
-  let smallest = Infinity;
-  for (let index = curves.offsets[player] as number; index < end; index += 1) {
-    const beta = curves.betas[index] as number;
-    if (beta < smallest) smallest = beta;
-  }
-  return smallest;
-}
-
 /** E_i at a scale-term value h(s). Cost: one inverse link per sample. */
 export function expectedAtTerm(curves: CurveSet, player: number, link: Link, term: number): number {
   const start = curves.offsets[player] as number;

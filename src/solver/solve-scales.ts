@@ -21,7 +21,7 @@
  *   solves exactly; the answer for L counts only if someone ends high enough
  *   that L is really the lift (max(s) above ratio x (L - q)). Feasible lifts
  *   form a range from the floor up, and the answer at a larger feasible lift
- *   is at least as good: the largest one is found by bisection, then the
+ *   is at least as good: lift-search.ts finds the largest one, then the
  *   smallest lift with the same sorted values, whose assistance is least
  *   (docs/method.md gives the argument; test/solver/exhaustive.test.ts
  *   checks it against enumeration of every feasible vector);
@@ -29,9 +29,9 @@
  *   lift max(s) / ratio applied at every level and the largest scale kept to
  *   ratio x the smallest upper_i, so that everyone can be lifted.
  *
- * Cost: O(players) for the common case (no budget); with a budget about
- * 5-15 water levels and O(players log players) heap moves, times a few lifts
- * with a ratio on the grid.
+ * Cost: O(players) for the common case (no budget); with a budget a few
+ * water levels (Newton steps for point latencies) and O(players log players)
+ * heap moves, for about three lifts with a ratio on the grid.
  */
 import { type Result, error, fail, ok } from '../issues.js';
 import type { Link } from '../model/links.js';

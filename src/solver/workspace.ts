@@ -53,7 +53,6 @@ export class SolveWorkspace {
   binding = new Uint8Array(0);
   /** Scratch for the report (team figures, ordering); free once a solve is done. */
   scratch = new Float64Array(0);
-  order = new Int32Array(0);
 
   /** Make room for `players` players and `samples` samples in all. */
   reserve(players: number, samples: number): this {
@@ -92,7 +91,6 @@ export class SolveWorkspace {
       this.after = new Float64Array(size);
       this.binding = new Uint8Array(size);
       this.scratch = new Float64Array(size);
-      this.order = new Int32Array(size);
     }
     if (samples > this.samples) {
       const size = Math.max(samples, 2 * this.samples);
