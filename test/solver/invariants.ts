@@ -176,12 +176,18 @@ export function checkInvariants(drawn: FuzzCase, permutationKeys: readonly numbe
     const upper = grant(generousNeed);
     // ... and, to call a step free, a grant that is surely allowed: that of the need at T - 1e-9.
     const strictUpper = grant(needFor(curve, target - 1e-9));
-    if (step === null) return { need, upper, strictUpper, top: upper, ceiling: Math.min(need, upper) };
+    if (step === null) return { need, upper, strictUpper, top: upper, ceiling: Math.min(need, upper), strictCeiling: Math.min(need, upper) };
     const top = Math.floor(upper / step + 1e-9) * step;
     const first = Math.ceil(floor / step - 1e-9);
     let ceiling = first * step;
-    for (let index = first; index * step <= top + 1e-9 * step; index += 1) if (curve(index * step) <= target) ceiling = index * step;
-    return { need, upper, strictUpper, top, ceiling };
+    // ... and a ceiling that is surely one: two implementations of a curve flat near 1 may put a multiple on either side of T.
+    let strictCeiling = first * step;
+    for (let index = first; index * step <= top + 1e-9 * step; index += 1) {
+      const value = curve(index * step);
+      if (value <= target) ceiling = index * step;
+      if (value <= target - 1e-12) strictCeiling = index * step;
+    }
+    return { need, upper, strictUpper, top, ceiling, strictCeiling };
   });
   const scales = eligible.map(({ player }) => player.scale);
   const largest = Math.max(...scales);
@@ -240,14 +246,15 @@ export function checkInvariants(drawn: FuzzCase, permutationKeys: readonly numbe
   // No free step: a player below the target whose next scale every constraint allows (the largest scale unchanged or
   // still within the ratio, the budget, the ceiling) means the answer is not leximin-optimal.
   const room = budget === null ? Infinity : budget - assistance;
-  eligible.forEach(({ player }, slot) => {
+  // Near certainty the soft cap's grant rests on a need recovered from T, known to a few digits (see plain_rounding).
+  if (target < 1 - 1e-6) eligible.forEach(({ player }, slot) => {
     const limits = own[slot] as (typeof own)[number];
     if (player.expected_after >= target - 1e-9) return;
     const next = step === null ? player.scale * (1 + 1e-6) : player.scale + step;
     const cost = Math.max(0, next - 1) - Math.max(0, player.scale - 1);
     const newLargest = Math.max(largest, next);
     const newLift = ratio === null ? -Infinity : step === null ? newLargest / ratio : Math.ceil(newLargest / ratio / step - 1e-9) * step;
-    const allowed = next <= limits.strictUpper * (1 - 1e-12) && next <= Math.max(limits.ceiling, newLift) * (1 + 1e-12) && (ratio === null || newLargest / smallest <= ratio * (1 + 1e-12)) && cost <= room - (step === null ? 1e-9 : slack);
+    const allowed = next <= limits.strictUpper * (1 - 1e-12) && next <= Math.max(limits.strictCeiling, newLift) * (1 + 1e-12) && (ratio === null || newLargest / smallest <= ratio * (1 + 1e-12)) && cost <= room - (step === null ? 1e-9 : slack);
     check('no_free_step', !allowed, () => `${player.id} at ${player.scale} could take ${next} (room ${room}, cost ${cost})`);
   });
 
