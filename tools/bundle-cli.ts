@@ -31,7 +31,7 @@ import { type Plugin, build } from 'esbuild';
  * English texts are the fallback), so the bundle keeps `en` alone, which saves
  * about 10 ms of every start.
  */
-const englishOnlyZod: Plugin = {
+export const englishOnlyZod: Plugin = {
   name: 'zod-english-only',
   setup(builder) {
     builder.onLoad({ filter: /zod[\\/]v4[\\/]locales[\\/]index\.js$/ }, (args) => ({
@@ -45,7 +45,7 @@ const englishOnlyZod: Plugin = {
 const EXTERNAL = ['vega', 'vega-lite'];
 
 /** The package folder of a bundled input path like `node_modules/@scope/name/lib/x.js`, or null for the project's own files. */
-function packageFolderOf(input: string): string | null {
+export function packageFolderOf(input: string): string | null {
   const parts = input.split(/[\\/]/);
   const at = parts.lastIndexOf('node_modules');
   if (at < 0) return null;
@@ -53,14 +53,14 @@ function packageFolderOf(input: string): string | null {
   return parts.slice(0, at + (scoped ? 3 : 2)).join('/');
 }
 
-interface Bundled {
+export interface Bundled {
   readonly name: string;
   readonly version: string;
   readonly license: string;
   readonly text: string;
 }
 
-function bundledPackage(root: string, folder: string): Bundled {
+export function bundledPackage(root: string, folder: string): Bundled {
   const path = join(root, folder);
   const manifest = JSON.parse(readFileSync(join(path, 'package.json'), 'utf8')) as { name: string; version?: string; license?: string };
   const file = readdirSync(path).find((entry) => /^(licen[cs]e|copying)(\.|$)/i.test(entry));
@@ -70,11 +70,11 @@ function bundledPackage(root: string, folder: string): Bundled {
 }
 
 /** One section per distinct licence text, naming every package under it. */
-function licenceNotice(packages: readonly Bundled[]): string {
+export function licenceNotice(packages: readonly Bundled[], bundle = 'lagparity.js'): string {
   const byText = new Map<string, Bundled[]>();
   for (const entry of packages) byText.set(entry.text, [...(byText.get(entry.text) ?? []), entry]);
   const sections = [...byText].map(([text, entries]) => `${entries.map((entry) => `${entry.name}@${entry.version} (${entry.license})`).join('\n')}\n\n${text}\n`);
-  return `Packages bundled into lagparity.js, grouped by licence text.\n\n${sections.join(`\n${'-'.repeat(72)}\n\n`)}`;
+  return `Packages bundled into ${bundle}, grouped by licence text.\n\n${sections.join(`\n${'-'.repeat(72)}\n\n`)}`;
 }
 
 /** Bundle `dist/cli/main.js` into `dist/bin/`; returns the bundled packages. */

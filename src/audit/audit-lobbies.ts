@@ -8,23 +8,22 @@
  */
 import type { Issue } from '../issues.js';
 import { show } from '../issues.js';
-import type { LobbyFile } from '../formats/lobby-file.js';
+import type { LobbyFile } from '../formats/lobby-types.js';
 import type { CompiledModel } from '../model/compile.js';
 import type { CompiledRules } from '../solver/rules.js';
 import { balanceLobby } from '../solver/balance-lobby.js';
 import {
+  AUDIT_BINDINGS as BINDINGS,
   AUDIT_FORMAT,
   AUDIT_RULES,
-  BINDINGS,
+  type AuditBinding as Binding,
   type AuditPlayer,
   type AuditReason,
   type AuditReport,
   type AuditRule,
   type AuditSummary,
   type LobbyAudit,
-} from './audit-schema.js';
-
-type Binding = (typeof BINDINGS)[number];
+} from './audit-types.js';
 
 /** The caution every audit carries. */
 export const AUDIT_CAUTION =

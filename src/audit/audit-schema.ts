@@ -5,10 +5,11 @@
  */
 import { z } from 'zod';
 
-export const AUDIT_FORMAT = 'lagparity/audit-result@1';
+import type * as types from './audit-types.js';
+import { AUDIT_BINDINGS as BINDINGS, AUDIT_FORMAT, AUDIT_RULES } from './audit-types.js';
+import type { Assert, Same } from '../type-equality.js';
 
-export const BINDINGS = ['none', 'floor', 'cap', 'soft_cap', 'ratio', 'budget', 'quantisation', 'ineligible'] as const;
-export const AUDIT_RULES = ['solvable', 'latency_limit_ms', 'accepted_gap', 'quantisation_step', 'accepted_duel_deviation', 'accepted_team_gap', 'accepted_exploit_gain', 'accepted_step_gain'] as const;
+export { AUDIT_FORMAT, AUDIT_RULES, BINDINGS };
 
 const probability = z.number().min(0).max(1);
 
@@ -110,10 +111,15 @@ export const sweepReportSchema = z
   })
   .strict();
 
-export type AuditReason = z.infer<typeof auditReasonSchema>;
-export type AuditPlayer = z.infer<typeof auditPlayerSchema>;
-export type LobbyAudit = z.infer<typeof lobbyAuditSchema>;
-export type AuditSummary = z.infer<typeof auditSummarySchema>;
-export type AuditReport = z.infer<typeof auditReportSchema>;
-export type SweepReport = z.infer<typeof sweepReportSchema>;
-export type AuditRule = (typeof AUDIT_RULES)[number];
+export type { AuditPlayer, AuditReason, AuditReport, AuditSummary, LobbyAudit, SweepReport } from './audit-types.js';
+
+/** The hand-written types of audit-types.ts are the schemas' (a compile error otherwise). */
+type _AuditTypesAgree = [
+  Assert<Same<z.infer<typeof auditReasonSchema>, types.AuditReason>>,
+  Assert<Same<z.infer<typeof auditPlayerSchema>, types.AuditPlayer>>,
+  Assert<Same<z.infer<typeof lobbyAuditSchema>, types.LobbyAudit>>,
+  Assert<Same<z.infer<typeof auditSummarySchema>, types.AuditSummary>>,
+  Assert<Same<z.infer<typeof auditReportSchema>, types.AuditReport>>,
+  Assert<Same<z.infer<typeof sweepReportSchema>, types.SweepReport>>,
+];
+export type { AuditRule } from './audit-types.js';

@@ -7,11 +7,11 @@
  * `scale_cap=1.2:2.0:0.1`.
  */
 import { type Result, error, fail, ok, show } from '../issues.js';
-import type { RulesFile } from '../formats/rules-file.js';
+import type { RulesFile } from '../formats/rules-types.js';
 import type { CompiledModel } from '../model/compile.js';
 import { compileRules } from '../solver/rules.js';
 import { type AuditEntry, auditLobbies, worstGap } from './audit-lobbies.js';
-import type { SweepReport } from './audit-schema.js';
+import type { SweepReport } from './audit-types.js';
 import { SWEEPABLE_RULES, type SweepableRule } from './sweepable-rules.js';
 
 export { SWEEPABLE_RULES, type SweepableRule } from './sweepable-rules.js';

@@ -4,13 +4,11 @@
  */
 import { z } from 'zod';
 import { MAX_LATENCY_MS } from './limits.js';
+import type * as types from './lobby-types.js';
+import { LOBBY_FORMAT, MAX_LATENCY_SAMPLES, MAX_PLAYERS } from './lobby-types.js';
+import type { Assert, Same } from '../type-equality.js';
 
-export const LOBBY_FORMAT = 'lagparity/lobby@1';
-
-/** Documented limits: a lobby holds at most this many players ... */
-export const MAX_PLAYERS = 1024;
-/** ... and one player at most this many latency samples. */
-export const MAX_LATENCY_SAMPLES = 4096;
+export { LOBBY_FORMAT, MAX_LATENCY_SAMPLES, MAX_PLAYERS };
 /** A latency above this (one minute) is not a network latency but a broken measurement. */
 export { MAX_LATENCY_MS } from './limits.js';
 
@@ -57,5 +55,7 @@ export const lobbyFileSchema = z
     });
   });
 
-export type LobbyFile = z.infer<typeof lobbyFileSchema>;
-export type LobbyPlayer = z.infer<typeof playerSchema>;
+export type { LobbyFile, LobbyPlayer } from './lobby-types.js';
+
+/** The hand-written types of lobby-types.ts are the schema's (a compile error otherwise). */
+type _LobbyTypesAgree = [Assert<Same<z.infer<typeof lobbyFileSchema>, types.LobbyFile>>, Assert<Same<z.infer<typeof playerSchema>, types.LobbyPlayer>>];

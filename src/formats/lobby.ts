@@ -1,7 +1,8 @@
 /** Parsing a lobby: `safeParseLobby` returns issues, `parseLobby` throws them. */
 import { type Result, fail, ok, unwrap } from '../issues.js';
 import { fromZodIssues } from './zod-issues.js';
-import { type LobbyFile, lobbyFileSchema } from './lobby-file.js';
+import { lobbyFileSchema } from './lobby-file.js';
+import type { LobbyFile } from './lobby-types.js';
 
 declare const lobbyBrand: unique symbol;
 /** A lobby that passed validation. */

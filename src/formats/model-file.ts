@@ -8,6 +8,8 @@ import { z } from 'zod';
 import { TERM_NAMES } from '../model/terms.js';
 
 import { MODEL_FORMAT } from './model-format.js';
+import type * as types from './model-types.js';
+import type { Assert, Same } from '../type-equality.js';
 
 export { MODEL_FORMAT };
 
@@ -70,4 +72,7 @@ export const modelFileSchema = z
   })
   .strict();
 
-export type ModelFile = z.infer<typeof modelFileSchema>;
+export type { ModelFile } from './model-types.js';
+
+/** The hand-written type of model-types.ts is the schema's (a compile error otherwise). */
+type _ModelTypesAgree = Assert<Same<z.infer<typeof modelFileSchema>, types.ModelFile>>;

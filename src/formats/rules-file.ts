@@ -4,8 +4,11 @@
  * is a complete rules file.
  */
 import { z } from 'zod';
+import type * as types from './rules-types.js';
+import { RULES_FORMAT } from './rules-types.js';
+import type { Assert, Same } from '../type-equality.js';
 
-export const RULES_FORMAT = 'lagparity/rules@1';
+export { RULES_FORMAT };
 
 const positive = z.number({ error: 'a finite number' }).positive({ error: 'a number above 0' });
 
@@ -81,6 +84,7 @@ export const rulesFileSchema = z
     }
   });
 
-export type RulesFile = z.infer<typeof rulesFileSchema>;
-/** The rules as written by a person: every field but `format` may be left out. */
-export type RulesInput = z.input<typeof rulesFileSchema>;
+export type { RulesFile, RulesInput } from './rules-types.js';
+
+/** The hand-written types of rules-types.ts are the schema's (a compile error otherwise). */
+type _RulesTypesAgree = [Assert<Same<z.infer<typeof rulesFileSchema>, types.RulesFile>>, Assert<Same<z.input<typeof rulesFileSchema>, types.RulesInput>>];

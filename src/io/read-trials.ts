@@ -38,7 +38,7 @@ export interface ReadTrialsOptions {
   /** Called with the number of rows read, about every million rows. */
   readonly onProgress?: (rows: number) => void;
   /** Sees every chunk of the file's bytes in order, e.g. to hash the file in the same pass. */
-  readonly onChunk?: (bytes: Buffer) => void;
+  readonly onChunk?: (bytes: Uint8Array) => void;
 }
 
 /** Read a trials CSV file into columns. */

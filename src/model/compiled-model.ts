@@ -14,7 +14,7 @@
  * the solver works from them alone.
  */
 import { type Issue, type Result, at, error, fail, ok, show } from '../issues.js';
-import type { ModelFile } from '../formats/model-file.js';
+import type { ModelFile } from '../formats/model-types.js';
 import { type Link, linkFor } from './links.js';
 import { semiDefiniteCholesky } from '../numeric/semidefinite-cholesky.js';
 import { type PredictorLine, predictorLine } from './predictor-line.js';

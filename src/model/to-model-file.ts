@@ -8,7 +8,7 @@
  * against it.
  */
 import { type Result, error, fail, ok } from '../issues.js';
-import type { ModelFile } from '../formats/model-file.js';
+import type { ModelFile } from '../formats/model-types.js';
 import { MODEL_FORMAT } from '../formats/model-format.js';
 import { compileModelFile } from './compiled-model.js';
 import type { FitReport } from './fit-model.js';

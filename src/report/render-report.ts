@@ -11,8 +11,8 @@
  * Pure: the same input gives the same page (no clock, no randomness, no file
  * access). Asynchronous only because Vega renders asynchronously.
  */
-import { type Issue, type Result, ok, warning } from '../issues.js';
-import type { LobbyFile } from '../formats/lobby-file.js';
+import { type Issue, type Result, error, fail, ok, warning } from '../issues.js';
+import type { LobbyFile } from '../formats/lobby-types.js';
 import type { Trials } from '../formats/trials-csv.js';
 import type { CompiledModel } from '../model/compile.js';
 import { type BalanceResult, type PlayerBalance, balanceLobby } from '../solver/balance-lobby.js';
@@ -23,7 +23,7 @@ import { twoSidedNormalPValue } from '../stats/distributions.js';
 import { type BoxGroup, type CurvePanel, boxPlotSpec, calibrationSpec, curvesSpec, lobbySpec } from './charts.js';
 import { escapeHtml, formatGeneral, formatNumber, htmlTable } from './html.js';
 import { calibrationBins, difficultyForModel, hasCovariance, predictWithBand } from './predictions.js';
-import { renderChartSvg } from './render-svg.js';
+import { MissingChartingError, loadCharting, renderChartSvg } from './render-svg.js';
 
 export interface ReportLobby {
   /** Shown as the lobby's source, e.g. its file name. */
@@ -192,6 +192,12 @@ function figure(svg: string, id: string, caption: string): string {
  */
 export async function renderReport(input: ReportInput): Promise<Result<Report>> {
   const { trials, model } = input;
+  try {
+    await loadCharting();
+  } catch (cause) {
+    if (cause instanceof MissingChartingError) return fail([error(cause.code, 'report', cause.message)]);
+    throw cause;
+  }
   const rules = input.rules ?? defaultRules();
   const warnings: Issue[] = [];
   const difficultyCheck = difficultyForModel(trials, model);

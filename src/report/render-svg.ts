@@ -13,8 +13,38 @@
  * loader that refuses any URL. Vega's log messages are collected and
  * returned, never written to the console.
  */
-import { type Loader, View, parse } from 'vega';
-import { type TopLevelSpec, compile } from 'vega-lite';
+import type { Loader } from 'vega';
+import type { TopLevelSpec } from 'vega-lite';
+
+/**
+ * The charting packages are optional peer dependencies: a matchmaker's install
+ * does not carry them (about 22 MB), and they are imported on the first chart.
+ */
+export const CHARTING_PACKAGES = ['vega@6.4.0', 'vega-lite@6.4.3'] as const;
+
+/** Thrown when the charting packages are not installed; its message says what to install. */
+export class MissingChartingError extends Error {
+  readonly code = 'missing_optional_package';
+}
+
+type Vega = typeof import('vega');
+type VegaLite = typeof import('vega-lite');
+let charting: Promise<{ vega: Vega; vegaLite: VegaLite }> | undefined;
+
+/** Import vega and vega-lite once; a clear error naming both packages when they are missing. */
+export function loadCharting(): Promise<{ vega: Vega; vegaLite: VegaLite }> {
+  charting ??= Promise.all([import('vega'), import('vega-lite')]).then(
+    ([vega, vegaLite]) => ({ vega, vegaLite }),
+    (cause: unknown) => {
+      charting = undefined;
+      const missing = cause instanceof Error && /Cannot find (package|module)|ERR_MODULE_NOT_FOUND/.test(`${(cause as { code?: string }).code ?? ''} ${cause.message}`);
+      throw missing
+        ? new MissingChartingError(`the HTML report draws its charts with the optional packages ${CHARTING_PACKAGES.join(' and ')}, which are not installed: run \`npm install ${CHARTING_PACKAGES.join(' ')}\` where lagparity is installed`)
+        : cause;
+    },
+  );
+  return charting;
+}
 
 /** The log levels of vega-util's logger (None 0, Error 1, Warn 2, Info 3, Debug 4). */
 const WARN = 2;
@@ -99,9 +129,10 @@ export interface RenderedChart {
  * Cost: one Vega dataflow run; tens of milliseconds for a report chart.
  */
 export async function renderChartSvg(spec: TopLevelSpec, id: string): Promise<RenderedChart> {
+  const { vega, vegaLite } = await loadCharting();
   const logger = collectingLogger();
-  const vegaSpec = compile(spec, { logger: logger as never }).spec;
-  const view = new View(parse(vegaSpec), { renderer: 'none', loader: offlineLoader, logger: logger as never, logLevel: WARN });
+  const vegaSpec = vegaLite.compile(spec, { logger: logger as never }).spec;
+  const view = new vega.View(vega.parse(vegaSpec), { renderer: 'none', loader: offlineLoader, logger: logger as never, logLevel: WARN });
   try {
     const svg = await view.toSVG();
     return { svg: prefixSvgIds(svg, id), messages: logger.messages };

@@ -14,7 +14,7 @@
  * only.
  */
 import { type Issue, show, warning } from '../issues.js';
-import type { LobbyFile } from '../formats/lobby-file.js';
+import type { LobbyFile } from '../formats/lobby-types.js';
 import type { CompiledModel } from '../model/compile.js';
 import type { CompiledRules } from './rules.js';
 import { type LobbySolve, solveLobby } from './solve-lobby.js';

@@ -1,6 +1,7 @@
 /** Validating a rules document once, for every lobby solved under it. */
 import { type Result, fail, ok } from '../issues.js';
-import { type RulesFile, type RulesInput, RULES_FORMAT, rulesFileSchema } from '../formats/rules-file.js';
+import { rulesFileSchema } from '../formats/rules-file.js';
+import { type RulesFile, type RulesInput, RULES_FORMAT } from '../formats/rules-types.js';
 import { fromZodIssues } from '../formats/zod-issues.js';
 
 declare const rulesBrand: unique symbol;

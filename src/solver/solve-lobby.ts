@@ -6,7 +6,7 @@
  * coefficients.
  */
 import { type Issue, type Result, error, fail, ok, show } from '../issues.js';
-import type { LobbyFile } from '../formats/lobby-file.js';
+import type { LobbyFile } from '../formats/lobby-types.js';
 import type { CompiledModel, PredictorLine } from '../model/compile.js';
 import { quantileSelect } from '../stats/quantile-select.js';
 import type { CompiledRules } from './rules.js';

@@ -8,7 +8,7 @@
 import normalCdfImpl from '@stdlib/stats-base-dists-normal-cdf';
 import normalPdfImpl from '@stdlib/stats-base-dists-normal-pdf';
 import complementaryErrorInverse from '@stdlib/math-base-special-erfcinv';
-import { createRequire } from 'node:module';
+import gammaIncomplete from '@stdlib/math-base-special-gammainc';
 
 /** Standard normal cumulative distribution function P(Z <= x). */
 export function normalCdf(x: number): number {
@@ -41,17 +41,11 @@ export function twoSidedNormalPValue(z: number): number {
   return 2 * normalUpperTail(Math.abs(z));
 }
 
-type GammaIncomplete = (x: number, s: number, regularized: boolean, upper: boolean) => number;
-let gammaIncomplete: GammaIncomplete | undefined;
-
 /**
  * Chi-square upper tail P(X > x) with `degreesOfFreedom` degrees of freedom,
  * as the regularised upper incomplete gamma function Q(k/2, x/2).
  */
 export function chiSquareUpperTail(x: number, degreesOfFreedom: number): number {
   if (x <= 0) return 1;
-  // Loaded on first use: the package takes about 70 ms to import, which every
-  // command that never computes a chi-square tail would otherwise pay.
-  gammaIncomplete ??= createRequire(import.meta.url)('@stdlib/math-base-special-gammainc') as GammaIncomplete;
   return gammaIncomplete(x / 2, degreesOfFreedom / 2, true, true);
 }

@@ -24,7 +24,7 @@
  * Cost: `draws` lobby solves.
  */
 import { semiDefiniteCholesky } from '../../numeric/semidefinite-cholesky.js';
-import type { LobbyFile } from '../../formats/lobby-file.js';
+import type { LobbyFile } from '../../formats/lobby-types.js';
 import { type CompiledModel, predictorLine } from '../../model/compile.js';
 import { type RandomSource, createRandomSource, standardNormalDraw } from '../../random.js';
 import { quantileSorted } from '../../stats/quantile.js';
