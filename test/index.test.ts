@@ -82,6 +82,7 @@ describe('the package entry points', () => {
         "parseTrialsCsv",
         "quantile",
         "quantileSorted",
+        "rankLobbies",
         "readGroupedTrialsFile",
         "readJsonFile",
         "readTrialsFile",

@@ -17,8 +17,8 @@ import { type Issue, show, warning } from '../issues.js';
 import type { LobbyFile } from '../formats/lobby-types.js';
 import type { CompiledModel } from '../model/compile.js';
 import type { CompiledRules } from './rules.js';
-import { type LobbySolve, solveLobby } from './solve-lobby.js';
-import { BINDINGS, type Binding, type ScaleForm, termOf } from './solve-scales.js';
+import { type LobbySolve, ineligiblePrediction, solveLobby } from './solve-lobby.js';
+import { BINDINGS, type Binding, type ScaleForm } from './solve-scales.js';
 import { type DuelView, duelView } from './views/duel-view.js';
 import { type ExploitView, exploitView } from './views/exploit-view.js';
 import { type OrderingFigures, orderingFigures } from './ordering.js';
@@ -193,14 +193,8 @@ function playersOf(lobby: LobbyFile, model: CompiledModel, rules: CompiledRules,
     const player = lobby.players[index] as LobbyFile['players'][number];
     const slot = slots[index] as number;
     if (slot < 0) {
-      // Ineligible: reported at scale 1, with the prediction the rules' estimator gives (averaged over the samples for
-      // all_samples, at the estimated latency for a robust estimator), as for an eligible player.
-      const samples = typeof player.latency_ms === 'number' || rules.latency_estimator !== 'all_samples' ? [estimates[index] as number] : player.latency_ms;
-      let sum = 0;
-      const { base, basePerMs, scaleSlope, scaleSlopePerMs } = solved.line;
-      const unitTerm = termOf(model.scaleForm as ScaleForm, 1);
-      for (const value of samples) sum += model.link.inverse(base + basePerMs * value + (scaleSlope + scaleSlopePerMs * value) * unitTerm);
-      const before = sum / samples.length;
+      // Ineligible: reported at scale 1, with the prediction the rules' estimator gives.
+      const before = ineligiblePrediction(model, solved.line, player.latency_ms, estimates[index] as number, rules);
       players[index] = { id: player.id, team: player.team ?? null, eligible: false, latency_estimate_ms: estimates[index] as number, scale: 1, expected_before: before, expected_after: before, gap_to_target: target - before, binding: 'ineligible' };
       continue;
     }

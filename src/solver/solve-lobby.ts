@@ -44,6 +44,18 @@ export function latencyEstimate(latency: number | readonly number[], rules: Comp
   return quantileSelect(latency, estimator === 'median' ? 0.5 : estimator.percentile / 100, selectionScratch);
 }
 
+/**
+ * An ineligible player's expected performance (at scale 1) as the rules'
+ * estimator takes it: averaged over their samples for `all_samples`, at their
+ * estimated latency for a robust estimator, as an eligible player's would be.
+ */
+export function ineligiblePrediction(model: CompiledModel, line: PredictorLine, latency: number | readonly number[], estimate: number, rules: CompiledRules): number {
+  if (typeof latency === 'number' || rules.latency_estimator !== 'all_samples') return unscaledPrediction(model, line, estimate);
+  let sum = 0;
+  for (const value of latency) sum += unscaledPrediction(model, line, value);
+  return sum / latency.length;
+}
+
 /** The prediction (hit probability) at one latency and scale 1 under a line. */
 export function unscaledPrediction(model: CompiledModel, line: PredictorLine, latency: number): number {
   const term = termOf(model.scaleForm as ScaleForm, 1);
