@@ -4,6 +4,7 @@
  * same on every machine:
  *   matches/playtest-trials.csv   synthetic playtest, one row per round
  *   matches/*.lobby.json          example lobbies
+ *   matches/cup-final.lobby-servers.json  one match's latencies to three candidate servers
  *   matches/league-rules.json     the league's rules
  * Run: npm run demo:generate   (then `lagparity fit` writes matches/model.json)
  */
@@ -153,5 +154,21 @@ writeJson('ground-truth.model.json', {
     sha256: createHash('sha256').update(trialsText).digest('hex'),
     created_by: 'tools/generate-demo.ts',
   },
+});
+// The cup final: the same ten players, measured to the three servers the league can start a match on (no random
+// draws, so the files above stay as they were). The Herons play from the coast, the Stags from the western reaches.
+const herons = ['brinewick', 'tallowmere', 'quillfen', 'ashgrove', 'morrowlit'];
+const stags = ['vellumcrest', 'wickerby', 'yarrowind', 'cinderfell', 'driftmoor'];
+const toServers = (east: number, central: number, west: number) => ({ 'harbour-east': east, 'midland-central': central, 'reach-west': west });
+writeJson('cup-final.lobby-servers.json', {
+  format: 'lagparity/lobby-servers@1',
+  match_id: 'harbourline-cup-final-herons-stags',
+  attribute: 'hit_area',
+  difficulty: 'elite',
+  servers: ['harbour-east', 'midland-central', 'reach-west'],
+  players: [
+    ...herons.map((id, index) => ({ id, team: TEAMS[0], latency_ms: toServers(14 + 4 * index, 48 + 5 * index, 96 + 7 * index) })),
+    ...stags.map((id, index) => ({ id, team: TEAMS[3], latency_ms: toServers(118 + 9 * index + (index === 4 ? 95 : 0), 52 + 6 * index, 17 + 5 * index) })),
+  ],
 });
 console.error(`wrote the demo files to ${out}/`);

@@ -3,6 +3,7 @@
 import { Command, CommanderError } from 'commander';
 import { registerAudit } from './audit-command.js';
 import { registerBalance } from './balance-command.js';
+import { registerChooseServer } from './choose-server-command.js';
 import { registerFit } from './fit-command.js';
 import { registerReport } from './report-command.js';
 import { registerSummarize } from './summarize-command.js';
@@ -21,6 +22,7 @@ program
 // Options and help only: each command's action imports its run code (`X-run.ts`) when it runs,
 // so a command loads what it needs and nothing else; errors from there reach the catch below.
 registerBalance(program);
+registerChooseServer(program);
 registerFit(program);
 registerAudit(program);
 registerSummarize(program);

@@ -3,16 +3,11 @@ import { basename, extname } from 'node:path';
 import { type Issue, error, show } from '../issues.js';
 import { readJsonFile } from '../io/read-json.js';
 import { readTrialsFile } from '../io/read-trials.js';
-import { safeParseLobby } from '../formats/lobby.js';
+import { safeParseLobby, safeParseServerLobby } from '../formats/lobby.js';
 import { compileModel } from '../model/compile.js';
 import { compileRules } from '../solver/rules.js';
-import { LOBBY_FORMAT } from '../formats/lobby-file.js';
-import { MODEL_FORMAT } from '../formats/model-file.js';
-import { RULES_FORMAT } from '../formats/rules-file.js';
+import { FILE_KINDS as KINDS, type FileKind as Kind, KIND_OF_TAG as TAGS } from '../formats/file-kinds.js';
 import { EXIT_BAD_INPUT, EXIT_OK, reportIssues, writeOut } from './output.js';
-import { KINDS, type Kind } from './validate-command.js';
-
-const TAGS: Record<string, Kind> = { [LOBBY_FORMAT]: 'lobby', [MODEL_FORMAT]: 'model', [RULES_FORMAT]: 'rules' };
 
 export interface FileVerdict {
   readonly path: string;
@@ -37,7 +32,14 @@ export async function validateFile(path: string, forced: Kind | undefined): Prom
     const known = Object.keys(TAGS).map((name) => show(name)).join(', ');
     return { path, kind: null, valid: false, warnings: [], issues: [error('unknown_format', `${read.file}:format`, `\`format\` requires one of ${known} (or a .csv trials file), got ${show(tag)}`)] };
   }
-  const parsed = detected === 'lobby' ? safeParseLobby(read.value, read.file) : detected === 'model' ? compileModel(read.value, read.file) : compileRules(read.value, read.file);
+  const parsed =
+    detected === 'lobby'
+      ? safeParseLobby(read.value, read.file)
+      : detected === 'lobby-servers'
+        ? safeParseServerLobby(read.value, read.file)
+        : detected === 'model'
+          ? compileModel(read.value, read.file)
+          : compileRules(read.value, read.file);
   return parsed.ok ? { path, kind: detected, valid: true, issues: [], warnings: parsed.warnings } : { path, kind: detected, valid: false, issues: parsed.issues, warnings: [] };
 }
 

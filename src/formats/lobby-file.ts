@@ -17,27 +17,36 @@ const latencyValue = z
   .min(0, { error: `a latency in milliseconds between 0 and ${MAX_LATENCY_MS}` })
   .max(MAX_LATENCY_MS, { error: `a latency in milliseconds between 0 and ${MAX_LATENCY_MS}` });
 
-export const playerSchema = z
-  .object({
-    id: z.string().min(1).max(128),
-    team: z.string().min(1).max(128).optional(),
-    latency_ms: z.union([
-      latencyValue,
-      z.array(latencyValue).min(1, { error: 'at least one latency sample' }).max(MAX_LATENCY_SAMPLES, { error: `at most ${MAX_LATENCY_SAMPLES} latency samples per player` }),
-    ], { error: 'a latency in milliseconds, or a non-empty list of measured samples in milliseconds' }),
-  })
-  .strict();
+/** One latency or a list of samples (shared with the server-choice lobby). */
+export const latencySchema = z.union(
+  [latencyValue, z.array(latencyValue).min(1, { error: 'at least one latency sample' }).max(MAX_LATENCY_SAMPLES, { error: `at most ${MAX_LATENCY_SAMPLES} latency samples per player` })],
+  { error: 'a latency in milliseconds, or a non-empty list of measured samples in milliseconds' },
+);
+
+/** A player's id and team (shared with the server-choice lobby). */
+export const playerIdentity = { id: z.string().min(1).max(128), team: z.string().min(1).max(128).optional() };
+
+/** The fields every match document has besides its format tag and players (shared with the server-choice lobby). */
+export const matchFields = {
+  match_id: z.string().min(1).max(256),
+  attribute: z.enum(['hit_area', 'timing_window']).describe('What the scale multiplies: the target hit area (spatial) or the timing window width (temporal).'),
+  difficulty: z.union([z.number(), z.string().min(1).max(128)], { error: 'a numeric difficulty or a level name' }),
+};
+
+/** The player list's bounds (shared with the server-choice lobby). */
+export const playersOf = <T extends z.ZodType>(player: T) =>
+  z
+    .array(player)
+    .min(1, { error: 'at least one player' })
+    .max(MAX_PLAYERS, { error: `at most ${MAX_PLAYERS} players (the documented lobby limit)` });
+
+export const playerSchema = z.object({ ...playerIdentity, latency_ms: latencySchema }).strict();
 
 export const lobbyFileSchema = z
   .object({
     format: z.literal(LOBBY_FORMAT, { error: `the format tag "${LOBBY_FORMAT}"` }),
-    match_id: z.string().min(1).max(256),
-    attribute: z.enum(['hit_area', 'timing_window']).describe('What the scale multiplies: the target hit area (spatial) or the timing window width (temporal).'),
-    difficulty: z.union([z.number(), z.string().min(1).max(128)], { error: 'a numeric difficulty or a level name' }),
-    players: z
-      .array(playerSchema)
-      .min(1, { error: 'at least one player' })
-      .max(MAX_PLAYERS, { error: `at most ${MAX_PLAYERS} players (the documented lobby limit)` }),
+    ...matchFields,
+    players: playersOf(playerSchema),
   })
   .strict()
   .superRefine((lobby, context) => {

@@ -5,6 +5,7 @@
  * mention zod.
  */
 import { lobbyFileSchema, LOBBY_FORMAT } from './lobby-file.js';
+import { serverLobbyFileSchema, SERVER_LOBBY_FORMAT } from './server-lobby-file.js';
 import { modelFileSchema, MODEL_FORMAT } from './model-file.js';
 import { rulesFileSchema, RULES_FORMAT } from './rules-file.js';
 import { TRIALS_FORMAT } from './trials-csv.js';
@@ -13,6 +14,7 @@ import { AUDIT_FORMAT, auditReportSchema, sweepReportSchema } from '../audit/aud
 
 export const SCHEMA_FILES = {
   'lobby.schema.json': { schema: lobbyFileSchema, title: LOBBY_FORMAT, description: 'One match: players and their measured latencies.' },
+  'lobby-servers.schema.json': { schema: serverLobbyFileSchema, title: SERVER_LOBBY_FORMAT, description: 'One match: players and their measured latencies to each candidate server.' },
   'model.schema.json': { schema: modelFileSchema, title: MODEL_FORMAT, description: 'A fitted hit-probability model.' },
   'rules.schema.json': { schema: rulesFileSchema, title: RULES_FORMAT, description: 'The limits a league sets on compensation.' },
   'audit-result.schema.json': { schema: auditReportSchema, title: AUDIT_FORMAT, description: 'The output of `lagparity audit --json`.' },

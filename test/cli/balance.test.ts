@@ -65,3 +65,36 @@ describe('lagparity balance', () => {
     expect(run.stdout).toContain('Example:');
   });
 });
+
+describe('lagparity choose-server', () => {
+  const servers = join(MATCHES, 'cup-final.lobby-servers.json');
+
+  it('ranks the servers, says which was chosen and why, and balances the match there', () => {
+    const run = runCli(['choose-server', servers, '--model', model, '--rules', rules]);
+    expect(run.status).toBe(0);
+    expect(run.stdout).toMatch(/│ midland-central │ solved │\s+0\.000 │/);
+    expect(run.stdout).toContain('chosen: midland-central rather than reach-west: its worst residual gap is smaller');
+    expect(run.stdout).toMatch(/│ harbour-east\s+│ solved │.*│ driftmoor\s+│/);
+    expect(run.stdout).toContain('harbourline-cup-final-herons-stags (hit_area, difficulty elite): balanced');
+    expect(run.stderr).toContain('Caution: compensation changes competitive outcomes');
+  });
+
+  it('writes one JSON document with --json', () => {
+    const run = runCli(['choose-server', servers, '--model', model, '--rules', rules, '--json']);
+    expect(run.status).toBe(0);
+    const document = JSON.parse(run.stdout);
+    expect([document.format, document.status, document.server, document.servers.length]).toEqual(['lagparity/server-choice@1', 'chosen', 'midland-central', 3]);
+    expect(document.best.players).toHaveLength(10);
+  });
+
+  it('refuses a lobby missing a latency to a listed server, naming the place, exit 2', () => {
+    const document = JSON.parse(readFileSync(servers, 'utf8'));
+    delete document.players[3].latency_ms['reach-west'];
+    const folder = mkdtempSync(join(tmpdir(), 'lagparity-servers-'));
+    const path = join(folder, 'broken.lobby-servers.json');
+    writeFileSync(path, JSON.stringify(document));
+    const run = runCli(['choose-server', path, '--model', model]);
+    expect(run.status).toBe(2);
+    expect(run.stderr).toContain('broken.lobby-servers.json:players[3].latency_ms.reach-west: error missing_server_latency');
+  });
+});
