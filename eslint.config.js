@@ -12,7 +12,11 @@ export default tseslint.config(
     },
   },
   {
-    files: ['src/cli/**', 'tools/**', 'test/**'],
+    files: ['src/cli/**', 'tools/**', 'test/**', 'examples/**'],
     rules: { 'no-console': 'off' },
+  },
+  {
+    files: ['examples/**/*.mjs'],
+    languageOptions: { globals: { console: 'readonly', process: 'readonly', URL: 'readonly' } },
   },
 );

@@ -12,6 +12,8 @@
  *   const rules = compileRules(rulesJson);        // once
  *   const lobby = safeParseLobby(payload);        // per untrusted payload
  *   const result = balanceLobby(lobby.value, model.value, rules.value);
+ * and to choose among candidates and keep the scales right in play:
+ * rankLobbies, chooseServer, MatchSession (README, "Use as a module").
  */
 export { AUDIT_CAUTION, auditLobbies, auditLobby } from './audit/audit-lobbies.js';
 export { AUDIT_FORMAT } from './audit/audit-types.js';
@@ -33,15 +35,18 @@ export { jainIndex } from './stats/jain-index.js';
 export { jsonSchemas } from './formats/json-schemas.js';
 export { LINK_NAMES, linkFor } from './model/links.js';
 export { LOBBY_FORMAT, MAX_LATENCY_MS, MAX_LATENCY_SAMPLES, MAX_PLAYERS } from './formats/lobby-types.js';
+export { MatchSession, SESSION_FORMAT } from './session/match-session.js';
 export { MAX_CSV_LINE_BYTES, MAX_TRIAL_ROWS, parseTrialsCsv, TRIALS_FORMAT } from './formats/trials-csv.js';
 export { MAX_JSON_BYTES, parseJsonText } from './formats/json-input.js';
 export { MODEL_FORMAT } from './formats/model-format.js';
 export { parseLobby, parseServerLobby, safeParseLobby, safeParseServerLobby } from './formats/lobby.js';
+export { parseSessionLog } from './session/session-log-file.js';
 export { parseSweep, sweepRule, SWEEPABLE_RULES } from './audit/sweep.js';
 export { quantile, quantileSorted } from './stats/quantile.js';
 export { rankLobbies } from './solver/rank-lobbies.js';
 export { readJsonFile } from './io/read-json.js';
 export { readGroupedTrialsFile, readTrialsFile } from './io/read-trials.js';
+export { replaySession } from './session/replay-session.js';
 export { RULES_FORMAT } from './formats/rules-types.js';
 export { MAX_SERVERS, SERVER_LOBBY_FORMAT } from './formats/server-lobby-types.js';
 export { solveSampledScalesInto, solveScalesInto } from './solver/solve-scales-into.js';
@@ -68,11 +73,13 @@ export type { Issue, IssueSeverity, Result } from './issues.js';
 export type { LeastSquaresData, LeastSquaresFit } from './model/fit-least-squares.js';
 export type { Link, LinkName } from './model/links.js';
 export type { LobbyFile, LobbyPlayer } from './formats/lobby-types.js';
+export type { MatchInfo, SessionEvent, SessionLogger, SessionOptions } from './session/match-session.js';
 export type { ModelFile } from './formats/model-types.js';
 export type { ModelProvenance } from './model/to-model-file.js';
 export type { PlayerScaleInterval, UncertaintyOptions, UncertaintyView } from './solver/views/uncertainty-view.js';
 export type { QuantileType } from './stats/quantile.js';
 export type { CandidateFigures, RankResult } from './solver/rank-lobbies.js';
+export type { ReplayReport } from './session/replay-session.js';
 export type { ReadTrialsOptions } from './io/read-trials.js';
 export type { RandomSource } from './random.js';
 export type { RulesFile, RulesInput } from './formats/rules-types.js';

@@ -2,7 +2,7 @@
 import { createReadStream } from 'node:fs';
 import { basename } from 'node:path';
 import type { Readable } from 'node:stream';
-import { type Result, error, fail } from '../issues.js';
+import { type Result, error, fail, ok } from '../issues.js';
 import { MAX_JSON_BYTES, parseJsonText } from '../formats/json-input.js';
 
 async function readLimited(stream: Readable, maxBytes: number): Promise<{ text: string } | { tooLarge: number }> {
@@ -21,10 +21,10 @@ async function readLimited(stream: Readable, maxBytes: number): Promise<{ text: 
 }
 
 /**
- * Read and parse a JSON file (`-` reads standard input). Issues name the file
- * by its base name, or `stdin`.
+ * Read a text file whole (`-` reads standard input), at most `maxBytes`.
+ * Issues name the file by its base name, or `stdin`.
  */
-export async function readJsonFile(path: string, maxBytes: number = MAX_JSON_BYTES): Promise<Result<unknown> & { file: string }> {
+export async function readTextFile(path: string, maxBytes: number, kind = 'the input'): Promise<Result<string> & { file: string }> {
   const file = path === '-' ? 'stdin' : basename(path);
   let read: { text: string } | { tooLarge: number };
   try {
@@ -32,10 +32,20 @@ export async function readJsonFile(path: string, maxBytes: number = MAX_JSON_BYT
   } catch (cause) {
     const code = (cause as NodeJS.ErrnoException).code;
     const reason = code === 'ENOENT' ? 'no such file' : code === 'EISDIR' ? 'it is a folder' : (cause as Error).message;
-    return { ...fail([error('cannot_read', path, `the input requires a readable file, got ${reason}`)]), file };
+    return { ...fail([error('cannot_read', path, `${kind} requires a readable file, got ${reason}`)]), file };
   }
   if ('tooLarge' in read) {
-    return { ...fail([error('too_large', file, `a JSON input requires at most ${maxBytes} bytes (the documented limit), got more than that`)]), file };
+    return { ...fail([error('too_large', file, `${kind} requires at most ${maxBytes} bytes (the documented limit), got more than that`)]), file };
   }
-  return { ...parseJsonText(read.text, file, maxBytes), file };
+  return { ...ok(read.text), file };
+}
+
+/**
+ * Read and parse a JSON file (`-` reads standard input). Issues name the file
+ * by its base name, or `stdin`.
+ */
+export async function readJsonFile(path: string, maxBytes: number = MAX_JSON_BYTES): Promise<Result<unknown> & { file: string }> {
+  const read = await readTextFile(path, maxBytes, 'a JSON input');
+  if (!read.ok) return read;
+  return { ...parseJsonText(read.value, read.file, maxBytes), file: read.file };
 }
