@@ -1,12 +1,11 @@
 /** `lagparity balance`, run: per-player scales for one or more lobbies (options and help: `balance-command.ts`). */
 import { basename } from 'node:path';
 import { at } from '../issues.js';
-import { balanceLobby, type BalanceResult } from '../solver/balance-lobby.js';
+import type { BalanceResult } from '../solver/balance-lobby.js';
+import { balanceDocument, balanceForOutput } from '../formats/result-documents.js';
 import { loadLobbies, loadModel, loadRules } from './inputs.js';
 import { CAUTION, renderBalance } from './render-balance.js';
 import { EXIT_BAD_INPUT, EXIT_OK, reportIssues, writeOut } from './output.js';
-
-export const BALANCE_FORMAT = 'lagparity/balance-result@1';
 
 export interface BalanceOptions {
   model: string;
@@ -22,7 +21,7 @@ export async function runBalance(paths: string[], options: BalanceOptions): Prom
     reportIssues(issues);
     return EXIT_BAD_INPUT;
   }
-  const results: BalanceResult[] = lobbies.value.map(({ lobby }) => balanceLobby(lobby, model.value, rules.value, { views: { ordering: true } }));
+  const results: BalanceResult[] = lobbies.value.map(({ lobby }) => balanceForOutput(lobby, model.value, rules.value));
   let extrapolated = false;
   results.forEach((result, index) => {
     const file = lobbies.value[index]?.path ?? '';
@@ -39,7 +38,7 @@ export async function runBalance(paths: string[], options: BalanceOptions): Prom
     if (result.status === 'rejected') reportIssues(result.issues.map((issue) => ({ ...issue, location: place(issue.location) })));
   });
   if (options.json) {
-    writeOut(JSON.stringify({ format: BALANCE_FORMAT, lobbies: results }, null, 2));
+    writeOut(JSON.stringify(balanceDocument(results), null, 2));
   } else {
     writeOut(results.map(renderBalance).join('\n\n'));
     process.stderr.write(`\n${CAUTION}\n`);

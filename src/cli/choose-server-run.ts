@@ -1,13 +1,11 @@
 /** `lagparity choose-server`, run (options and help: `choose-server-command.ts`). */
 import { readJsonFile } from '../io/read-json.js';
 import { safeParseServerLobby } from '../formats/lobby.js';
-import { chooseServer } from '../solver/choose-server.js';
+import { serverChoiceDocument } from '../formats/result-documents.js';
 import { loadModel, loadRules } from './inputs.js';
 import { CAUTION, renderBalance } from './render-balance.js';
 import { compactTable } from './table.js';
 import { EXIT_BAD_INPUT, EXIT_OK, fixed, reportIssues, writeOut } from './output.js';
-
-export const SERVER_CHOICE_FORMAT = 'lagparity/server-choice@1';
 
 export interface ChooseServerOptions {
   model: string;
@@ -22,9 +20,9 @@ export async function runChooseServer(file: string, options: ChooseServerOptions
     reportIssues([...(model.ok ? [] : model.issues), ...(rules.ok ? [] : rules.issues), ...(lobby.ok ? [] : lobby.issues)]);
     return EXIT_BAD_INPUT;
   }
-  const choice = chooseServer(lobby.value, model.value, rules.value, { views: { ordering: true } });
+  const choice = serverChoiceDocument(lobby.value, model.value, rules.value);
   if (options.json) {
-    writeOut(JSON.stringify({ format: SERVER_CHOICE_FORMAT, match_id: lobby.value.match_id, ...choice }, null, 2));
+    writeOut(JSON.stringify(choice, null, 2));
   } else {
     const table = compactTable(['server', 'status', 'worst gap', "Jain's index", 'mean latency ms', 'ineligible'], ['left', 'left', 'right', 'right', 'right', 'left']);
     for (const server of choice.servers) {

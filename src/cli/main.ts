@@ -7,6 +7,7 @@ import { registerChooseServer } from './choose-server-command.js';
 import { registerFit } from './fit-command.js';
 import { registerReplay } from './replay-command.js';
 import { registerReport } from './report-command.js';
+import { registerServe } from './serve-command.js';
 import { registerSummarize } from './summarize-command.js';
 import { registerValidate } from './validate-command.js';
 import { EXIT_BAD_INPUT } from './output.js';
@@ -29,6 +30,7 @@ registerAudit(program);
 registerSummarize(program);
 registerReport(program);
 registerReplay(program);
+registerServe(program);
 registerValidate(program);
 
 try {

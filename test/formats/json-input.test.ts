@@ -1,3 +1,4 @@
+import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
 import { lineAndColumn, parseJsonText } from '../../src/formats/json-input.js';
 
@@ -28,6 +29,17 @@ describe('parseJsonText()', () => {
     if (!result.ok) {
       expect(result.issues[0]).toMatchObject({ code: 'forbidden_key', location: `lobby.json:players[0].${key}` });
     }
+  });
+
+  it('refuses a forbidden key spelt with \\u escapes (the text holds no literal name, so the quick test must not skip the walk)', () => {
+    fc.assert(
+      fc.property(fc.constantFrom('__proto__', 'constructor', 'prototype'), fc.array(fc.boolean(), { minLength: 9, maxLength: 11 }), (key, escapes) => {
+        const spelt = [...key].map((character, index) => (escapes[index] ? `\\u${character.charCodeAt(0).toString(16).padStart(4, '0')}` : character)).join('');
+        const result = parseJsonText(`{"a": [{"b": 1, "${spelt}": 2}]}`, 'x.json');
+        expect(result.ok || result.issues[0]).toMatchObject({ code: 'forbidden_key', location: `x.json:a[0].${key}` });
+      }),
+      { seed: 15, numRuns: 200 },
+    );
   });
 
   it('refuses an empty file and one above the size limit', () => {
