@@ -34,7 +34,7 @@ export { groupTrials } from './model/collapse.js';
 export { jainIndex } from './stats/jain-index.js';
 export { jsonSchemas } from './formats/json-schemas.js';
 export { LINK_NAMES, linkFor } from './model/links.js';
-export { LOBBY_FORMAT, MAX_LATENCY_MS, MAX_LATENCY_SAMPLES, MAX_PLAYERS } from './formats/lobby-types.js';
+export { LOBBY_FORMAT, MAX_LATENCY_MS, MAX_LATENCY_SAMPLES, MAX_LOBBY_SAMPLES, MAX_PLAYERS } from './formats/lobby-types.js';
 export { MatchSession, SESSION_FORMAT } from './session/match-session.js';
 export { MAX_CSV_LINE_BYTES, MAX_TRIAL_ROWS, parseTrialsCsv, TRIALS_FORMAT } from './formats/trials-csv.js';
 export { MAX_JSON_BYTES, parseJsonText } from './formats/json-input.js';

@@ -73,11 +73,15 @@ export function show(value: unknown): string {
   if (typeof value === 'string') text = JSON.stringify(value);
   else if (typeof value === 'number') text = Number.isNaN(value) ? 'NaN' : String(value);
   else if (value === undefined) text = 'nothing';
+  else if (typeof value === 'function') text = 'a function';
+  else if (typeof value === 'symbol') text = 'a symbol';
+  else if (typeof value === 'bigint') text = `${String(value)}n (a BigInt)`;
   else {
     try {
-      text = JSON.stringify(value) ?? String(value);
+      text = JSON.stringify(value) ?? 'a value JSON cannot hold';
     } catch {
-      text = Object.prototype.toString.call(value);
+      // Cycles, and getters or proxies that throw when read.
+      text = 'a value that cannot be read';
     }
   }
   return text.length > 60 ? `${text.slice(0, 57)}...` : text;

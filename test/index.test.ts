@@ -43,6 +43,7 @@ describe('the package entry points', () => {
         "MAX_JSON_BYTES",
         "MAX_LATENCY_MS",
         "MAX_LATENCY_SAMPLES",
+        "MAX_LOBBY_SAMPLES",
         "MAX_PLAYERS",
         "MAX_SERVERS",
         "MAX_TRIAL_ROWS",

@@ -6,11 +6,12 @@
  * every rule that broke and the number that broke it. The summary counts the
  * passes, lists the lobbies worst first and says which constraint binds most.
  */
+import { matchIdOf, parsedLobby } from '../solver/entry-checks.js';
 import type { Issue } from '../issues.js';
-import { show } from '../issues.js';
+import { show, unwrap } from '../issues.js';
 import type { LobbyFile } from '../formats/lobby-types.js';
 import type { CompiledModel } from '../model/compile.js';
-import type { CompiledRules } from '../solver/rules.js';
+import { type CompiledRules, compileRules } from '../solver/rules.js';
 import { balanceLobby } from '../solver/balance-lobby.js';
 import {
   AUDIT_BINDINGS as BINDINGS,
@@ -53,11 +54,14 @@ function reason(rule: AuditRule, value: number | null, limit: number | null, pla
 }
 
 /** Audit one lobby. `source` names the file it came from. Pure. */
-export function auditLobby(lobby: LobbyFile, model: CompiledModel, rules: CompiledRules, source = ''): LobbyAudit {
-  const result = balanceLobby(lobby, model, rules, { views: { ordering: true, duel: true, exploit: true } });
+export function auditLobby(input: LobbyFile, model: CompiledModel, rules: CompiledRules, source = ''): LobbyAudit {
+  // A lobby that did not come from safeParseLobby is validated here, once, and the audit reads the validated copy.
+  const parsed = parsedLobby(input);
+  const lobby = parsed.ok ? parsed.value : input;
+  const result = parsed.ok ? balanceLobby(lobby, model, rules, { views: { ordering: true, duel: true, exploit: true } }) : { status: 'rejected' as const, issues: parsed.issues, warnings: [] };
   if (result.status === 'rejected') {
     return {
-      match_id: lobby.match_id,
+      match_id: matchIdOf(input),
       source,
       verdict: 'fail',
       reasons: result.issues.map((issue: Issue) => reason('solvable', null, null, null, null, `the lobby cannot be solved: ${issue.message}`)),
@@ -87,7 +91,7 @@ export function auditLobby(lobby: LobbyFile, model: CompiledModel, rules: Compil
   }
   // With a step, the same lobby solved without it: what the rounding costs, player by player and for the lobby.
   const step = rules.quantisation_step;
-  const withoutStep = step === null ? null : balanceLobby(lobby, model, { ...rules, quantisation_step: null });
+  const withoutStep = step === null ? null : balanceLobby(lobby, model, unwrap(compileRules({ ...rules, quantisation_step: null })));
   const gapWithoutStep = new Map<string, number>();
   if (withoutStep !== null && withoutStep.status !== 'rejected') for (const player of withoutStep.players) if (player.eligible) gapWithoutStep.set(player.id, player.gap_to_target);
   for (const player of result.players) {

@@ -1,5 +1,5 @@
 /** `lagparity choose-server`, run (options and help: `choose-server-command.ts`). */
-import { readJsonFile } from '../io/read-json.js';
+import { readJsonDocument } from '../io/read-json.js';
 import { safeParseServerLobby } from '../formats/lobby.js';
 import { serverChoiceDocument } from '../formats/result-documents.js';
 import { loadModel, loadRules } from './inputs.js';
@@ -14,8 +14,7 @@ export interface ChooseServerOptions {
 }
 
 export async function runChooseServer(file: string, options: ChooseServerOptions): Promise<number> {
-  const [model, rules, read] = await Promise.all([loadModel(options.model), loadRules(options.rules), readJsonFile(file)]);
-  const lobby = read.ok ? safeParseServerLobby(read.value, read.file) : read;
+  const [model, rules, lobby] = await Promise.all([loadModel(options.model), loadRules(options.rules), readJsonDocument(file, safeParseServerLobby)]);
   if (!model.ok || !rules.ok || !lobby.ok) {
     reportIssues([...(model.ok ? [] : model.issues), ...(rules.ok ? [] : rules.issues), ...(lobby.ok ? [] : lobby.issues)]);
     return EXIT_BAD_INPUT;

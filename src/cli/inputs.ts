@@ -2,7 +2,8 @@
 import { readdir, stat } from 'node:fs/promises';
 import { join } from 'node:path';
 import { type Issue, type Result, error, fail, ok } from '../issues.js';
-import { readJsonFile } from '../io/read-json.js';
+import { readJsonDocument } from '../io/read-json.js';
+import { reportIssues } from './output.js';
 import { type CompiledModel, compileModel } from '../model/compile.js';
 import { type CompiledRules, compileRules, defaultRules } from '../solver/rules.js';
 import { type ValidLobby, safeParseLobby } from '../formats/lobby.js';
@@ -10,16 +11,18 @@ import { type ValidLobby, safeParseLobby } from '../formats/lobby.js';
 export const LOBBY_SUFFIX = '.lobby.json';
 
 export async function loadModel(path: string): Promise<Result<CompiledModel>> {
-  const read = await readJsonFile(path);
-  if (!read.ok) return read;
-  return compileModel(read.value, read.file);
+  return reported(await readJsonDocument(path, compileModel));
 }
 
 export async function loadRules(path: string | undefined): Promise<Result<CompiledRules>> {
   if (path === undefined) return ok(defaultRules());
-  const read = await readJsonFile(path);
-  if (!read.ok) return read;
-  return compileRules(read.value, read.file);
+  return reported(await readJsonDocument(path, compileRules));
+}
+
+/** A loaded input's warnings go to stderr at once (the result keeps its value). */
+function reported<T>(result: Result<T>): Result<T> {
+  if (result.ok && result.warnings.length > 0) reportIssues(result.warnings);
+  return result;
 }
 
 /** Expand the PATH arguments: files as given, folders to their `*.lobby.json` files in name order, `-` as stdin. */
@@ -57,12 +60,7 @@ export async function loadLobbies(paths: readonly string[]): Promise<Result<Load
   const lobbies: LoadedLobby[] = [];
   const issues: Issue[] = [];
   for (const path of expanded.value) {
-    const read = await readJsonFile(path);
-    if (!read.ok) {
-      issues.push(...read.issues);
-      continue;
-    }
-    const parsed = safeParseLobby(read.value, read.file);
+    const parsed = await readJsonDocument(path, safeParseLobby);
     if (parsed.ok) lobbies.push({ path, lobby: parsed.value });
     else issues.push(...parsed.issues);
   }

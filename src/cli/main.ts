@@ -11,6 +11,7 @@ import { registerServe } from './serve-command.js';
 import { registerSummarize } from './summarize-command.js';
 import { registerValidate } from './validate-command.js';
 import { EXIT_BAD_INPUT } from './output.js';
+import { escapeControlCharacters } from '../formats/control-characters.js';
 
 const program = new Command();
 program
@@ -18,7 +19,7 @@ program
   .description('Latency compensation numbers for online matches: fit hit probability against latency, balance lobbies, audit rule sets.')
   .version('0.1.0')
   .exitOverride()
-  .configureOutput({ writeErr: (text) => process.stderr.write(text) })
+  .configureOutput({ writeErr: (text) => process.stderr.write(escapeControlCharacters(text)), writeOut: (text) => process.stdout.write(escapeControlCharacters(text)) })
   .addHelpText('after', '\nExit codes: 0 success; 1 a check failed (audit, replay); 2 bad input.');
 
 // Options and help only: each command's action imports its run code (`X-run.ts`) when it runs,
@@ -39,7 +40,7 @@ try {
   if (cause instanceof CommanderError) {
     process.exitCode = cause.exitCode === 0 ? 0 : EXIT_BAD_INPUT;
   } else {
-    process.stderr.write(`lagparity: internal error: ${(cause as Error).message}\n`);
+    process.stderr.write(escapeControlCharacters(`lagparity: internal error: ${(cause as Error).message}\n`));
     process.exitCode = EXIT_BAD_INPUT;
   }
 }

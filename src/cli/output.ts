@@ -1,5 +1,6 @@
 /** Where the CLI's words go: results to stdout, issues and warnings to stderr. */
 import { type Issue, formatIssue } from '../issues.js';
+import { escapeControlCharacters } from '../formats/control-characters.js';
 
 export const EXIT_OK = 0;
 export const EXIT_FAILED_CHECK = 1;
@@ -11,11 +12,13 @@ export function useColour(stream: NodeJS.WriteStream): boolean {
 }
 
 export function reportIssues(issues: readonly Issue[]): void {
-  for (const issue of issues) process.stderr.write(`${formatIssue(issue)}\n`);
+  for (const issue of issues) process.stderr.write(`${escapeControlCharacters(formatIssue(issue))}\n`);
 }
 
+/** Results to stdout, control characters from the input escaped (formats/control-characters.ts). */
 export function writeOut(text: string): void {
-  process.stdout.write(text.endsWith('\n') ? text : `${text}\n`);
+  const safe = escapeControlCharacters(text);
+  process.stdout.write(safe.endsWith('\n') ? safe : `${safe}\n`);
 }
 
 /** Round for display; JSON output keeps full precision. */

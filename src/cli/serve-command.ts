@@ -11,7 +11,7 @@ export function registerServe(program: Command): void {
     .option('--host <address>', 'address to listen on', '127.0.0.1')
     .option('--port <number>', 'port to listen on; 0 picks a free one', '8321')
     .option('--max-body-bytes <n>', 'largest request body (default and most: 16777216, the JSON file limit)')
-    .option('--max-players <n>', 'most players in a lobby, pool or candidate (default and most: 1024)')
+    .option('--max-players <n>', 'most players in a lobby, pool or candidate (default and most: 256)')
     .option('--max-samples <n>', 'most latency samples per player (default and most: 4096)')
     .option('--max-candidates <n>', 'most candidate lobbies in one /v1/rank request (default and most: 10000)')
     .option('--request-timeout-ms <n>', 'longest time to receive a whole request (default 10000)')

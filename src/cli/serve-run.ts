@@ -4,6 +4,7 @@ import { DEFAULT_LIMITS, type ServiceLimits } from '../service/request-bodies.js
 import { serve } from '../service/serve.js';
 import { loadModel, loadRules } from './inputs.js';
 import { EXIT_BAD_INPUT, EXIT_OK, reportIssues } from './output.js';
+import { escapeControlCharacters } from '../formats/control-characters.js';
 
 export interface ServeCommandOptions {
   model: string;
@@ -55,7 +56,7 @@ export async function runServe(options: ServeCommandOptions): Promise<number> {
     reportIssues([error('cannot_listen', `${options.host}:${port}`, `the service requires an address and port it can listen on, got ${reason}`)]);
     return EXIT_BAD_INPUT;
   }
-  process.stderr.write(`lagparity serve: listening on ${started.url} (model ${options.model})\n`);
+  process.stderr.write(escapeControlCharacters(`lagparity serve: listening on ${started.url} (model ${options.model})\n`));
   await new Promise<void>((resolve) => {
     const wait = () => {
       process.off('SIGTERM', wait);

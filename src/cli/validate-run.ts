@@ -2,6 +2,7 @@
 import { basename, extname } from 'node:path';
 import { type Issue, error, show } from '../issues.js';
 import { readJsonFile } from '../io/read-json.js';
+import { withLines } from '../io/issue-lines.js';
 import { readTrialsFile } from '../io/read-trials.js';
 import { safeParseLobby, safeParseServerLobby } from '../formats/lobby.js';
 import { compileModel } from '../model/compile.js';
@@ -32,7 +33,7 @@ export async function validateFile(path: string, forced: Kind | undefined): Prom
     const known = Object.keys(TAGS).map((name) => show(name)).join(', ');
     return { path, kind: null, valid: false, warnings: [], issues: [error('unknown_format', `${read.file}:format`, `\`format\` requires one of ${known} (or a .csv trials file), got ${show(tag)}`)] };
   }
-  const parsed =
+  const checked =
     detected === 'lobby'
       ? safeParseLobby(read.value, read.file)
       : detected === 'lobby-servers'
@@ -40,7 +41,10 @@ export async function validateFile(path: string, forced: Kind | undefined): Prom
         : detected === 'model'
           ? compileModel(read.value, read.file)
           : compileRules(read.value, read.file);
-  return parsed.ok ? { path, kind: detected, valid: true, issues: [], warnings: parsed.warnings } : { path, kind: detected, valid: false, issues: parsed.issues, warnings: [] };
+  const text = read.text ?? '';
+  return checked.ok
+    ? { path, kind: detected, valid: true, issues: [], warnings: withLines(checked.warnings, text, read.file) }
+    : { path, kind: detected, valid: false, issues: withLines(checked.issues, text, read.file), warnings: [] };
 }
 
 export interface ValidateOptions {

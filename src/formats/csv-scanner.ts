@@ -6,6 +6,7 @@
  * columns can also claim whole plain lines itself ({@link PlainLineReader}),
  * skipping the field ranges; any line it does not claim gets the full rules.
  */
+import { foreignEncoding, foreignEncodingMessage } from './text-encoding.js';
 import { type Issue, error } from '../issues.js';
 
 /** Documented limit: one line at most 64 KiB. */
@@ -149,6 +150,12 @@ export class CsvScanner {
         return;
       }
       this.first = false;
+      const encoding = foreignEncoding(bytes);
+      if (encoding !== null) {
+        this.failure = error('wrong_encoding', this.file, foreignEncodingMessage(encoding));
+        this.stopped = true;
+        return;
+      }
       if (bytes[0] === 0xef && bytes[1] === 0xbb && bytes[2] === 0xbf) position = 3;
     }
     const length = bytes.length;

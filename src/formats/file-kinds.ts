@@ -3,6 +3,7 @@
  * the JSON ones: the formats' own list, which the CLI's `validate` command
  * (its help and its run code alike) takes from here.
  */
+import { type Issue, at, error } from '../issues.js';
 import { LOBBY_FORMAT } from './lobby-types.js';
 import { MODEL_FORMAT } from './model-format.js';
 import { RULES_FORMAT } from './rules-types.js';
@@ -18,3 +19,29 @@ export const KIND_OF_TAG: Readonly<Record<string, FileKind>> = {
   [MODEL_FORMAT]: 'model',
   [RULES_FORMAT]: 'rules',
 };
+
+const KIND_NAMES: Readonly<Record<FileKind, string>> = {
+  trials: 'a trials file',
+  lobby: 'a lobby',
+  'lobby-servers': 'a server-choice lobby',
+  model: 'a model',
+  rules: 'a rules file',
+};
+
+/**
+ * One issue when `input` is a document of another known kind (a rules file
+ * given as the model): its `format` tag says so, and listing every field it
+ * lacks would bury that. Null otherwise, when the document's own checks speak.
+ */
+export function wrongKind(input: unknown, expected: FileKind, file: string | undefined): Issue | null {
+  if (input === null || typeof input !== 'object' || Array.isArray(input)) return null;
+  let tag: unknown;
+  try {
+    tag = (input as { format?: unknown }).format;
+  } catch {
+    return null;
+  }
+  const kind = typeof tag === 'string' ? KIND_OF_TAG[tag] : undefined;
+  if (kind === undefined || kind === expected) return null;
+  return error('wrong_kind', at(file, 'format'), `this input requires ${KIND_NAMES[expected]}, got ${KIND_NAMES[kind]} (its \`format\` is ${JSON.stringify(tag)}): check which file goes where`);
+}

@@ -1,16 +1,19 @@
 /**
  * Reading JSON that came from another hand: size-limited, with a line and
- * column on a syntax error, and with the keys that can reach an object's
- * prototype (`__proto__`, `constructor`, `prototype`) refused wherever they
- * appear, so no crafted file can change how the rest of the program behaves.
+ * column on a syntax error, UTF-16 recognised, and the structure checked
+ * (json-structure.ts): nesting at most MAX_JSON_DEPTH deep, no key twice in
+ * an object, and no key that can reach an object's prototype (`__proto__`,
+ * `constructor`, `prototype`), so no crafted file can change how the rest of
+ * the program behaves or be read two ways.
  */
 import { printParseErrorCode, visit } from 'jsonc-parser';
 import { type Issue, type Result, at, error, fail, ok, show } from '../issues.js';
+import { MAX_JSON_DEPTH, firstTooDeep, scanJsonStructure } from './json-structure.js';
+
+export { MAX_JSON_DEPTH };
 
 /** Documented limit on one JSON input (a lobby, a model, a rules file): 16 MiB. */
 export const MAX_JSON_BYTES = 16 * 1024 * 1024;
-
-const FORBIDDEN_KEYS = new Set(['__proto__', 'constructor', 'prototype']);
 
 /** Line and column (1-based) of a character offset in `text`. */
 export function lineAndColumn(text: string, offset: number): { line: number; column: number } {
@@ -36,36 +39,6 @@ export function formatPath(path: readonly PropertyKey[]): string {
   return text;
 }
 
-function findForbiddenKey(value: unknown, path: (string | number)[]): Issue | undefined {
-  if (Array.isArray(value)) {
-    for (let index = 0; index < value.length; index += 1) {
-      path.push(index);
-      const found = findForbiddenKey(value[index], path);
-      path.pop();
-      if (found) return found;
-    }
-    return undefined;
-  }
-  if (value !== null && typeof value === 'object') {
-    for (const key of Object.keys(value)) {
-      path.push(key);
-      if (FORBIDDEN_KEYS.has(key)) {
-        const issue = error(
-          'forbidden_key',
-          formatPath(path),
-          `keys named \`__proto__\`, \`constructor\` or \`prototype\` are refused, got ${show(key)}`,
-        );
-        path.pop();
-        return issue;
-      }
-      const found = findForbiddenKey((value as Record<string, unknown>)[key], path);
-      path.pop();
-      if (found) return found;
-    }
-  }
-  return undefined;
-}
-
 /**
  * `line:column` (1-based) of the first syntax error, located by the
  * jsonc-parser scanner in strict mode (no comments, no trailing commas), since
@@ -87,6 +60,20 @@ function syntaxErrorPlace(text: string): { place: string; reason: string } {
   return { place: `${end.line}:${end.column}`, reason: 'UnexpectedEndOfInput' };
 }
 
+function tooDeep(text: string, file: string, offset: number): Issue {
+  const { line, column } = lineAndColumn(text, offset);
+  return error('too_deep', `${file}:${line}:${column}`, `a JSON document requires arrays and objects nested at most ${MAX_JSON_DEPTH} deep (the documented limit), got deeper`);
+}
+
+/** Whether the text at `line:column` starts a comment (`//` or `/*`). */
+function startsComment(text: string, place: string): boolean {
+  const [line, column] = place.split(':').map(Number) as [number, number];
+  let offset = 0;
+  for (let current = 1; current < line; current += 1) offset = text.indexOf('\n', offset) + 1;
+  const at = offset + column - 1;
+  return text[at] === '/' && (text[at + 1] === '/' || text[at + 1] === '*');
+}
+
 /**
  * Parse JSON text. `file` names the source in every issue (`lobby.json:3:14`).
  * Refuses empty input, input above `maxBytes`, syntax errors (with line and
@@ -101,18 +88,32 @@ export function parseJsonText(text: string, file: string, maxBytes: number = MAX
   if (body.trim() === '') {
     return fail([error('empty_file', file, 'a JSON document requires some content, got an empty file')]);
   }
+  // Text decoded from UTF-16 as if it were UTF-8 is full of NUL bytes; JSON allows none, even in strings.
+  if (body.includes('\u0000')) {
+    return fail([error('wrong_encoding', file, 'a JSON document requires UTF-8 text, got NUL bytes (as UTF-16 text has): save the file as UTF-8')]);
+  }
   let value: unknown;
   try {
     value = JSON.parse(body);
   } catch (cause) {
+    const deep = firstTooDeep(body);
+    if (deep >= 0) return fail([tooDeep(body, file, deep)]);
     const message = cause instanceof Error ? cause.message : String(cause);
     const { place, reason } = syntaxErrorPlace(body);
+    if (reason === 'InvalidCommentToken' || /^\d+:\d+$/.test(place) && startsComment(body, place)) {
+      return fail([error('invalid_json', `${file}:${place}`, 'the file requires plain JSON, got a comment: JSON (RFC 8259) has no comments; remove it')]);
+    }
     return fail([error('invalid_json', `${file}:${place}`, `the file requires well-formed JSON (${reason}): ${message}`)]);
   }
-  // A key can spell a forbidden name only literally or through a \u escape:
-  // without either in the text, the walk over the whole document is skipped.
-  const mayHoldForbiddenKey = /__proto__|constructor|prototype|\\u/.test(body);
-  const forbidden = mayHoldForbiddenKey ? findForbiddenKey(value, []) : undefined;
-  if (forbidden) return fail([{ ...forbidden, location: at(file, forbidden.location) }]);
+  const problem = scanJsonStructure(body);
+  if (problem !== null) {
+    const { line, column } = lineAndColumn(body, problem.offset);
+    if (problem.code === 'too_deep') return fail([tooDeep(body, file, problem.offset)]);
+    const field = problem.path === '' ? 'the document' : `\`${problem.path}\``;
+    if (problem.code === 'duplicate_key') {
+      return fail([error('duplicate_key', at(file, problem.path), `${field} requires each key once in an object (RFC 8259 section 4; RFC 7493 section 2.3), got ${show(problem.key)} again at line ${line}, column ${column}`)]);
+    }
+    return fail([error('forbidden_key', at(file, problem.path), `keys named \`__proto__\`, \`constructor\` or \`prototype\` are refused, got ${show(problem.key)} at line ${line}, column ${column}`)]);
+  }
   return ok(value);
 }

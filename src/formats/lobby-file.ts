@@ -5,10 +5,10 @@
 import { z } from 'zod';
 import { MAX_LATENCY_MS } from './limits.js';
 import type * as types from './lobby-types.js';
-import { LOBBY_FORMAT, MAX_LATENCY_SAMPLES, MAX_PLAYERS } from './lobby-types.js';
+import { LOBBY_FORMAT, MAX_LATENCY_SAMPLES, MAX_LOBBY_SAMPLES, MAX_PLAYERS } from './lobby-types.js';
 import type { Assert, Same } from '../type-equality.js';
 
-export { LOBBY_FORMAT, MAX_LATENCY_SAMPLES, MAX_PLAYERS };
+export { LOBBY_FORMAT, MAX_LATENCY_SAMPLES, MAX_LOBBY_SAMPLES, MAX_PLAYERS };
 /** A latency above this (one minute) is not a network latency but a broken measurement. */
 export { MAX_LATENCY_MS } from './limits.js';
 
@@ -64,16 +64,26 @@ export const playersOf = <T extends z.ZodType>(player: T) =>
     .min(1, { error: 'at least one player' })
     .max(MAX_PLAYERS, { error: `at most ${MAX_PLAYERS} players (the documented lobby limit)` });
 
+/** The lobby-wide limit on latency values (MAX_LOBBY_SAMPLES), checked once the players are valid. */
+export function tooManyValues(latencies: readonly (number | readonly number[])[], context: z.RefinementCtx, path: (string | number)[], what = 'a lobby'): void {
+  let total = 0;
+  for (const latency of latencies) total += typeof latency === 'number' ? 1 : latency.length;
+  if (total > MAX_LOBBY_SAMPLES) {
+    context.addIssue({ code: 'custom', path, message: `${what} with at most ${MAX_LOBBY_SAMPLES} latency values in all (the documented limit; a point latency counts one)`, params: { code: 'too_many_samples', got: total } });
+  }
+}
+
 export const playerSchema = z.object({ ...playerIdentity, latency_ms: latencySchema }).strict();
 
 export const lobbyFileSchema = z
   .object({
-    format: z.literal(LOBBY_FORMAT, { error: `the format tag "${LOBBY_FORMAT}"` }),
+    format: z.literal(LOBBY_FORMAT, { error: `the format tag "${LOBBY_FORMAT}" (a string)` }),
     ...matchFields,
     players: playersOf(playerSchema),
   })
   .strict()
   .superRefine((lobby, context) => {
+    tooManyValues(lobby.players.map((player) => player.latency_ms), context, ['players']);
     const seen = new Map<string, number>();
     lobby.players.forEach((player, index) => {
       const first = seen.get(player.id);

@@ -7,10 +7,24 @@ export { MAX_LATENCY_MS } from './limits.js';
 
 export const LOBBY_FORMAT = 'lagparity/lobby@1';
 
-/** Documented limits: a lobby holds at most this many players ... */
-export const MAX_PLAYERS = 1024;
-/** ... and one player at most this many latency samples. */
+/**
+ * Documented limits: a lobby holds at most this many players (a battle royale
+ * of 100-150 fits; every command answers within a few seconds at the limits,
+ * `npm run bench:limits`) ...
+ */
+export const MAX_PLAYERS = 256;
+/** ... one player at most this many latency samples ... */
 export const MAX_LATENCY_SAMPLES = 4096;
+/**
+ * ... and the whole lobby at most this many latency values (a point latency
+ * counts one). The audit's exploit view solves the lobby twice per player; with
+ * pooled samples (`all_samples`) and a ratio limit or a budget each solve
+ * costs O(all samples), so the audit costs O(players x all samples): an
+ * audit with pooled samples, a ratio and a budget took 42 s at 1,024 players
+ * with 16 samples each and about 2 s at 256 with 64 (a busy machine).
+ * 16,384 is 100 players with 160 samples each.
+ */
+export const MAX_LOBBY_SAMPLES = 16_384;
 
 export interface LobbyPlayer {
   id: string;

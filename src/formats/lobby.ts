@@ -1,6 +1,7 @@
 /** Parsing a lobby (or a server-choice lobby): `safeParse*` returns issues, `parse*` throws them. */
-import { type Result, fail, ok, unwrap } from '../issues.js';
-import { fromZodIssues } from './zod-issues.js';
+import { type Result, ok, unwrap } from '../issues.js';
+import { markLobby, markServerLobby } from '../validated.js';
+import { parseDocument } from './parse-document.js';
 import { lobbyFileSchema } from './lobby-file.js';
 import type { LobbyFile } from './lobby-types.js';
 import { serverLobbyFileSchema } from './server-lobby-file.js';
@@ -12,9 +13,7 @@ export type ValidLobby = LobbyFile & { readonly [lobbyBrand]: true };
 
 /** Validate a lobby document (already parsed from JSON). `file` names the source in issues. */
 export function safeParseLobby(input: unknown, file?: string): Result<ValidLobby> {
-  const parsed = lobbyFileSchema.safeParse(input);
-  if (!parsed.success) return fail(fromZodIssues(parsed.error.issues, input, file));
-  return ok(parsed.data as ValidLobby);
+  return parseDocument(input, file, 'lobby', lobbyFileSchema, (data) => ok(markLobby(data) as ValidLobby));
 }
 
 /** Like `safeParseLobby`, but throws a `LagparityInputError` carrying the issues. */
@@ -28,9 +27,7 @@ export type ValidServerLobby = ServerLobbyFile & { readonly [serverLobbyBrand]: 
 
 /** Validate a server-choice lobby (`lagparity/lobby-servers@1`, already parsed from JSON). `file` names the source in issues. */
 export function safeParseServerLobby(input: unknown, file?: string): Result<ValidServerLobby> {
-  const parsed = serverLobbyFileSchema.safeParse(input);
-  if (!parsed.success) return fail(fromZodIssues(parsed.error.issues, input, file));
-  return ok(parsed.data as ValidServerLobby);
+  return parseDocument(input, file, 'lobby-servers', serverLobbyFileSchema, (data) => ok(markServerLobby(data) as ValidServerLobby));
 }
 
 /** Like `safeParseServerLobby`, but throws a `LagparityInputError` carrying the issues. */

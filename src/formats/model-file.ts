@@ -5,6 +5,7 @@
  * provenance of the data) in one document.
  */
 import { z } from 'zod';
+import { finiteNumber } from './finite-number.js';
 import { TERM_NAMES } from '../model/terms.js';
 
 import { MODEL_FORMAT } from './model-format.js';
@@ -13,7 +14,7 @@ import type { Assert, Same } from '../type-equality.js';
 
 export { MODEL_FORMAT };
 
-const finite = z.number({ error: 'a finite number' });
+const finite = finiteNumber();
 
 const range = z
   .object({ min: finite, max: finite })
@@ -35,7 +36,7 @@ export const difficultyCodingSchema = z.discriminatedUnion('kind', [
 
 export const modelFileSchema = z
   .object({
-    format: z.literal(MODEL_FORMAT, { error: `the format tag "${MODEL_FORMAT}"` }),
+    format: z.literal(MODEL_FORMAT, { error: `the format tag "${MODEL_FORMAT}" (a string)` }),
     label: z.string().max(500).optional().describe('Free text: what this model is, e.g. "fit of the demo playtest".'),
     family: z.literal('binomial').describe('The response family. Hit probability models are binomial.'),
     link: z.enum(['logit', 'probit', 'cloglog']),

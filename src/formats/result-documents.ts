@@ -7,6 +7,7 @@
  * candidate lobbies (`POST /v1/rank`).
  */
 import type { CompiledModel } from '../model/compile.js';
+import { escapeControlCharacters } from './control-characters.js';
 import type { CompiledRules } from '../solver/rules.js';
 import type { LobbyFile } from './lobby-types.js';
 import type { ServerLobbyFile } from './server-lobby-types.js';
@@ -37,7 +38,11 @@ export function rankingDocument(pool: LobbyFile, candidates: readonly (readonly 
   return { format: LOBBY_RANKING_FORMAT, match_id: pool.match_id, ...rankLobbies(pool, candidates, model, rules, { views: { ordering: true } }) };
 }
 
-/** A document as the command line prints it: two-space indentation and a final newline. */
+/**
+ * A document as the command line prints it: two-space indentation, a final
+ * newline, and the characters a terminal would obey written as JSON escapes
+ * (the same strings, control-characters.ts).
+ */
 export function documentText(document: unknown): string {
-  return `${JSON.stringify(document, null, 2)}\n`;
+  return escapeControlCharacters(`${JSON.stringify(document, null, 2)}\n`);
 }

@@ -4,22 +4,24 @@
  * is a complete rules file.
  */
 import { z } from 'zod';
+import { finiteNumber } from './finite-number.js';
 import type * as types from './rules-types.js';
 import { RULES_FORMAT } from './rules-types.js';
+import { MAX_LATENCY_MS } from './limits.js';
 import type { Assert, Same } from '../type-equality.js';
 
 export { RULES_FORMAT };
 
-const positive = z.number({ error: 'a finite number' }).positive({ error: 'a number above 0' });
+const positive = finiteNumber().positive({ error: 'a number above 0' });
 
 export const rulesFileSchema = z
   .object({
-    format: z.literal(RULES_FORMAT, { error: `the format tag "${RULES_FORMAT}"` }),
+    format: z.literal(RULES_FORMAT, { error: `the format tag "${RULES_FORMAT}" (a string)` }),
     scale_floor: positive.default(1).describe('Smallest scale a player may get. 1 (default): nobody is made worse off than unscaled.'),
     scale_cap: positive.default(1.5).describe('Largest scale a player may get.'),
     max_scale_ratio: positive.nullable().default(null).describe('Largest allowed ratio between the largest and smallest scale in a lobby; null: no limit.'),
     latency_limit_ms: positive.nullable().default(null).describe('Players whose latency estimate is above this are ineligible (reported, never scaled); null: no limit.'),
-    accepted_gap: z.number({ error: 'a finite number' }).gt(0, { error: 'a probability above 0 (0 would fail every lobby on rounding alone)' }).max(1).default(0.02).describe('Largest residual gap in hit probability to the target an organiser accepts.'),
+    accepted_gap: finiteNumber().gt(0, { error: 'a probability above 0 (0 would fail every lobby on rounding alone)' }).max(1, { error: 'a probability above 0 and at most 1' }).default(0.02).describe('Largest residual gap in hit probability to the target an organiser accepts.'),
     quantisation_step: positive.nullable().default(null).describe('Scales are rounded to multiples of this step (for engines with discrete scales); null: continuous.'),
     soft_cap: z
       .object({
@@ -30,11 +32,11 @@ export const rulesFileSchema = z
       .nullable()
       .default(null)
       .describe('Soft cap: a desired scale d above `above` is granted as above + fraction (d - above), then at most `scale_cap`.'),
-    assistance_budget: z.number({ error: 'a finite number' }).min(0, { error: 'a number >= 0' }).nullable().default(null).describe('Largest sum over the lobby of (scale - 1) for scales above 1; null: no budget.'),
+    assistance_budget: finiteNumber().min(0, { error: 'a number >= 0' }).nullable().default(null).describe('Largest sum over the lobby of (scale - 1) for scales above 1; null: no budget.'),
     target: z
       .discriminatedUnion('kind', [
         z.object({ kind: z.literal('best_connected') }).strict(),
-        z.object({ kind: z.literal('reference_latency'), latency_ms: z.number({ error: 'a finite number' }).min(0, { error: 'a latency >= 0' }) }).strict(),
+        z.object({ kind: z.literal('reference_latency'), latency_ms: finiteNumber().min(0, { error: `a latency in milliseconds between 0 and ${MAX_LATENCY_MS}` }).max(MAX_LATENCY_MS, { error: `a latency in milliseconds between 0 and ${MAX_LATENCY_MS}` }) }).strict(),
         z.object({ kind: z.literal('fixed'), probability: z.number().gt(0, { error: 'a probability strictly between 0 and 1' }).lt(1, { error: 'a probability strictly between 0 and 1' }) }).strict(),
       ])
       .default({ kind: 'best_connected' })
@@ -50,13 +52,13 @@ export const rulesFileSchema = z
       })
       .strict()
       .default({ hits_to_win: 3, volleys: 'simultaneous' }),
-    accepted_duel_deviation: z.number().gt(0, { error: 'a probability above 0 (0 would fail every lobby on rounding alone)' }).max(0.5).default(0.05).describe('Largest accepted deviation from even odds (1/2) of a duel between opposing players of equal skill, after compensation.'),
-    accepted_team_gap: z.number().gt(0, { error: 'a probability above 0 (0 would fail every lobby on rounding alone)' }).max(1).default(0.02).describe('Largest accepted gap between team means of expected hit probability, after compensation.'),
-    accepted_exploit_gain: z.number().gt(0, { error: 'a probability above 0 (0 would fail every lobby on rounding alone)' }).max(1).default(0.01).describe('Largest accepted gain in expected hit probability a player could get from latency spikes (the exploit view).'),
+    accepted_duel_deviation: z.number().gt(0, { error: 'a probability above 0 (0 would fail every lobby on rounding alone)' }).max(0.5, { error: 'a probability above 0 and at most 0.5 (the largest deviation from even odds)' }).default(0.05).describe('Largest accepted deviation from even odds (1/2) of a duel between opposing players of equal skill, after compensation.'),
+    accepted_team_gap: z.number().gt(0, { error: 'a probability above 0 (0 would fail every lobby on rounding alone)' }).max(1, { error: 'a probability above 0 and at most 1' }).default(0.02).describe('Largest accepted gap between team means of expected hit probability, after compensation.'),
+    accepted_exploit_gain: z.number().gt(0, { error: 'a probability above 0 (0 would fail every lobby on rounding alone)' }).max(1, { error: 'a probability above 0 and at most 1' }).default(0.01).describe('Largest accepted gain in expected hit probability a player could get from latency spikes (the exploit view).'),
     accepted_step_gain: z
       .number()
       .gt(0, { error: 'a probability above 0 (0 would fail every lobby with a step on rounding alone)' })
-      .max(1)
+      .max(1, { error: 'a probability above 0 and at most 1' })
       .default(0.02)
       .describe("Largest accepted change one quantisation step makes to a player's expected hit probability at their scale: how far a worse-connected player may end above a better-connected one, and the most a player gains from a measured latency just high enough to move them one step up. Judged only with a `quantisation_step`."),
     spike_fraction: z.number().gt(0, { error: 'a fraction in (0, 1]' }).max(1, { error: 'a fraction in (0, 1]' }).default(0.25).describe('Share of a player\'s samples the exploit view makes read at the latency limit.'),

@@ -5,7 +5,7 @@
  * listed server, and only to those.
  */
 import { z } from 'zod';
-import { latencySchema, matchFields, playerIdentity, playersOf } from './lobby-file.js';
+import { latencySchema, matchFields, playerIdentity, playersOf, tooManyValues } from './lobby-file.js';
 import type * as types from './server-lobby-types.js';
 import { MAX_SERVERS, SERVER_LOBBY_FORMAT } from './server-lobby-types.js';
 import type { Assert, Same } from '../type-equality.js';
@@ -21,7 +21,7 @@ const serverPlayerSchema = z
 
 export const serverLobbyFileSchema = z
   .object({
-    format: z.literal(SERVER_LOBBY_FORMAT, { error: `the format tag "${SERVER_LOBBY_FORMAT}"` }),
+    format: z.literal(SERVER_LOBBY_FORMAT, { error: `the format tag "${SERVER_LOBBY_FORMAT}" (a string)` }),
     ...matchFields,
     servers: z
       .array(z.string().min(1).max(128))
@@ -36,6 +36,7 @@ export const serverLobbyFileSchema = z
     lobby.servers.forEach((server, index) => {
       if (servers.has(server)) context.addIssue({ code: 'custom', path: ['servers', index], message: 'a server id listed once', params: { code: 'duplicate_server' } });
       servers.add(server);
+      tooManyValues(lobby.players.flatMap((player) => (Object.hasOwn(player.latency_ms, server) ? [player.latency_ms[server] as number | number[]] : [])), context, ['players'], `the lobby on each server (${JSON.stringify(server)} here)`);
     });
     const seen = new Map<string, number>();
     lobby.players.forEach((player, index) => {

@@ -4,9 +4,10 @@
  * the two agree).
  */
 import { z } from 'zod';
+import { finiteNumber } from './finite-number.js';
 import { MAX_LATENCY_MS } from './limits.js';
 
-const finite = z.number({ error: 'a finite number' });
+const finite = finiteNumber();
 
 /** One row of a trials file, after its fields are read as numbers (for docs and JSON Schema). */
 export const trialRowSchema = z

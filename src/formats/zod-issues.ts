@@ -2,6 +2,7 @@
 import type { z } from 'zod';
 import { type Issue, at, error, show } from '../issues.js';
 import { formatPath } from './json-input.js';
+import { closestFieldName } from './field-names.js';
 
 function valueAt(input: unknown, path: readonly PropertyKey[]): unknown {
   let current: unknown = input;
@@ -72,14 +73,20 @@ function expandUnions(issues: readonly z.core.$ZodIssue[]): z.core.$ZodIssue[] {
 
 /** Map zod issues on `input` (parsed from `file`) to project issues. */
 export function fromZodIssues(issues: readonly z.core.$ZodIssue[], input: unknown, file: string | undefined): Issue[] {
-  return expandUnions(issues).map((issue) => {
+  return expandUnions(issues).flatMap((issue) => {
     const path = formatPath(issue.path);
     const field = path === '' ? 'the document' : `\`${path}\``;
     if (issue.code === 'unrecognized_keys') {
-      return error('unknown_field', at(file, path), `${field} requires only its documented fields, got ${issue.keys.map((key) => show(key)).join(', ')}`);
+      // One issue per unknown field, at the field itself, with the closest known name.
+      return issue.keys.slice(0, 20).map((key) => {
+        const suggestion = closestFieldName(key);
+        return error('unknown_field', at(file, formatPath([...issue.path, key])), `${field} requires only its documented fields, got ${show(key)}${suggestion === null ? '' : ` (did you mean "${suggestion}"?)`}`);
+      });
     }
     const expected = ZOD_DEFAULT_WORDING.test(issue.message) ? describeExpected(issue) : issue.message;
-    const got = valueAt(input, issue.path);
+    // A check across fields may say what it counted (params.got) instead of the value at its path.
+    const counted = issue.code === 'custom' ? (issue as { params?: { got?: unknown } }).params?.got : undefined;
+    const got = counted !== undefined ? counted : valueAt(input, issue.path);
     return error(codeFor(issue, got), at(file, path), `${field} requires ${expected}, got ${show(got)}`);
   });
 }

@@ -4,8 +4,10 @@ import { basename } from 'node:path';
 import type { Readable } from 'node:stream';
 import { type Result, error, fail, ok } from '../issues.js';
 import { MAX_JSON_BYTES, parseJsonText } from '../formats/json-input.js';
+import { withLines } from './issue-lines.js';
+import { type ForeignEncoding, foreignEncoding, foreignEncodingMessage } from '../formats/text-encoding.js';
 
-async function readLimited(stream: Readable, maxBytes: number): Promise<{ text: string } | { tooLarge: number }> {
+async function readLimited(stream: Readable, maxBytes: number): Promise<{ text: string } | { tooLarge: number } | { encoding: ForeignEncoding }> {
   const chunks: Buffer[] = [];
   let total = 0;
   for await (const chunk of stream) {
@@ -17,7 +19,9 @@ async function readLimited(stream: Readable, maxBytes: number): Promise<{ text: 
     }
     chunks.push(buffer);
   }
-  return { text: Buffer.concat(chunks).toString('utf8') };
+  const bytes = Buffer.concat(chunks);
+  const encoding = foreignEncoding(bytes);
+  return encoding === null ? { text: bytes.toString('utf8') } : { encoding };
 }
 
 /**
@@ -26,7 +30,7 @@ async function readLimited(stream: Readable, maxBytes: number): Promise<{ text: 
  */
 export async function readTextFile(path: string, maxBytes: number, kind = 'the input'): Promise<Result<string> & { file: string }> {
   const file = path === '-' ? 'stdin' : basename(path);
-  let read: { text: string } | { tooLarge: number };
+  let read: Awaited<ReturnType<typeof readLimited>>;
   try {
     read = await readLimited(path === '-' ? process.stdin : createReadStream(path), maxBytes);
   } catch (cause) {
@@ -37,6 +41,7 @@ export async function readTextFile(path: string, maxBytes: number, kind = 'the i
   if ('tooLarge' in read) {
     return { ...fail([error('too_large', file, `${kind} requires at most ${maxBytes} bytes (the documented limit), got more than that`)]), file };
   }
+  if ('encoding' in read) return { ...fail([error('wrong_encoding', file, foreignEncodingMessage(read.encoding))]), file };
   return { ...ok(read.text), file };
 }
 
@@ -44,8 +49,22 @@ export async function readTextFile(path: string, maxBytes: number, kind = 'the i
  * Read and parse a JSON file (`-` reads standard input). Issues name the file
  * by its base name, or `stdin`.
  */
-export async function readJsonFile(path: string, maxBytes: number = MAX_JSON_BYTES): Promise<Result<unknown> & { file: string }> {
+export async function readJsonFile(path: string, maxBytes: number = MAX_JSON_BYTES): Promise<Result<unknown> & { file: string; text?: string }> {
   const read = await readTextFile(path, maxBytes, 'a JSON input');
   if (!read.ok) return read;
-  return { ...parseJsonText(read.value, read.file, maxBytes), file: read.file };
+  return { ...parseJsonText(read.value, read.file, maxBytes), file: read.file, text: read.value };
+}
+
+/**
+ * Read a JSON file and check it with `check` (safeParseLobby, compileRules,
+ * ...): the issues and warnings of the check carry the line of the field
+ * they name (issue-lines.ts).
+ */
+export async function readJsonDocument<T>(path: string, check: (value: unknown, file: string) => Result<T>): Promise<Result<T> & { file: string }> {
+  const read = await readJsonFile(path);
+  if (!read.ok) return read;
+  const checked = check(read.value, read.file);
+  const text = read.text ?? '';
+  if (!checked.ok) return { ...fail(withLines(checked.issues, text, read.file)), file: read.file };
+  return { ...ok(checked.value, withLines(checked.warnings, text, read.file)), file: read.file };
 }

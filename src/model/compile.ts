@@ -4,9 +4,9 @@
  * covariance, precompute what every prediction needs, and hand back a
  * branded object the solver trusts without checking again.
  */
-import { type Result, fail } from '../issues.js';
+import { parseDocument } from '../formats/parse-document.js';
+import type { Result } from '../issues.js';
 import { modelFileSchema } from '../formats/model-file.js';
-import { fromZodIssues } from '../formats/zod-issues.js';
 import { type CompiledModel, compileModelFile } from './compiled-model.js';
 
 export { type CompiledModel, compileModelFile } from './compiled-model.js';
@@ -17,7 +17,5 @@ export { type PredictorLine, predictorLine } from './predictor-line.js';
  * `file` names the source in issues.
  */
 export function compileModel(input: unknown, file?: string): Result<CompiledModel> {
-  const parsed = modelFileSchema.safeParse(input);
-  if (!parsed.success) return fail(fromZodIssues(parsed.error.issues, input, file));
-  return compileModelFile(parsed.data, file);
+  return parseDocument(input, file, 'model', modelFileSchema, (data) => compileModelFile(data, file));
 }

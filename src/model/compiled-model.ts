@@ -13,6 +13,7 @@
  * with h(s) = log s or s. `lineAt(difficulty)` returns those four numbers;
  * the solver works from them alone.
  */
+import { markModel } from '../validated.js';
 import { type Issue, type Result, at, error, fail, ok, show } from '../issues.js';
 import type { ModelFile } from '../formats/model-types.js';
 import { type Link, linkFor } from './links.js';
@@ -42,6 +43,16 @@ export interface CompiledModel {
 /** Relative tolerance for the covariance symmetry check. */
 const SYMMETRY_TOLERANCE = 1e-8;
 
+/**
+ * Bounds on a model's numbers. A fitted hit-probability model has
+ * coefficients of order 1 (a logit per ms of latency is about -0.01) and
+ * variances far below 1; a coefficient beyond 1e6 or a covariance entry
+ * beyond 1e100 is not a fit but a crafted file, and its products overflow to
+ * Infinity and NaN in predictions, intervals and the report.
+ */
+export const MAX_COEFFICIENT = 1e6;
+export const MAX_COVARIANCE = 1e100;
+
 function checkCoefficients(model: ModelFile, columns: readonly DesignColumn[], file: string | undefined): Issue[] {
   const issues: Issue[] = [];
   const expected = columns.map((column) => column.name);
@@ -52,6 +63,11 @@ function checkCoefficients(model: ModelFile, columns: readonly DesignColumn[], f
   if (estimates.length !== names.length) {
     issues.push(error('terms_mismatch', at(file, 'coefficients.estimates'), `\`coefficients.estimates\` requires one estimate per name (${names.length}), got ${estimates.length}`));
   }
+  const duplicate = names.findIndex((name, index) => names.indexOf(name) !== index);
+  if (duplicate >= 0) issues.push(error('duplicate_term', at(file, `coefficients.names[${duplicate}]`), `\`coefficients.names\` requires each name once, got ${show(names[duplicate])} again`));
+  estimates.forEach((estimate, index) => {
+    if (Math.abs(estimate) > MAX_COEFFICIENT) issues.push(error('out_of_range', at(file, `coefficients.estimates[${index}]`), `a coefficient requires a magnitude of at most ${MAX_COEFFICIENT} (a fitted model's are of order 1), got ${show(estimate)}`));
+  });
   const size = estimates.length;
   if (covariance.length !== size || covariance.some((row) => row.length !== size)) {
     issues.push(error('bad_covariance', at(file, 'coefficients.covariance'), `\`coefficients.covariance\` requires a ${size} x ${size} matrix, got ${covariance.length} rows of lengths ${show(covariance.map((row) => row.length).join(','))}`));
@@ -60,6 +76,12 @@ function checkCoefficients(model: ModelFile, columns: readonly DesignColumn[], f
   const flat = new Float64Array(size * size);
   for (let row = 0; row < size; row += 1) {
     for (let column = 0; column < size; column += 1) flat[row * size + column] = covariance[row]?.[column] ?? 0;
+  }
+  const huge = flat.findIndex((value) => Math.abs(value) > MAX_COVARIANCE);
+  if (huge >= 0) {
+    const row = Math.floor(huge / size);
+    issues.push(error('out_of_range', at(file, `coefficients.covariance[${row}][${huge - row * size}]`), `a covariance entry requires a magnitude of at most ${MAX_COVARIANCE}, got ${show(flat[huge])}`));
+    return issues;
   }
   for (let row = 0; row < size; row += 1) {
     for (let column = row + 1; column < size; column += 1) {
@@ -109,5 +131,5 @@ export function compileModelFile(model: ModelFile, file?: string): Result<Compil
       return predictorLine(columns, coefficients, coding, difficulty);
     },
   };
-  return ok(compiled as unknown as CompiledModel);
+  return ok(markModel(compiled) as unknown as CompiledModel);
 }

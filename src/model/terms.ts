@@ -90,6 +90,8 @@ export function parseTermList(text: string, where = '--terms'): Result<TermName[
 /** A term set must be non-empty and use one form of the scale. */
 export function checkTerms(terms: readonly TermName[], where: string): Result<readonly TermName[]> {
   if (terms.length === 0) return fail([error('no_terms', where, `\`${where}\` requires at least one term, got none`)]);
+  const repeated = terms.findIndex((term, index) => terms.indexOf(term) !== index);
+  if (repeated >= 0) return fail([error('duplicate_term', `${where}[${repeated}]`, `\`terms\` requires each term once, got ${show(terms[repeated])} again`)]);
   const raw = terms.some((term) => termFactors(term).scale && !term.includes('log_scale'));
   const log = terms.some((term) => term.includes('log_scale'));
   if (raw && log) {

@@ -1,10 +1,11 @@
 /** Small HTML helpers for the report: escaping, tables, numbers. */
+import { escapeControlCharacters } from '../formats/control-characters.js';
 
 const ENTITIES: Record<string, string> = { '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;', "'": '&#39;' };
 
-/** Escape text for HTML content and attribute values. */
+/** Escape text for HTML content and attribute values; invisible controls and reordering marks are shown as `\uXXXX`. */
 export function escapeHtml(text: string): string {
-  return text.replace(/[&<>"']/g, (character) => ENTITIES[character] ?? character);
+  return escapeControlCharacters(text).replace(/[&<>"']/g, (character) => ENTITIES[character] ?? character);
 }
 
 /** A number for people: fixed digits, no "-0.000", a dash for nothing. */

@@ -23,7 +23,7 @@ export function createMetrics(): ServiceMetrics {
       name: 'lagparity_http_request_duration_seconds',
       help: 'Time from receiving a request to sending its answer, by route.',
       labelNames: ['route'],
-      // A 10-player balance takes tens of microseconds; a 1,024-player audit with samples, seconds.
+      // A 10-player balance takes tens of microseconds; a 256-player audit with samples, seconds.
       buckets: [0.0001, 0.00025, 0.0005, 0.001, 0.0025, 0.005, 0.01, 0.025, 0.05, 0.1, 0.25, 0.5, 1, 2.5, 5],
       registers: [registry],
     }),

@@ -42,6 +42,9 @@
  * - Logging. Nothing is written to the console; `logger` (the usual
  *   `info/warn/error(object, message)` shape) receives structured events.
  */
+import { LagparityInputError, error, fail, show } from '../issues.js';
+import { compiledInputIssues } from '../solver/entry-checks.js';
+import { readSafely } from '../validated.js';
 import { type LobbyFile, MAX_PLAYERS } from '../formats/lobby-types.js';
 import type { CompiledModel } from '../model/compile.js';
 import type { CompiledRules } from '../solver/rules.js';
@@ -166,6 +169,13 @@ export class MatchSession {
     private readonly options: SessionOptions = {},
     at = 0,
   ) {
+    // The model, the rules and the match are data: wrong ones throw a LagparityInputError carrying issues.
+    const issues = compiledInputIssues(model, rules);
+    const line = issues.length === 0 ? readSafely(() => model.lineAt(match.difficulty), (message) => fail([error('invalid_match', 'match', `\`match\` requires { match_id, attribute, difficulty }, got a value that throws when read: ${message}`)])) : null;
+    if (line !== null && !line.ok) issues.push(...line.issues.map((issue) => ({ ...issue, location: `match.${issue.location}` })));
+    if (typeof match?.match_id !== 'string' || match.match_id === '') issues.push(error('invalid_match', 'match.match_id', `\`match.match_id\` requires a non-empty string, got ${show(match?.match_id)}`));
+    if (match?.attribute !== 'hit_area' && match?.attribute !== 'timing_window') issues.push(error('invalid_match', 'match.attribute', `\`match.attribute\` requires "hit_area" or "timing_window", got ${show(match?.attribute)}`));
+    if (issues.length > 0) throw new LagparityInputError(issues);
     this.alpha = options.alpha ?? 1 / 8;
     this.beta = options.beta ?? 1 / 4;
     this.deadband = options.deadband ?? 0.02;

@@ -8,6 +8,7 @@
  *
  * Read the log with `parseSessionLog` (session-log-file.ts) first.
  */
+import { isCompiledModel } from '../validated.js';
 import { type Result, error, fail, ok } from '../issues.js';
 import type { CompiledModel } from '../model/compile.js';
 import { compileRules } from '../solver/rules.js';
@@ -24,6 +25,8 @@ export interface ReplayReport {
 
 /** Replay a parsed log under `model` (the model the match ran with). */
 export function replaySession(events: readonly SessionEvent[], model: CompiledModel): Result<ReplayReport> {
+  if (!Array.isArray(events as unknown)) return fail([error('invalid_log', 'events', 'a replay requires the list of events parseSessionLog returns')]);
+  if (!isCompiledModel(model)) return fail([error('uncompiled_model', 'model', 'the replay requires the value compileModel() returns')]);
   const start = events[0];
   if (start === undefined || start.type !== 'start') return fail([error('invalid_log', 'events[0]', 'a session log requires a start event first, got none')]);
   if (modelFingerprint(model) !== start.model) {

@@ -5,6 +5,7 @@
  * from it; an issue names the line and the field.
  */
 import { z } from 'zod';
+import { finiteNumber } from '../formats/finite-number.js';
 import { type Issue, type Result, error, fail, ok } from '../issues.js';
 import { MAX_LATENCY_MS } from '../formats/limits.js';
 import { MAX_PLAYERS } from '../formats/lobby-types.js';
@@ -12,14 +13,14 @@ import { matchFields, playerIdentity } from '../formats/lobby-file.js';
 import { fromZodIssues } from '../formats/zod-issues.js';
 import { SESSION_FORMAT, type SessionEvent } from './match-session.js';
 
-const finite = z.number({ error: 'a finite number' });
+const finite = finiteNumber();
 const scaleMap = z.record(z.string(), finite.min(0, { error: 'a scale (a finite number >= 0)' }));
 const team = playerIdentity.team.unwrap().nullable();
 
 const startEvent = z
   .object({
     type: z.literal('start'),
-    format: z.literal(SESSION_FORMAT, { error: `the format tag "${SESSION_FORMAT}"` }),
+    format: z.literal(SESSION_FORMAT, { error: `the format tag "${SESSION_FORMAT}" (a string)` }),
     at: finite,
     match: z.object(matchFields).strict(),
     rules: z.record(z.string(), z.unknown()),

@@ -13,6 +13,7 @@
  * off by default: a matchmaker's hot path solves the scales and the summary
  * only.
  */
+import { checkBalanceOptions, compiledInputIssues, matchIdOf, parsedLobby } from './entry-checks.js';
 import { type Issue, show, warning } from '../issues.js';
 import type { LobbyFile } from '../formats/lobby-types.js';
 import type { CompiledModel } from '../model/compile.js';
@@ -165,9 +166,17 @@ function spread(values: readonly TeamFigures[], pick: (team: TeamFigures) => num
   return largest - smallest;
 }
 
-function trainingWarnings(lobby: LobbyFile, solved: LobbySolve, model: CompiledModel): Issue[] {
+function trainingWarnings(lobby: LobbyFile, solved: LobbySolve, model: CompiledModel, rules: CompiledRules): Issue[] {
   let warnings: Issue[] | null = null;
-  const { latency_ms: latencyRange, scale: scaleRange } = model.training;
+  const { latency_ms: latencyRange, scale: scaleRange, difficulty: difficultyRange } = model.training;
+  // A numeric difficulty and a reference latency are predictions' inputs too: outside the training range they extrapolate.
+  if (typeof lobby.difficulty === 'number' && !Array.isArray(difficultyRange) && (lobby.difficulty < difficultyRange.min || lobby.difficulty > difficultyRange.max)) {
+    (warnings ??= []).push(warning('outside_training_range', 'difficulty', `the difficulty ${show(lobby.difficulty)} is outside the model's training difficulties ${difficultyRange.min}-${difficultyRange.max}: every prediction is an extrapolation`));
+  }
+  const reference = rules.target.kind === 'reference_latency' ? rules.target.latency_ms : null;
+  if (reference !== null && (reference < latencyRange.min || reference > latencyRange.max)) {
+    (warnings ??= []).push(warning('outside_training_range', 'rules.target.latency_ms', `the target's reference latency ${show(reference)} ms is outside the model's training latencies ${latencyRange.min}-${latencyRange.max} ms: the target is an extrapolation`));
+  }
   const { solution, eligible, estimates } = solved;
   for (let slot = 0; slot < solution.count; slot += 1) {
     const index = eligible[slot] as number;
@@ -232,11 +241,23 @@ const sharedWorkspace = new SolveWorkspace();
  * ordering O(players log players), duel O(players^2), exploit
  * O(players^2 x samples), uncertainty O(draws x players x samples).
  *
+ * Inputs are checked at run time: a lobby that did not come from
+ * safeParseLobby is validated first (its issues make the result `rejected`);
+ * a model or rules that did not come from compileModel / compileRules give
+ * `rejected` with `uncompiled_model` / `uncompiled_rules`; options that are
+ * not as documented throw a RangeError or TypeError (a programming error).
+ *
  * @example
  *   const result = balanceLobby(lobby, model, rules);
  *   if (result.status !== 'rejected') for (const player of result.players) engine.setScale(player.id, player.scale);
  */
-export function balanceLobby(lobby: LobbyFile, model: CompiledModel, rules: CompiledRules, options: BalanceOptions = {}): BalanceResult {
+export function balanceLobby(input: LobbyFile, model: CompiledModel, rules: CompiledRules, options: BalanceOptions = {}): BalanceResult {
+  checkBalanceOptions(options);
+  const uncompiled = compiledInputIssues(model, rules);
+  if (uncompiled.length > 0) return { status: 'rejected', match_id: matchIdOf(input), issues: uncompiled, warnings: [] };
+  const parsed = parsedLobby(input);
+  if (!parsed.ok) return { status: 'rejected', match_id: matchIdOf(input), issues: parsed.issues, warnings: [] };
+  const lobby = parsed.value;
   const lineResult = model.lineAt(lobby.difficulty);
   if (!lineResult.ok) return { status: 'rejected', match_id: lobby.match_id, issues: lineResult.issues, warnings: [] };
   const solvedResult = solveLobby(lobby, model, lineResult.value, rules, sharedWorkspace);
@@ -281,7 +302,7 @@ export function balanceLobby(lobby: LobbyFile, model: CompiledModel, rules: Comp
     level: solution.level,
     players,
     summary,
-    warnings: trainingWarnings(lobby, solved, model),
+    warnings: trainingWarnings(lobby, solved, model, rules),
   };
   const asked = options.views;
   if (asked === undefined || !(asked.ordering || asked.duel || asked.exploit || asked.uncertainty)) return result;

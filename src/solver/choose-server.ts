@@ -13,6 +13,7 @@
  *
  * Cost: one lobby solve per server, plus the full balance of the chosen one.
  */
+import { checkBalanceOptions, compiledInputIssues, parsedServerLobby } from './entry-checks.js';
 import type { Issue } from '../issues.js';
 import type { LobbyFile } from '../formats/lobby-types.js';
 import type { ServerLobbyFile } from '../formats/server-lobby-types.js';
@@ -78,7 +79,14 @@ function decidedBy(first: CandidateFigures, second: CandidateFigures): string {
  *   const choice = chooseServer(lobby, model, rules);
  *   if (choice.status === 'chosen') startMatch(choice.server, choice.best);
  */
-export function chooseServer(lobby: ServerLobbyFile, model: CompiledModel, rules: CompiledRules, options: BalanceOptions = {}): ServerChoice {
+export function chooseServer(input: ServerLobbyFile, model: CompiledModel, rules: CompiledRules, options: BalanceOptions = {}): ServerChoice {
+  checkBalanceOptions(options);
+  const uncompiled = compiledInputIssues(model, rules);
+  const parsed = parsedServerLobby(input);
+  if (uncompiled.length > 0 || !parsed.ok) {
+    return { status: 'rejected', reason: 'the inputs are not what chooseServer requires', servers: [], issues: [...uncompiled, ...(parsed.ok ? [] : parsed.issues)] };
+  }
+  const lobby = parsed.value;
   const figures = lobby.servers.map((server, index) => ({ server, figures: candidateFigures(lobbyOnServer(lobby, server), index, model, rules) }));
   const ranked = [...figures].sort((left, right) => compareCandidates(left.figures, right.figures));
   const servers: ServerFigures[] = ranked.map(({ server, figures: { candidate: _candidate, ...rest } }) => ({ server, ...rest }));

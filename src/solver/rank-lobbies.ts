@@ -25,12 +25,13 @@
  * each candidate's gaps; `npm run bench:rank` measures player-evaluations per
  * second.
  */
+import { checkBalanceOptions, compiledInputIssues, parsedLobby } from './entry-checks.js';
 import { type Issue, error, show } from '../issues.js';
 import type { LobbyFile, LobbyPlayer } from '../formats/lobby-types.js';
 import type { CompiledModel } from '../model/compile.js';
 import type { CompiledRules } from './rules.js';
 import { type BalanceOptions, type BalanceResult, balanceLobby } from './balance-lobby.js';
-import { ineligiblePrediction, latencyEstimate, solveLobby } from './solve-lobby.js';
+import { ineligiblePrediction, solveLobby, withEstimate } from './solve-lobby.js';
 import { SolveWorkspace, unitSums } from './workspace.js';
 
 export interface CandidateFigures {
@@ -94,19 +95,28 @@ export function compareCandidates(left: CandidateFigures, right: CandidateFigure
  *   const ranking = rankLobbies(pool, [['ash', 'birch'], ['ash', 'cedar']], model, rules);
  *   if (ranking.status === 'ranked') startMatch(ranking.ranked[0].candidate, ranking.best);
  */
-export function rankLobbies(pool: LobbyFile, candidates: readonly (readonly string[])[], model: CompiledModel, rules: CompiledRules, options: BalanceOptions = {}): RankResult {
+export function rankLobbies(input: LobbyFile, candidates: readonly (readonly string[])[], model: CompiledModel, rules: CompiledRules, options: BalanceOptions = {}): RankResult {
+  checkBalanceOptions(options);
+  const uncompiled = compiledInputIssues(model, rules);
+  const parsed = parsedLobby(input);
+  if (uncompiled.length > 0 || !parsed.ok) return { status: 'rejected', issues: [...uncompiled, ...(parsed.ok ? [] : parsed.issues.map((issue) => ({ ...issue, location: `pool.${issue.location}` })))] };
+  if (!Array.isArray(candidates as unknown)) throw new TypeError(`\`candidates\` requires a list of lists of player ids, got ${show(candidates)}`);
+  const pool = parsed.value;
   // Under a robust estimator a player's samples become one latency, the same in every candidate: take it once.
-  const reduce = rules.latency_estimator !== 'all_samples';
   const byId = new Map<string, LobbyPlayer>();
   const original = new Map<string, LobbyPlayer>();
   for (const player of pool.players) {
     original.set(player.id, player);
-    byId.set(player.id, reduce && typeof player.latency_ms !== 'number' ? { ...player, latency_ms: latencyEstimate(player.latency_ms, rules) } : player);
+    byId.set(player.id, withEstimate(player, rules));
   }
   const issues: Issue[] = [];
   const lobbies: LobbyFile[] = candidates.map((ids, index) => {
     const seen = new Set<string>();
     const players: LobbyPlayer[] = [];
+    if (!Array.isArray(ids as unknown)) {
+      issues.push(error('invalid_candidate', `candidates[${index}]`, `a candidate requires a list of player ids, got ${show(ids)}`));
+      return { ...pool, players };
+    }
     if (ids.length === 0) issues.push(error('empty_candidate', `candidates[${index}]`, 'a candidate requires at least one player id, got none'));
     ids.forEach((id, position) => {
       const player = byId.get(id);

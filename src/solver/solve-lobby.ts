@@ -45,6 +45,19 @@ export function latencyEstimate(latency: number | readonly number[], rules: Comp
 }
 
 /**
+ * A player whose samples are replaced by the rules' robust estimate (median,
+ * percentile) solves exactly as before: under such an estimator the solver
+ * uses only the estimate. Views that solve the same lobby many times
+ * (exploit, uncertainty) and rankLobbies take each estimate once this way
+ * instead of selecting over the samples at every solve. Under `all_samples`
+ * every sample counts and the player is returned as given.
+ */
+export function withEstimate<P extends LobbyFile['players'][number]>(player: P, rules: CompiledRules): P {
+  if (rules.latency_estimator === 'all_samples' || typeof player.latency_ms === 'number') return player;
+  return { ...player, latency_ms: latencyEstimate(player.latency_ms, rules) };
+}
+
+/**
  * An ineligible player's expected performance (at scale 1) as the rules'
  * estimator takes it: averaged over their samples for `all_samples`, at their
  * estimated latency for a robust estimator, as an eligible player's would be.

@@ -92,7 +92,7 @@ describe('inputs too large to keep in the repository, made at test time', () => 
     const started = performance.now();
     const run = runCli(['balance', path, '--model', model]);
     expect(run.status).toBe(2);
-    expect(run.stderr).toMatch(/huge\.lobby\.json:players: error out_of_range: .*at most 1024 players/);
+    expect(run.stderr).toMatch(/huge\.lobby\.json:players: error out_of_range: .*at most 256 players/);
     expect(performance.now() - started).toBeLessThan(10_000);
   });
 

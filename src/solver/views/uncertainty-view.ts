@@ -29,11 +29,13 @@ import { type CompiledModel, predictorLine } from '../../model/compile.js';
 import { type RandomSource, createRandomSource, standardNormalDraw } from '../../random.js';
 import { quantileSorted } from '../../stats/quantile.js';
 import type { CompiledRules } from '../rules.js';
-import { type LobbySolve, solveLobby } from '../solve-lobby.js';
+import { type LobbySolve, solveLobby, withEstimate } from '../solve-lobby.js';
 import { SolveWorkspace } from '../workspace.js';
 
 /** Default number of coefficient draws. */
 export const DEFAULT_UNCERTAINTY_DRAWS = 200;
+/** At most this many draws (each is a lobby solve). */
+export const MAX_UNCERTAINTY_DRAWS = 100_000;
 /** Default seed of the draws, fixed so that a report is reproducible. */
 export const DEFAULT_UNCERTAINTY_SEED = 20_240_401;
 
@@ -66,7 +68,7 @@ export interface UncertaintyView {
 /** The uncertainty view of a solved lobby (`base`, from `solveLobby` at the model's own coefficients). */
 export function uncertaintyView(lobby: LobbyFile, model: CompiledModel, rules: CompiledRules, base: LobbySolve, options: UncertaintyOptions = {}): UncertaintyView {
   const draws = options.draws ?? DEFAULT_UNCERTAINTY_DRAWS;
-  if (!(Number.isSafeInteger(draws) && draws >= 1)) throw new RangeError(`\`views.uncertainty.draws\` requires a positive integer, got ${String(draws)}`);
+  if (!(Number.isSafeInteger(draws) && draws >= 1 && draws <= MAX_UNCERTAINTY_DRAWS)) throw new RangeError(`\`views.uncertainty.draws\` requires a whole number from 1 to ${MAX_UNCERTAINTY_DRAWS}, got ${String(draws)}`);
   const seed = options.random === undefined ? (options.seed ?? DEFAULT_UNCERTAINTY_SEED) : null;
   const random = options.random ?? createRandomSource(seed as number);
   const size = model.coefficients.length;
@@ -78,6 +80,8 @@ export function uncertaintyView(lobby: LobbyFile, model: CompiledModel, rules: C
   const coefficients = new Float64Array(size);
   let accepted = 0;
   const workspace = new SolveWorkspace();
+  // Every draw solves the same players: under a robust estimator their estimates are taken once.
+  const reduced: LobbyFile = { ...lobby, players: lobby.players.map((player) => withEstimate(player, rules)) };
   for (let draw = 0; draw < draws; draw += 1) {
     for (let index = 0; index < size; index += 1) normal[index] = standardNormalDraw(random);
     for (let row = 0; row < size; row += 1) {
@@ -87,7 +91,7 @@ export function uncertaintyView(lobby: LobbyFile, model: CompiledModel, rules: C
     }
     const line = predictorLine(model.columns, coefficients, model.difficulty, lobby.difficulty);
     if (!line.ok) continue;
-    const solved = solveLobby(lobby, model, line.value, rules, workspace);
+    const solved = solveLobby(reduced, model, line.value, rules, workspace);
     if (!solved.ok) continue;
     for (let slot = 0; slot < eligibleCount; slot += 1) scales[slot * draws + accepted] = solved.value.solution.scales[slot] as number;
     accepted += 1;
