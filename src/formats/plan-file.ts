@@ -68,6 +68,7 @@ const sizeStudySchema = z
         latency_power: probability.nullable().default(null).describe('Smallest acceptable power to detect the latency effect.'),
       })
       .strict()
+      .prefault({})
       .describe('What the study must reach; at least one of `interval_width` and `latency_power`.'),
     alpha: probability.max(0.5, { error: 'a significance level above 0 and at most 0.5' }).default(0.05).describe('Significance level of the two-sided Wald tests.'),
     terms: z.array(z.enum(TERM_NAMES)).min(1).nullable().default(null).describe("Terms each simulated study is fitted with; null: the pilot model's, else the default terms."),
