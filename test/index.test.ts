@@ -48,7 +48,9 @@ describe('the package entry points', () => {
         "MAX_TRIAL_ROWS",
         "MODEL_FORMAT",
         "MatchSession",
+        "PLAN_FORMAT",
         "RULES_FORMAT",
+        "SCHEDULE_FORMAT",
         "SERVER_LOBBY_FORMAT",
         "SESSION_FORMAT",
         "SUMMARY_FORMAT",
@@ -59,6 +61,7 @@ describe('the package entry points', () => {
         "auditLobby",
         "balanceLobby",
         "boxStats",
+        "buildSchedule",
         "chiSquareUpperTail",
         "chooseServer",
         "compileModel",
@@ -83,6 +86,7 @@ describe('the package entry points', () => {
         "normalUpperTail",
         "parseJsonText",
         "parseLobby",
+        "parsePlan",
         "parseServerLobby",
         "parseSessionLog",
         "parseSweep",
@@ -96,7 +100,9 @@ describe('the package entry points', () => {
         "readTrialsFile",
         "replaySession",
         "safeParseLobby",
+        "safeParsePlan",
         "safeParseServerLobby",
+        "scheduleCsv",
         "solveSampledScalesInto",
         "solveScalesInto",
         "standardNormalDraw",
@@ -105,6 +111,7 @@ describe('the package entry points', () => {
         "toModelFile",
         "twoSidedNormalPValue",
         "unwrap",
+        "williamsDesign",
         "writeFileAtomic",
       ]
     `);
@@ -119,5 +126,9 @@ describe('the package entry points', () => {
     expect(reached.length).toBeGreaterThan(3);
     expect(reached.filter((name) => /^(vega|vega-lite|commander|cli-table3|mathjs)$/.test(name))).toEqual([]);
     expect([...packagesReached(join(ROOT, 'src', 'report', 'index.ts'))]).toContain('vega');
+  });
+
+  it('keep worker threads out of the main entry point (the size study runs from the CLI only)', () => {
+    expect([...packagesReached(join(ROOT, 'src', 'index.ts'))].filter((name) => /worker_threads/.test(name))).toEqual([]);
   });
 });

@@ -6,6 +6,7 @@ import { readTrialsFile } from '../io/read-trials.js';
 import { safeParseLobby, safeParseServerLobby } from '../formats/lobby.js';
 import { compileModel } from '../model/compile.js';
 import { compileRules } from '../solver/rules.js';
+import { safeParsePlan } from '../formats/plan.js';
 import { FILE_KINDS as KINDS, type FileKind as Kind, KIND_OF_TAG as TAGS } from '../formats/file-kinds.js';
 import { EXIT_BAD_INPUT, EXIT_OK, reportIssues, writeOut } from './output.js';
 
@@ -39,7 +40,9 @@ export async function validateFile(path: string, forced: Kind | undefined): Prom
         ? safeParseServerLobby(read.value, read.file)
         : detected === 'model'
           ? compileModel(read.value, read.file)
-          : compileRules(read.value, read.file);
+          : detected === 'plan'
+            ? safeParsePlan(read.value, read.file)
+            : compileRules(read.value, read.file);
   return parsed.ok ? { path, kind: detected, valid: true, issues: [], warnings: parsed.warnings } : { path, kind: detected, valid: false, issues: parsed.issues, warnings: [] };
 }
 
