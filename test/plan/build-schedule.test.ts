@@ -23,6 +23,27 @@ function blocks(orders: number[][], t: number, block: number): number[][] {
   return orders.map((order) => order.slice(block * t, (block + 1) * t));
 }
 
+/** What every schedule promises: each participant meets each condition `repetitions` times, once per block; under a Williams design, within each block and across participants, each ordered pair of different conditions is adjacent equally often and each condition stands equally often in each position. */
+function checkPromises(orders: number[][], t: number, repetitions: number, kind: string): void {
+  for (const order of orders) {
+    const met = new Array<number>(t).fill(0);
+    for (const condition of order) met[condition] = (met[condition] as number) + 1;
+    expect(met).toEqual(new Array<number>(t).fill(repetitions));
+  }
+  for (let block = 0; block < repetitions; block += 1) {
+    for (const part of blocks(orders, t, block)) expect([...part].sort((a, b) => a - b)).toEqual(Array.from({ length: t }, (_, i) => i));
+  }
+  if (kind !== 'williams' || t < 2) return;
+  const participants = orders.length;
+  for (let block = 0; block < repetitions; block += 1) {
+    const part = blocks(orders, t, block);
+    const each = participants / t;
+    const wanted = Array.from({ length: t * t }, (_, index) => (Math.floor(index / t) === index % t ? 0 : each));
+    expect(adjacentPairCounts(part, t)).toEqual(wanted);
+    expect(new Set(positionCounts(part, t))).toEqual(new Set([participants / t]));
+  }
+}
+
 describe('conditionOrders()', () => {
   it('gives every participant every condition `repetitions` times, and a Williams design balanced in every block when the count allows (property, 300 runs)', () => {
     fc.assert(
@@ -30,27 +51,8 @@ describe('conditionOrders()', () => {
         const count = williamsSequenceCount(t);
         const participants = multiple ? groups * count : groups * count + 1 + (seed & 1);
         const { kind, orders } = conditionOrders(t, participants, repetitions, seed);
-        expect(orders).toHaveLength(participants);
-        for (const order of orders) {
-          const met = new Array<number>(t).fill(0);
-          for (const condition of order) met[condition] = (met[condition] as number) + 1;
-          expect(met).toEqual(new Array<number>(t).fill(repetitions));
-        }
-        // Each block holds every condition once, whatever the design.
-        for (let block = 0; block < repetitions; block += 1) {
-          for (const part of blocks(orders, t, block)) expect([...part].sort((a, b) => a - b)).toEqual(Array.from({ length: t }, (_, i) => i));
-        }
         expect(kind).toBe(participants % count === 0 ? 'williams' : 'randomised_blocks');
-        if (kind !== 'williams' || t < 2) return;
-        // The promise: within each block, across participants, each ordered pair of different conditions is adjacent
-        // equally often, and each condition stands equally often in each position.
-        for (let block = 0; block < repetitions; block += 1) {
-          const part = blocks(orders, t, block);
-          const each = ((t - 1) * participants) / (t * (t - 1));
-          const wanted = Array.from({ length: t * t }, (_, index) => (Math.floor(index / t) === index % t ? 0 : each));
-          expect(adjacentPairCounts(part, t)).toEqual(wanted);
-          expect(new Set(positionCounts(part, t))).toEqual(new Set([participants / t]));
-        }
+        checkPromises(orders, t, repetitions, kind);
       }),
       { seed: 2301, numRuns: 300 },
     );
@@ -64,6 +66,46 @@ describe('conditionOrders()', () => {
 });
 
 describe('buildSchedule()', () => {
+  it('keeps the promises on every schedule, read back from the rows by their levels (property, 150 runs)', () => {
+    fc.assert(
+      fc.property(
+        fc.integer({ min: 1, max: 4 }),
+        fc.integer({ min: 1, max: 3 }),
+        fc.integer({ min: 1, max: 2 }),
+        fc.integer({ min: 1, max: 3 }),
+        fc.integer({ min: 0, max: 3 }),
+        fc.integer({ min: 1, max: 30 }),
+        fc.integer(),
+        (latencies, scales, difficulties, repetitions, practice, participants, seed) => {
+          const plan = {
+            ...basePlan,
+            seed,
+            latency_ms: Array.from({ length: latencies }, (_, i) => 40 * i),
+            scale: Array.from({ length: scales }, (_, i) => 1 + 0.25 * i),
+            difficulty: ['standard', 'elite'].slice(0, difficulties),
+            repetitions,
+            practice_rounds: practice,
+            participants,
+            session_limit_minutes: 1440,
+          };
+          const schedule = buildSchedule(plan);
+          // Condition ids from the levels, independently of the schedule's own numbering.
+          const key = (latency: number, scale: number, difficulty: number | string) => plan.latency_ms.indexOf(latency) * scales * difficulties + plan.scale.indexOf(scale) * difficulties + plan.difficulty.indexOf(difficulty as string);
+          const t = latencies * scales * difficulties;
+          const orders = schedule.participants.map((participant) => {
+            const rounds = schedule.rounds.filter((round) => round.player === participant.id);
+            expect(rounds.map((round) => round.round)).toEqual(Array.from({ length: practice + t * repetitions }, (_, i) => i + 1));
+            expect(rounds.slice(0, practice).every((round) => round.practice)).toBe(true);
+            return rounds.filter((round) => !round.practice).map((round) => key(round.latency_ms, round.scale, round.difficulty));
+          });
+          expect(orders).toHaveLength(participants);
+          checkPromises(orders, t, repetitions, schedule.design.kind);
+        },
+      ),
+      { seed: 2305, numRuns: 150 },
+    );
+  });
+
   it('says it used a Williams design for 24 participants and 12 conditions, with practice rounds first', () => {
     const schedule = buildSchedule(basePlan);
     expect(schedule.design.kind).toBe('williams');
