@@ -24,14 +24,17 @@ function seriesName(name: string, repetitions: number, several: boolean): string
   return several ? `${name}, ${repetitions} repetition(s)` : name;
 }
 
-/** Lines with points and Monte Carlo error bars against participants, one colour and dash per series, and the goal dashed in black. */
+/** Lines with points and Monte Carlo error bars against participants, one colour and dash per series, and the goal as a labelled dashed black line. */
 function againstParticipants(title: string, yAxis: { title: string; scale: object }, points: readonly SeriesPoint[], goal: number | null): TopLevelSpec {
   const names = [...new Set(points.map((point) => point.series))];
-  const colour = { domain: [...names, ...(goal === null ? [] : [GOAL])], range: [...CATEGORY_COLOURS.slice(0, names.length), OKABE_ITO.black] };
+  const colour = { domain: names, range: CATEGORY_COLOURS.slice(0, names.length) };
+  const widest = Math.max(...points.map((point) => point.participants));
   const x = { field: 'participants', type: 'quantitative' as const, title: 'Participants', scale: { zero: false } };
   const y = { type: 'quantitative' as const, ...yAxis };
   const legend = { title: null, orient: 'bottom' as const, direction: 'vertical' as const };
+  // Colour and dash both tell the series apart, in one legend (same field, same domain).
   const bySeries = { field: 'series', type: 'nominal' as const, scale: colour, legend };
+  const byDash = { field: 'series', type: 'nominal' as const, scale: { domain: names }, legend };
   return {
     config: CHART_CONFIG,
     title,
@@ -42,11 +45,18 @@ function againstParticipants(title: string, yAxis: { title: string; scale: objec
       {
         data: { values: [...points] },
         mark: { type: 'line' as const, point: { filled: true, size: 50 }, strokeWidth: 2 },
-        encoding: { x, y: { ...y, field: 'value' }, color: bySeries, strokeDash: { field: 'series', type: 'nominal' as const, legend: null } },
+        encoding: { x, y: { ...y, field: 'value' }, color: bySeries, strokeDash: byDash },
       },
       ...(goal === null
         ? []
-        : [{ data: { values: [{ goal }] }, mark: { type: 'rule' as const, strokeDash: [6, 3], strokeWidth: 1.5 }, encoding: { y: { ...y, field: 'goal' }, color: { datum: GOAL, type: 'nominal' as const, scale: colour, legend } } }]),
+        : [
+            { data: { values: [{ goal }] }, mark: { type: 'rule' as const, color: OKABE_ITO.black, strokeDash: [6, 3], strokeWidth: 1.5 }, encoding: { y: { ...y, field: 'goal' } } },
+            {
+              data: { values: [{ goal, participants: widest, label: `${GOAL} ${goal}` }] },
+              mark: { type: 'text' as const, align: 'right' as const, baseline: 'bottom' as const, dy: -3, fontSize: 11, color: OKABE_ITO.black },
+              encoding: { x, y: { ...y, field: 'goal' }, text: { field: 'label' } },
+            },
+          ]),
     ],
   } satisfies TopLevelSpec;
 }
