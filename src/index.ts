@@ -14,11 +14,15 @@
  *   const result = balanceLobby(lobby.value, model.value, rules.value);
  * and to choose among candidates and keep the scales right in play:
  * rankLobbies, chooseServer, MatchSession (README, "Use as a module").
+ * Before a playtest: parsePlan, buildSchedule, scheduleCsv, williamsDesign
+ * (the size study's simulations run on worker threads and are the CLI's,
+ * `lagparity plan size`, never loaded from here).
  */
 export { AUDIT_CAUTION, auditLobbies, auditLobby } from './audit/audit-lobbies.js';
 export { AUDIT_FORMAT } from './audit/audit-types.js';
 export { balanceLobby } from './solver/balance-lobby.js';
 export { boxStats, fiveNumber } from './stats/box-stats.js';
+export { buildSchedule, SCHEDULE_FORMAT } from './plan/build-schedule.js';
 export { chooseServer, lobbyOnServer } from './solver/choose-server.js';
 export { chiSquareUpperTail, normalCdf, normalDensity, normalQuantile, normalUpperTail, twoSidedNormalPValue } from './stats/distributions.js';
 export { compileModel } from './model/compile.js';
@@ -40,10 +44,13 @@ export { MAX_CSV_LINE_BYTES, MAX_TRIAL_ROWS, parseTrialsCsv, TRIALS_FORMAT } fro
 export { MAX_JSON_BYTES, parseJsonText } from './formats/json-input.js';
 export { MODEL_FORMAT } from './formats/model-format.js';
 export { parseLobby, parseServerLobby, safeParseLobby, safeParseServerLobby } from './formats/lobby.js';
+export { parsePlan, safeParsePlan } from './formats/plan.js';
+export { PLAN_FORMAT } from './formats/plan-types.js';
 export { parseSessionLog } from './session/session-log-file.js';
 export { parseSweep, sweepRule, SWEEPABLE_RULES } from './audit/sweep.js';
 export { quantile, quantileSorted } from './stats/quantile.js';
 export { rankLobbies } from './solver/rank-lobbies.js';
+export { scheduleCsv } from './plan/schedule-csv.js';
 export { readJsonFile } from './io/read-json.js';
 export { readGroupedTrialsFile, readTrialsFile } from './io/read-trials.js';
 export { replaySession } from './session/replay-session.js';
@@ -52,6 +59,7 @@ export { MAX_SERVERS, SERVER_LOBBY_FORMAT } from './formats/server-lobby-types.j
 export { solveSampledScalesInto, solveScalesInto } from './solver/solve-scales-into.js';
 export { SUMMARY_FORMAT, summarizeTrials } from './summary/summarize-trials.js';
 export { toModelFile } from './model/to-model-file.js';
+export { williamsDesign } from './plan/williams-design.js';
 export { writeFileAtomic } from './io/write-file.js';
 
 export type { AuditEntry } from './audit/audit-lobbies.js';
@@ -76,11 +84,13 @@ export type { LobbyFile, LobbyPlayer } from './formats/lobby-types.js';
 export type { MatchInfo, SessionEvent, SessionLogger, SessionOptions } from './session/match-session.js';
 export type { ModelFile } from './formats/model-types.js';
 export type { ModelProvenance } from './model/to-model-file.js';
+export type { PlanFile } from './formats/plan-types.js';
 export type { PlayerScaleInterval, UncertaintyOptions, UncertaintyView } from './solver/views/uncertainty-view.js';
 export type { QuantileType } from './stats/quantile.js';
 export type { CandidateFigures, RankResult } from './solver/rank-lobbies.js';
 export type { ReplayReport } from './session/replay-session.js';
 export type { ReadTrialsOptions } from './io/read-trials.js';
+export type { Schedule, ScheduleParticipant, ScheduleRound } from './plan/build-schedule.js';
 export type { RandomSource } from './random.js';
 export type { RulesFile, RulesInput } from './formats/rules-types.js';
 export type { ServerChoice, ServerFigures } from './solver/choose-server.js';
@@ -89,4 +99,5 @@ export type { SummarizeOptions, TrialsSummary } from './summary/summarize-trials
 export type { TermName } from './model/terms.js';
 export type { Trials } from './formats/trials-csv.js';
 export type { ValidLobby, ValidServerLobby } from './formats/lobby.js';
+export type { ValidPlan } from './formats/plan.js';
 export type { WriteFileOptions } from './io/write-file.js';

@@ -124,3 +124,22 @@ export function standardNormalDraw(random: RandomSource): number {
   while (uniform <= 0) uniform = random();
   return normalQuantile(uniform);
 }
+
+/**
+ * The indices 0..count-1 in a uniformly random order: the Fisher-Yates
+ * shuffle (Durstenfeld's in-place form; Knuth, TAOCP vol. 2, 3rd ed., §3.4.2,
+ * Algorithm P), each swap drawn from `random`. Consumes count - 1 uniforms.
+ *
+ * @example
+ *   shuffledIndices(5, createRandomSource(3)); // the same order on every run
+ */
+export function shuffledIndices(count: number, random: RandomSource): Int32Array {
+  const order = Int32Array.from({ length: count }, (_, i) => i);
+  for (let i = count - 1; i > 0; i -= 1) {
+    const j = Math.floor(random() * (i + 1));
+    const saved = order[i] as number;
+    order[i] = order[j] as number;
+    order[j] = saved;
+  }
+  return order;
+}

@@ -53,12 +53,21 @@ export const isCompiledModel = (value: unknown): boolean => isIn(models, value);
 /**
  * Run a parser on a value that may be hostile: a getter or a Proxy that
  * throws while it is read becomes an issue-carrying failure, never an
- * exception out of a `safeParse*` or `compile*` function.
+ * exception out of a `safeParse*` or `compile*` function. An exception from
+ * a value that is plain data (it copies with structuredClone) is lagparity's
+ * own fault and is thrown on, not disguised as a problem of the input.
  */
-export function readSafely<T>(read: () => T, failed: (message: string) => T): T {
+export function readSafely<T>(input: unknown, read: () => T, failed: (message: string) => T): T {
   try {
     return read();
   } catch (cause) {
+    let plain = true;
+    try {
+      structuredClone(input);
+    } catch {
+      plain = false;
+    }
+    if (plain) throw cause;
     let message: string;
     try {
       message = cause instanceof Error ? cause.message : String(cause);

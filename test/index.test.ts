@@ -49,7 +49,9 @@ describe('the package entry points', () => {
         "MAX_TRIAL_ROWS",
         "MODEL_FORMAT",
         "MatchSession",
+        "PLAN_FORMAT",
         "RULES_FORMAT",
+        "SCHEDULE_FORMAT",
         "SERVER_LOBBY_FORMAT",
         "SESSION_FORMAT",
         "SUMMARY_FORMAT",
@@ -60,6 +62,7 @@ describe('the package entry points', () => {
         "auditLobby",
         "balanceLobby",
         "boxStats",
+        "buildSchedule",
         "chiSquareUpperTail",
         "chooseServer",
         "compileModel",
@@ -84,6 +87,7 @@ describe('the package entry points', () => {
         "normalUpperTail",
         "parseJsonText",
         "parseLobby",
+        "parsePlan",
         "parseServerLobby",
         "parseSessionLog",
         "parseSweep",
@@ -97,7 +101,9 @@ describe('the package entry points', () => {
         "readTrialsFile",
         "replaySession",
         "safeParseLobby",
+        "safeParsePlan",
         "safeParseServerLobby",
+        "scheduleCsv",
         "solveSampledScalesInto",
         "solveScalesInto",
         "standardNormalDraw",
@@ -106,6 +112,7 @@ describe('the package entry points', () => {
         "toModelFile",
         "twoSidedNormalPValue",
         "unwrap",
+        "williamsDesign",
         "writeFileAtomic",
       ]
     `);
@@ -120,5 +127,9 @@ describe('the package entry points', () => {
     expect(reached.length).toBeGreaterThan(3);
     expect(reached.filter((name) => /^(vega|vega-lite|commander|cli-table3|mathjs)$/.test(name))).toEqual([]);
     expect([...packagesReached(join(ROOT, 'src', 'report', 'index.ts'))]).toContain('vega');
+  });
+
+  it('keep worker threads out of the main entry point (the size study runs from the CLI only)', () => {
+    expect([...packagesReached(join(ROOT, 'src', 'index.ts'))].filter((name) => /worker_threads/.test(name))).toEqual([]);
   });
 });

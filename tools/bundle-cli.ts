@@ -11,7 +11,10 @@
  * command's run code (`src/cli/X-run.ts`, imported by its action) becomes a
  * chunk in `dist/bin/chunks/`, loaded only when that command runs, with code
  * that several chunks use in shared chunks beside it; the report's renderer
- * is a further chunk loaded only by `lagparity report`, and the charting
+ * is a further chunk loaded only by `lagparity report`; the size study's
+ * worker thread script (`src/plan/simulation-worker.ts`) is an entry of its
+ * own, `dist/bin/chunks/simulation-worker.js`, beside the chunk that starts
+ * it, loaded only when `lagparity plan size` runs; and the charting
  * packages (vega, vega-lite) stay outside, imported from node_modules when a
  * report is drawn.
  * The library entries (`dist/index.js`, `dist/report/`) are not bundled: they
@@ -80,12 +83,15 @@ export function licenceNotice(packages: readonly Bundled[], bundle = 'lagparity.
 /** Bundle `dist/cli/main.js` into `dist/bin/`; returns the bundled packages. */
 export async function bundleCli(root: string): Promise<string[]> {
   const entry = join(root, 'dist', 'cli', 'main.js');
-  if (!existsSync(entry)) throw new Error(`bundle-cli: ${relative(root, entry)} is missing; run tsc first`);
+  const worker = join(root, 'dist', 'plan', 'simulation-worker.js');
+  for (const file of [entry, worker]) if (!existsSync(file)) throw new Error(`bundle-cli: ${relative(root, file)} is missing; run tsc first`);
   const outdir = join(root, 'dist', 'bin');
   rmSync(outdir, { recursive: true, force: true });
   const result = await build({
     absWorkingDir: root,
-    entryPoints: { lagparity: entry },
+    // The size study's worker script is an entry of its own, beside the chunk that starts it
+    // (`new URL('./simulation-worker.js', import.meta.url)` in src/plan/run-studies.ts).
+    entryPoints: { lagparity: entry, 'chunks/simulation-worker': worker },
     outdir,
     bundle: true,
     splitting: true,

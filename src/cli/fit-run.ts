@@ -10,6 +10,7 @@ import { LINK_NAMES, type LinkName } from '../model/links.js';
 import { type TermName, parseTermList } from '../model/terms.js';
 import type { Ranked } from './render-fit.js';
 import { EXIT_BAD_INPUT, EXIT_OK, reportIssues, writeOut } from './output.js';
+import { type ProgressLine, progressLine } from './progress.js';
 
 export const FIT_RESULT_FORMAT = 'lagparity/fit-result@1';
 
@@ -69,26 +70,6 @@ export function parseCompare(text: string): { candidates: Candidate[]; issues: I
   return { candidates, issues };
 }
 
-/** A progress line on stderr, only on a terminal and only once a run has taken more than a second. */
-/** The progress line on stderr; `stage` is called only when the line is shown (formatting a count loads locale data, about 20 ms). */
-function progressLine(): { update: (stage: () => string) => void; done: () => void } {
-  const started = performance.now();
-  const tty = Boolean(process.stderr.isTTY);
-  let shown = false;
-  return {
-    update(stage) {
-      if (!tty) return;
-      const elapsed = (performance.now() - started) / 1000;
-      if (elapsed < 1) return;
-      shown = true;
-      process.stderr.write(`\r\u001b[2Klagparity fit: ${stage()} (${elapsed.toFixed(1)} s)`);
-    },
-    done() {
-      if (shown) process.stderr.write('\r\u001b[2K');
-    },
-  };
-}
-
 function integerOption(name: string, text: string, minimum: number, issues: Issue[]): number {
   const value = Number(text);
   if (!Number.isSafeInteger(value) || value < minimum) {
@@ -98,7 +79,7 @@ function integerOption(name: string, text: string, minimum: number, issues: Issu
 }
 
 /** Read the trials file straight into groups for fitting, hashing its bytes in the same pass. */
-async function readGrouped(path: string, progress: ReturnType<typeof progressLine>): Promise<Result<{ grouped: GroupedTrials; sha256: string }>> {
+async function readGrouped(path: string, progress: ProgressLine): Promise<Result<{ grouped: GroupedTrials; sha256: string }>> {
   const hash = createHash('sha256');
   const read = await readGroupedTrialsFile(path, {
     onProgress: (rows) => progress.update(() => `read ${rows.toLocaleString('en-GB')} rows`),
@@ -140,7 +121,7 @@ export async function runFit(path: string, options: FitOptions): Promise<number>
     return EXIT_BAD_INPUT;
   }
 
-  const progress = progressLine();
+  const progress = progressLine('lagparity fit');
   const read = await readGrouped(path, progress);
   if (!read.ok) {
     progress.done();

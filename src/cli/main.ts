@@ -5,6 +5,7 @@ import { registerAudit } from './audit-command.js';
 import { registerBalance } from './balance-command.js';
 import { registerChooseServer } from './choose-server-command.js';
 import { registerFit } from './fit-command.js';
+import { registerPlan } from './plan-command.js';
 import { registerReplay } from './replay-command.js';
 import { registerReport } from './report-command.js';
 import { registerServe } from './serve-command.js';
@@ -27,6 +28,7 @@ program
 registerBalance(program);
 registerChooseServer(program);
 registerFit(program);
+registerPlan(program);
 registerAudit(program);
 registerSummarize(program);
 registerReport(program);

@@ -10,6 +10,7 @@ export function registerReport(program: Command): void {
     .requiredOption('--model <file>', 'model file (lagparity/model@1)')
     .option('--lobbies <paths...>', 'lobby files (*.lobby.json) or folders of them, to show balanced')
     .option('--rules <file>', 'rules file (lagparity/rules@1) for the lobbies; default: floor 1, cap 1.5, no other limit')
+    .option('--size-study <file>', 'a size study (lagparity/playtest-size@1, from `lagparity plan size --out`): adds the precision and power against participants')
     .requiredOption('--out <file>', 'the HTML file to write')
     .option('--force', 'replace the output file if it exists')
     .option('--latency-bins <spec>', 'latency groups: auto, levels, quantile:K, width:W (ms) or edges:a,b,... (as for summarize)', 'auto')
@@ -23,6 +24,8 @@ file is kept unless --force.
 Example:
   lagparity report --trials matches/playtest-trials.csv --model matches/model.json \\
     --lobbies matches --rules matches/league-rules.json --out report.html
+  lagparity plan size matches/preseason-playtest.plan.json --pilot-model matches/model.json --out size.json
+  lagparity report --trials matches/playtest-trials.csv --model matches/model.json --size-study size.json --out plan.html
 
 Exit codes: 0 written; 2 bad input, or the output exists without --force.`,
     )

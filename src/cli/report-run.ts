@@ -1,7 +1,11 @@
 /** `lagparity report`, run: one self-contained HTML page of the playtest, the model and the lobbies (options and help: `report-command.ts`). */
 import { createHash } from 'node:crypto';
 import { basename } from 'node:path';
+import { type Result } from '../issues.js';
+import { readJsonFile } from '../io/read-json.js';
 import { readTrialsFile } from '../io/read-trials.js';
+import { safeParseSizeStudy } from '../plan/size-study-schema.js';
+import type { SizeStudy } from '../plan/size-study-types.js';
 import { writeFileAtomic } from '../io/write-file.js';
 import { parseBinSpec } from '../summary/bins.js';
 import { loadLobbies, loadModel, loadRules } from './inputs.js';
@@ -15,20 +19,28 @@ export interface ReportOptions {
   out: string;
   force?: boolean;
   latencyBins: string;
+  sizeStudy?: string;
+}
+
+async function loadSizeStudy(path: string): Promise<Result<SizeStudy>> {
+  const read = await readJsonFile(path);
+  if (!read.ok) return read;
+  return safeParseSizeStudy(read.value, read.file);
 }
 
 export async function runReport(options: ReportOptions): Promise<number> {
   const bins = parseBinSpec(options.latencyBins, '--latency-bins');
   // The digest is taken from the same bytes the reader parses: one read of the file.
   const hash = createHash('sha256');
-  const [trials, model, rules, lobbies] = await Promise.all([
+  const [trials, model, rules, lobbies, sizeStudy] = await Promise.all([
     readTrialsFile(options.trials, { onChunk: (bytes) => hash.update(bytes) }),
     loadModel(options.model),
     loadRules(options.rules),
     options.lobbies === undefined || options.lobbies.length === 0 ? Promise.resolve(undefined) : loadLobbies(options.lobbies),
+    options.sizeStudy === undefined ? Promise.resolve(undefined) : loadSizeStudy(options.sizeStudy),
   ]);
-  const issues = [bins, trials, model, rules, ...(lobbies === undefined ? [] : [lobbies])].flatMap((result) => (result.ok ? [] : result.issues));
-  if (!bins.ok || !trials.ok || !model.ok || !rules.ok || (lobbies !== undefined && !lobbies.ok)) {
+  const issues = [bins, trials, model, rules, ...(lobbies === undefined ? [] : [lobbies]), ...(sizeStudy === undefined ? [] : [sizeStudy])].flatMap((result) => (result.ok ? [] : result.issues));
+  if (!bins.ok || !trials.ok || !model.ok || !rules.ok || (lobbies !== undefined && !lobbies.ok) || (sizeStudy !== undefined && !sizeStudy.ok)) {
     reportIssues(issues);
     return EXIT_BAD_INPUT;
   }
@@ -45,6 +57,7 @@ export async function runReport(options: ReportOptions): Promise<number> {
     rulesName: options.rules === undefined ? 'the default rules' : basename(options.rules),
     trialsSha256: hash.digest('hex'),
     latencyBins: bins.value,
+    ...(sizeStudy?.ok ? { sizeStudy: sizeStudy.value, sizeStudyName: basename(options.sizeStudy ?? '') } : {}),
   });
   if (!report.ok) {
     reportIssues(report.issues);

@@ -7,6 +7,7 @@ import { readTrialsFile } from '../io/read-trials.js';
 import { safeParseLobby, safeParseServerLobby } from '../formats/lobby.js';
 import { compileModel } from '../model/compile.js';
 import { compileRules } from '../solver/rules.js';
+import { safeParsePlan } from '../formats/plan.js';
 import { FILE_KINDS as KINDS, type FileKind as Kind, KIND_OF_TAG as TAGS } from '../formats/file-kinds.js';
 import { EXIT_BAD_INPUT, EXIT_OK, reportIssues, writeOut } from './output.js';
 
@@ -40,7 +41,9 @@ export async function validateFile(path: string, forced: Kind | undefined): Prom
         ? safeParseServerLobby(read.value, read.file)
         : detected === 'model'
           ? compileModel(read.value, read.file)
-          : compileRules(read.value, read.file);
+          : detected === 'plan'
+            ? safeParsePlan(read.value, read.file)
+            : compileRules(read.value, read.file);
   const text = read.text ?? '';
   return checked.ok
     ? { path, kind: detected, valid: true, issues: [], warnings: withLines(checked.warnings, text, read.file) }

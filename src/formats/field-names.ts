@@ -1,34 +1,40 @@
 /**
  * "Did you mean": the field names of every format, gathered once from their
- * JSON Schemas when a misspelt field first needs a suggestion, and the
+ * zod schemas when a misspelt field first needs a suggestion, and the
  * closest of them to an unknown name by the optimal string alignment
  * distance (Damerau-Levenshtein restricted to adjacent transpositions; e.g.
  * Navarro 2001, "A guided tour to approximate string matching", section 2.1).
  */
-import { z } from 'zod';
 import { SCHEMA_FILES } from './schema-files.js';
 
 let names: readonly string[] | null = null;
 
-function gather(node: unknown, into: Set<string>): void {
-  const stack: unknown[] = [node];
+/** Every object key in a zod schema, walking its definition (objects, wrappers, lists, unions, records, pipes). */
+function gather(root: unknown, into: Set<string>): void {
+  const stack: unknown[] = [root];
+  const seen = new Set<unknown>();
   while (stack.length > 0) {
-    const current = stack.pop();
-    if (current === null || typeof current !== 'object') continue;
-    if (Array.isArray(current)) {
-      stack.push(...current);
-      continue;
+    const schema = stack.pop();
+    if (schema === null || typeof schema !== 'object' || seen.has(schema)) continue;
+    seen.add(schema);
+    const def = (schema as { _zod?: { def?: Record<string, unknown> } })._zod?.def;
+    if (def === undefined) continue;
+    const shape = def.shape;
+    if (shape !== null && typeof shape === 'object') {
+      for (const [key, value] of Object.entries(shape)) {
+        into.add(key);
+        stack.push(value);
+      }
     }
-    const properties = (current as { properties?: unknown }).properties;
-    if (properties !== null && typeof properties === 'object') for (const key of Object.keys(properties)) into.add(key);
-    stack.push(...Object.values(current));
+    for (const part of ['innerType', 'element', 'valueType', 'in', 'out']) if (def[part] !== undefined) stack.push(def[part]);
+    if (Array.isArray(def.options)) stack.push(...(def.options as unknown[]));
   }
 }
 
 function fieldNames(): readonly string[] {
   if (names === null) {
     const found = new Set<string>();
-    for (const { schema } of Object.values(SCHEMA_FILES)) gather(z.toJSONSchema(schema, { io: 'input', unrepresentable: 'any' }), found);
+    for (const { schema } of Object.values(SCHEMA_FILES)) gather(schema, found);
     names = [...found].sort();
   }
   return names;

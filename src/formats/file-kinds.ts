@@ -6,11 +6,12 @@
 import { type Issue, at, error } from '../issues.js';
 import { LOBBY_FORMAT } from './lobby-types.js';
 import { MODEL_FORMAT } from './model-format.js';
+import { PLAN_FORMAT } from './plan-types.js';
 import { RULES_FORMAT } from './rules-types.js';
 import { SERVER_LOBBY_FORMAT } from './server-lobby-types.js';
 
-export type FileKind = 'trials' | 'lobby' | 'lobby-servers' | 'model' | 'rules';
-export const FILE_KINDS: readonly FileKind[] = ['trials', 'lobby', 'lobby-servers', 'model', 'rules'];
+export type FileKind = 'trials' | 'lobby' | 'lobby-servers' | 'model' | 'rules' | 'plan';
+export const FILE_KINDS: readonly FileKind[] = ['trials', 'lobby', 'lobby-servers', 'model', 'rules', 'plan'];
 
 /** JSON kinds by their `format` tag (a trials file is CSV, told by its extension). */
 export const KIND_OF_TAG: Readonly<Record<string, FileKind>> = {
@@ -18,6 +19,7 @@ export const KIND_OF_TAG: Readonly<Record<string, FileKind>> = {
   [SERVER_LOBBY_FORMAT]: 'lobby-servers',
   [MODEL_FORMAT]: 'model',
   [RULES_FORMAT]: 'rules',
+  [PLAN_FORMAT]: 'plan',
 };
 
 const KIND_NAMES: Readonly<Record<FileKind, string>> = {
@@ -26,6 +28,7 @@ const KIND_NAMES: Readonly<Record<FileKind, string>> = {
   'lobby-servers': 'a server-choice lobby',
   model: 'a model',
   rules: 'a rules file',
+  plan: 'a playtest plan',
 };
 
 /**

@@ -18,6 +18,7 @@ export function unreadable(file: string | undefined, message: string): Issue {
 
 export function parseDocument<S extends z.ZodType, T>(input: unknown, file: string | undefined, kind: FileKind, schema: S, finish: (data: z.output<S>) => Result<T>): Result<T> {
   return readSafely(
+    input,
     () => {
       const other = wrongKind(input, kind, file);
       if (other !== null) return fail([other]);

@@ -40,7 +40,7 @@
 import { type Issue, LagparityInputError, error, show, warning } from '../issues.js';
 import type { Trials } from '../formats/trials-csv.js';
 import { multiply } from '../numeric/design-matrix.js';
-import { createRandomSource } from '../random.js';
+import { createRandomSource, shuffledIndices } from '../random.js';
 import { chiSquareUpperTail, normalQuantile, twoSidedNormalPValue } from '../stats/distributions.js';
 import { predictorLine } from './predictor-line.js';
 import { type CollapsedTrials, type GroupedTrials, groupTrials, selectCollapsed } from './collapse.js';
@@ -614,14 +614,14 @@ export function assignFolds(
   const players = data.player === null ? 0 : countAll(data.player);
   if (data.player !== null && players >= 2) {
     const count = Math.min(folds, players);
-    const order = shuffled(players, random);
+    const order = shuffledIndices(players, random);
     const foldOfPlayer = new Int32Array(players);
     order.forEach((player, position) => (foldOfPlayer[player] = position % count));
     for (let i = 0; i < data.rows; i += 1) fold[i] = foldOfPlayer[data.player[i] as number] as number;
     return { fold, folds: count, heldOut: 'players' };
   }
   const count = Math.min(folds, data.rows);
-  const order = shuffled(data.rows, random);
+  const order = shuffledIndices(data.rows, random);
   order.forEach((row, position) => (fold[row] = position % count));
   return { fold, folds: count, heldOut: 'rows' };
 }
@@ -632,16 +632,6 @@ function countAll(codes: Int32Array): number {
   return largest + 1;
 }
 
-function shuffled(count: number, random: () => number): Int32Array {
-  const order = Int32Array.from({ length: count }, (_, i) => i);
-  for (let i = count - 1; i > 0; i -= 1) {
-    const j = Math.floor(random() * (i + 1));
-    const saved = order[i] as number;
-    order[i] = order[j] as number;
-    order[j] = saved;
-  }
-  return order;
-}
 
 /** Ten equal-width bins of predicted probability: attempts, predicted and observed hits (prior-weighted). */
 class CalibrationBins {

@@ -14,7 +14,7 @@ import { CATEGORY_COLOURS, OKABE_ITO } from './palette.js';
 const FONT = 'sans-serif';
 
 /** Shared look: fonts, sizes, the palette. */
-const CONFIG: Config = {
+export const CHART_CONFIG: Config = {
   font: FONT,
   background: '#ffffff',
   padding: 8,
@@ -51,7 +51,7 @@ export function boxPlotSpec(groups: readonly BoxGroup[], axisTitle: string, titl
   };
   const width = Math.max(200, 60 * groups.length);
   return {
-    config: CONFIG,
+    config: CHART_CONFIG,
     title,
     width,
     height: 260,
@@ -132,7 +132,7 @@ export function curvesSpec(panels: readonly CurvePanel[], scaleOrder: readonly s
   const x = { field: 'latency', type: 'quantitative' as const, title: 'Latency (ms)' };
   const y = { type: 'quantitative' as const, scale: { domain: [0, 1] }, title: 'Hit probability' };
   return {
-    config: CONFIG,
+    config: CHART_CONFIG,
     title: band ? 'Fitted hit probability with 95% band (delta method), over the observed means' : 'Fitted hit probability over the observed means (no band: the model has no covariance)',
     resolve: { scale: { color: 'shared' as const, shape: 'shared' as const }, legend: { color: 'shared' as const, shape: 'shared' as const } },
     hconcat: panels.map((panel) => ({
@@ -182,7 +182,7 @@ export function calibrationSpec(points: readonly CalibrationPoint[]): TopLevelSp
   const x = { type: 'quantitative' as const, scale: { domain: [0, 1] }, title: 'Predicted hit probability (attempt-weighted bin mean)' };
   const y = { type: 'quantitative' as const, scale: { domain: [0, 1] }, title: 'Observed hit rate (hits / attempts)' };
   return {
-    config: CONFIG,
+    config: CHART_CONFIG,
     title: 'Calibration in ten bins of predicted probability',
     width: 320,
     height: 320,
@@ -241,7 +241,7 @@ export function lobbySpec(title: string, players: readonly LobbyPlayerPoint[], t
   const y = { type: 'quantitative' as const, scale: { zero: false, nice: true }, title: 'Expected hit probability' };
   const colourLegend = { title: null, orient: 'bottom' as const, direction: 'horizontal' as const, columns: 2 };
   return {
-    config: CONFIG,
+    config: CHART_CONFIG,
     title: { text: title, offset: 18 },
     width: Math.max(320, 46 * players.length),
     height: 260,

@@ -24,6 +24,8 @@ import { type BoxGroup, type CurvePanel, boxPlotSpec, calibrationSpec, curvesSpe
 import { escapeHtml, formatGeneral, formatNumber, htmlTable } from './html.js';
 import { calibrationBins, difficultyForModel, hasCovariance, predictWithBand } from './predictions.js';
 import { MissingChartingError, loadCharting, renderChartSvg } from './render-svg.js';
+import type { SizeStudy } from '../plan/size-study-types.js';
+import { powerSpec, precisionSpec } from './size-study-charts.js';
 
 export interface ReportLobby {
   /** Shown as the lobby's source, e.g. its file name. */
@@ -46,6 +48,10 @@ export interface ReportInput {
   /** Latency groups for the box plots and observed means; default `auto`. */
   readonly latencyBins?: BinSpec;
   readonly title?: string;
+  /** A size study's result (`lagparity plan size --json`): a section with the precision and power against participants. */
+  readonly sizeStudy?: SizeStudy;
+  /** The size study's file name, for the page. */
+  readonly sizeStudyName?: string;
 }
 
 export interface Report {
@@ -173,6 +179,46 @@ function issueList(issues: readonly Issue[]): string {
   return `<ul>${issues.map((issue) => `<li><code>${escapeHtml(issue.location)}</code> ${escapeHtml(issue.code)}: ${escapeHtml(issue.message)}</li>`).join('')}</ul>`;
 }
 
+function widthText(value: { estimate: number | null; mc_low: number | null; mc_high: number | null }): string {
+  const show = (number: number | null) => (number === null ? 'unbounded' : formatNumber(number, 3));
+  return value.estimate === null ? 'unbounded' : `${show(value.estimate)} (${show(value.mc_low)}–${show(value.mc_high)})`;
+}
+
+/** The size study's section: what was assumed, the two charts, the table and the recommendation. */
+async function sizeStudySection(study: SizeStudy, name: string, addChart: (id: string, title: string, spec: Parameters<typeof renderChartSvg>[0]) => Promise<string>): Promise<string> {
+  const { assumptions: a, goal } = study;
+  const precisionSvg = await addChart('size-precision', 'Precision of the compensation scale against participants', precisionSpec(study.rows, goal.interval_width, a.at_latency_ms));
+  const powerSvg = await addChart('size-power', 'Power against participants', powerSpec(study.rows, goal.latency_power));
+  const rows = study.rows.map((row) => [
+    String(row.participants),
+    String(row.repetitions),
+    formatNumber(row.session_minutes, 1),
+    `${formatNumber(row.latency_power.estimate, 3)} ± ${formatNumber(row.latency_power.mc_se, 3)}`,
+    `${formatNumber(row.scale_power.estimate, 3)} ± ${formatNumber(row.scale_power.mc_se, 3)}`,
+    `${formatNumber(row.unusable.estimate, 3)}`,
+    widthText(row.width_median),
+    widthText(row.width_p90),
+    row.coverage === null ? '–' : formatNumber(row.coverage.estimate, 3),
+    row.meets_goal ? 'met' : '–',
+  ]);
+  const verdict =
+    study.recommended === null
+      ? `<p class="warn">No size in the range meets the goal. ${escapeHtml(study.closest?.message ?? '')}.</p>`
+      : `<p><strong>Recommended: ${study.recommended.participants} participants with ${study.recommended.repetitions} repetition(s) of each condition.</strong></p>`;
+  return `<section id="size-study">
+<h2>How many participants</h2>
+<p>From <code>${escapeHtml(name)}</code>${study.label === null ? '' : ` (${escapeHtml(study.label)})`}: ${study.studies} simulated playtests per size (seed ${study.seed}), each fitted as <code>lagparity fit</code> fits a playtest (${escapeHtml(a.fitted_terms.join(', '))}; CR1 errors by player). Assumed: ${a.source === 'pilot_model' ? `the pilot model <code>${escapeHtml(a.pilot_model ?? '')}</code>` : 'entered effects'} (${escapeHtml(a.link)} link), players' skill spread ${formatGeneral(a.player_sd)} on the link scale (${a.player_sd_source === 'default' ? 'the documented default, an assumption' : a.player_sd_source === 'pilot_trials' ? "estimated from the pilot's trials" : 'from the plan'}), ${a.attempts_per_round} attempts a round. The scale needed at ${formatGeneral(a.at_latency_ms)} ms (difficulty ${escapeHtml(String(a.at_difficulty))}) to restore the hit probability at ${formatGeneral(a.reference_latency_ms)} ms is ${formatNumber(a.true_scale, 3)} under these assumptions.</p>
+${verdict}
+<ul>${study.recommendations.map((entry) => `<li>${escapeHtml(entry.note)}</li>`).join('')}</ul>
+<div class="charts">
+${figure(precisionSvg, 'figure-size-precision', `Width of the compensation scale's 90% interval (delta method, cluster-robust covariance) at ${a.at_latency_ms} ms: the median and the 90th percentile over the simulated studies, with their 95% Monte Carlo intervals (order statistics). A study whose model cannot be used counts as unbounded.${goal.interval_width === null ? '' : ` Dashed: the goal, ${goal.interval_width} (${goal.width_statistic === 'median' ? 'median' : '90th percentile'}).`}`)}
+${figure(powerSvg, 'figure-size-power', `Share of simulated studies whose Wald test (cluster-robust, two-sided at ${goal.alpha}) detects the latency and the scale effect; bars: ±1.96 Monte Carlo standard errors.${goal.latency_power === null ? '' : ` Dashed: the goal for the latency effect, ${goal.latency_power}.`}`)}
+</div>
+${htmlTable(['participants', 'repetitions', 'session (min)', 'latency power', 'scale power', 'unusable', 'median width', '90th pct width', 'coverage', 'goal'], rows, { numeric: [0, 1, 2, 3, 4, 5, 6, 7, 8], caption: 'Widths with their 95% Monte Carlo intervals; powers with their Monte Carlo standard errors; coverage: the share of usable studies whose 90% interval holds the assumed scale.' })}
+${study.warnings.length > 0 ? `<div class="note">Warnings:${issueList(study.warnings)}</div>` : ''}
+</section>`;
+}
+
 function figure(svg: string, id: string, caption: string): string {
   return `<figure id="${id}" class="chart">${svg}<figcaption>${escapeHtml(caption)}</figcaption></figure>`;
 }
@@ -297,6 +343,9 @@ export async function renderReport(input: ReportInput): Promise<Result<Report>> 
     );
   }
 
+  // Playtest planning.
+  const sizeSection = input.sizeStudy === undefined ? '' : await sizeStudySection(input.sizeStudy, input.sizeStudyName ?? 'size study', addChart);
+
   // Provenance.
   const provenance = model.source.provenance;
   const provenanceNotes: string[] = [];
@@ -359,6 +408,7 @@ ${fitBlock === undefined ? `<p class="note">The model file has no <code>fit</cod
 ${lobbySections.length === 0 ? '<p class="note">No lobbies were given (<code>--lobbies</code>).</p>' : `<p>Rules: floor ${formatGeneral(rules.scale_floor)}, cap ${formatGeneral(rules.scale_cap)}, latency limit ${rules.latency_limit_ms === null ? 'none' : `${rules.latency_limit_ms} ms`}, accepted gap ${formatGeneral(rules.accepted_gap)}.</p>\n${lobbySections.join('\n')}`}
 </section>
 
+${sizeSection}
 <section id="method">
 <h2>Method notes</h2>
 <ul class="note">

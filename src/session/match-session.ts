@@ -171,7 +171,7 @@ export class MatchSession {
   ) {
     // The model, the rules and the match are data: wrong ones throw a LagparityInputError carrying issues.
     const issues = compiledInputIssues(model, rules);
-    const line = issues.length === 0 ? readSafely(() => model.lineAt(match.difficulty), (message) => fail([error('invalid_match', 'match', `\`match\` requires { match_id, attribute, difficulty }, got a value that throws when read: ${message}`)])) : null;
+    const line = issues.length === 0 ? readSafely(match, () => model.lineAt(match.difficulty), (message) => fail([error('invalid_match', 'match', `\`match\` requires { match_id, attribute, difficulty }, got a value that throws when read: ${message}`)])) : null;
     if (line !== null && !line.ok) issues.push(...line.issues.map((issue) => ({ ...issue, location: `match.${issue.location}` })));
     if (typeof match?.match_id !== 'string' || match.match_id === '') issues.push(error('invalid_match', 'match.match_id', `\`match.match_id\` requires a non-empty string, got ${show(match?.match_id)}`));
     if (match?.attribute !== 'hit_area' && match?.attribute !== 'timing_window') issues.push(error('invalid_match', 'match.attribute', `\`match.attribute\` requires "hit_area" or "timing_window", got ${show(match?.attribute)}`));

@@ -32,6 +32,7 @@ export function parsedServerLobby(lobby: unknown): Result<ServerLobbyFile> {
 /** A lobby's match id for a rejection, whatever the lobby is. */
 export function matchIdOf(lobby: unknown): string {
   return readSafely(
+    lobby,
     () => {
       const id = lobby !== null && typeof lobby === 'object' ? (lobby as { match_id?: unknown }).match_id : undefined;
       return typeof id === 'string' ? id : '';

@@ -46,6 +46,12 @@ function argsFor(entry: Case): string[] {
       return ['balance', lobby, '--model', path];
     case 'fit':
       return ['fit', path, '--out', join(mkdtempSync(join(tmpdir(), 'lagparity-fit-')), 'model.json')];
+    case 'plan-schedule':
+      return ['plan', 'schedule', path, '--out', join(mkdtempSync(join(tmpdir(), 'lagparity-plan-')), 'schedule.csv')];
+    case 'plan-size':
+      return ['plan', 'size', path, '--studies', '100', '--out', join(mkdtempSync(join(tmpdir(), 'lagparity-plan-')), 'size.json')];
+    case 'plan-size-pilot':
+      return ['plan', 'size', join(MATCHES, 'preseason-playtest.plan.json'), '--pilot-model', path, '--out', join(mkdtempSync(join(tmpdir(), 'lagparity-plan-')), 'size.json')];
     default:
       throw new Error(`unknown command ${entry.command} in cases.json`);
   }
@@ -58,7 +64,8 @@ describe(`the bad-input corpus (${cases.length} cases)`, () => {
   });
 
   it.each(cases.map((entry) => [entry.note, entry] as const))('%s', (_note, entry) => {
-    const run = runCli(argsFor(entry));
+    const args = argsFor(entry);
+    const run = runCli(args);
     expect(run.status, run.stderr).toBe(entry.exit);
     expect(run.stderr).not.toMatch(/\n\s+at .*\.js:\d+/); // never a stack trace
     if (!readFileSync(join(folder, entry.file), 'latin1').includes('NaN')) expect(run.stderr).not.toMatch(/NaN/); // never a computed NaN
@@ -69,6 +76,7 @@ describe(`the bad-input corpus (${cases.length} cases)`, () => {
       expect(line).toMatch(/requires|refused|ignored|read as|outside/); // names what was expected
     }
     expect(existsSync(join(folder, entry.file))).toBe(true); // nothing the user gave is removed
+    if (entry.command.startsWith('plan') && entry.exit !== 0) expect(existsSync(args[args.indexOf('--out') + 1] as string)).toBe(false); // no partial file
   });
 });
 

@@ -62,7 +62,7 @@ describe('bundled CLI', () => {
 
   it('loads each command’s run code only when that command runs', () => {
     const start = [...staticGraph(BIN)];
-    for (const command of ['balance', 'fit', 'audit', 'summarize', 'report', 'validate']) {
+    for (const command of ['balance', 'fit', 'audit', 'summarize', 'report', 'validate', 'plan-schedule', 'plan-size']) {
       lazyChunk(BIN, `${command}-run`);
       expect(start.some((file) => file.includes(`${command}-run`)), command).toBe(false);
     }
@@ -77,6 +77,15 @@ describe('bundled CLI', () => {
     expect(heavyIn(staticGraph(lazyChunk(BIN, 'validate-run')))).toEqual(Object.keys(HEAVY));
   });
 
+  it('places the size study\'s worker script beside the chunk that starts it, and loads neither at start', () => {
+    const sizeRun = lazyChunk(BIN, 'plan-size-run');
+    const worker = join(dirname(sizeRun), 'simulation-worker.js');
+    expect(readFileSync(worker, 'utf8')).toContain('parentPort');
+    // The chunk (or a chunk it loads statically) resolves the worker as `new URL("./simulation-worker.js", import.meta.url)` from its own folder.
+    expect([...staticGraph(sizeRun)].some((file) => dirname(file) === dirname(worker) && readFileSync(file, 'utf8').includes('new URL("./simulation-worker.js",import.meta.url)'))).toBe(true);
+    expect([...staticGraph(BIN)].some((file) => file.includes('simulation-worker') || readFileSync(file, 'utf8').includes('worker_threads'))).toBe(false);
+  });
+
   it('carries the licences of the packages it bundles', () => {
     const notice = readFileSync(join(ROOT, 'dist', 'bin', 'THIRD-PARTY-LICENSES.txt'), 'utf8');
     for (const name of ['zod@', 'commander@', 'cli-table3@', '@stdlib/stats-base-dists-normal-cdf@']) expect(notice).toContain(name);
@@ -85,8 +94,8 @@ describe('bundled CLI', () => {
   });
 
   it('runs every command’s help', () => {
-    for (const command of ['balance', 'fit', 'audit', 'summarize', 'report', 'validate']) {
-      const run = runCli([command, '--help']);
+    for (const command of ['balance', 'fit', 'audit', 'summarize', 'report', 'validate', 'plan schedule', 'plan size']) {
+      const run = runCli([...command.split(' '), '--help']);
       expect(run.status, command).toBe(0);
       expect(run.stdout, command).toContain(`Usage: lagparity ${command}`);
     }
