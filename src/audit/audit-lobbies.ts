@@ -63,8 +63,9 @@ export function auditLobby(input: LobbyFile, model: CompiledModel, rules: Compil
     return {
       match_id: matchIdOf(input),
       source,
-      verdict: 'fail',
+      verdict: 'outside_rules',
       reasons: result.issues.map((issue: Issue) => reason('solvable', null, null, null, null, `the lobby cannot be solved: ${issue.message}`)),
+      excluded_players: 0,
       target: null,
       players: [],
       figures: null,
@@ -138,8 +139,9 @@ export function auditLobby(input: LobbyFile, model: CompiledModel, rules: Compil
   return {
     match_id: lobby.match_id,
     source,
-    verdict: reasons.length === 0 ? 'pass' : 'fail',
+    verdict: reasons.length === 0 ? 'within_rules' : 'outside_rules',
     reasons,
+    excluded_players: result.players.filter((player) => !player.eligible).length,
     target: result.target,
     players,
     figures: {
@@ -188,13 +190,14 @@ function summarise(audits: readonly LobbyAudit[]): AuditSummary {
   const ranked = audits
     .map((audit) => ({ match_id: audit.match_id, verdict: audit.verdict, worst_gap: worstGap(audit), reasons: audit.reasons.length }))
     .sort((left, right) => {
-      if (left.verdict !== right.verdict) return left.verdict === 'fail' ? -1 : 1;
+      if (left.verdict !== right.verdict) return left.verdict === 'outside_rules' ? -1 : 1;
       const gap = (right.worst_gap ?? Infinity) - (left.worst_gap ?? Infinity);
       if (gap !== 0 && !Number.isNaN(gap)) return gap;
       return left.match_id < right.match_id ? -1 : left.match_id > right.match_id ? 1 : 0;
     });
-  const passed = audits.filter((audit) => audit.verdict === 'pass').length;
-  return { lobbies: audits.length, passed, failed: audits.length - passed, worst_first: ranked, binding_counts: bindingCounts, failing_rules: failingRules, most_binding: mostBinding };
+  const within = audits.filter((audit) => audit.verdict === 'within_rules').length;
+  const excluded = audits.reduce((sum, audit) => sum + audit.excluded_players, 0);
+  return { lobbies: audits.length, within_rules: within, outside_rules: audits.length - within, excluded_players: excluded, worst_first: ranked, binding_counts: bindingCounts, failing_rules: failingRules, most_binding: mostBinding };
 }
 
 export interface AuditEntry {

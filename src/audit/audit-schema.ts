@@ -1,15 +1,15 @@
 /**
- * The shape of an audit (`lagparity/audit-result@1`), as zod schemas: the
+ * The shape of an audit (`lagparity/audit-result@2`, and a sweep's, `lagparity/audit-sweep@2`), as zod schemas: the
  * TypeScript types derive from them and docs/schemas/audit-result.schema.json
  * is generated from them, so a script in any language can rely on it.
  */
 import { z } from 'zod';
 
 import type * as types from './audit-types.js';
-import { AUDIT_BINDINGS as BINDINGS, AUDIT_FORMAT, AUDIT_RULES } from './audit-types.js';
+import { AUDIT_BINDINGS as BINDINGS, AUDIT_FORMAT, AUDIT_RULES, SWEEP_FORMAT, VERDICTS } from './audit-types.js';
 import type { Assert, Same } from '../type-equality.js';
 
-export { AUDIT_FORMAT, AUDIT_RULES, BINDINGS };
+export { AUDIT_FORMAT, AUDIT_RULES, BINDINGS, SWEEP_FORMAT, VERDICTS };
 
 const probability = z.number().min(0).max(1);
 
@@ -43,8 +43,9 @@ export const lobbyAuditSchema = z
   .object({
     match_id: z.string(),
     source: z.string().describe('The file the lobby came from (`stdin` for standard input).'),
-    verdict: z.enum(['pass', 'fail']),
-    reasons: z.array(auditReasonSchema).describe('Every rule that broke; empty on a pass.'),
+    verdict: z.enum(VERDICTS).describe('within_rules: every rule holds; outside_rules: at least one is broken (see reasons).'),
+    reasons: z.array(auditReasonSchema).describe('Every rule that broke; empty when within rules.'),
+    excluded_players: z.number().int().describe('Players above the latency limit: reported, never scaled (each is also a reason).'),
     target: probability.nullable(),
     players: z.array(auditPlayerSchema),
     figures: z
@@ -73,9 +74,10 @@ export const lobbyAuditSchema = z
 export const auditSummarySchema = z
   .object({
     lobbies: z.number().int(),
-    passed: z.number().int(),
-    failed: z.number().int(),
-    worst_first: z.array(z.object({ match_id: z.string(), verdict: z.enum(['pass', 'fail']), worst_gap: z.number().nullable(), reasons: z.number().int() }).strict()),
+    within_rules: z.number().int(),
+    outside_rules: z.number().int(),
+    excluded_players: z.number().int().describe('Players above the latency limit, over all lobbies.'),
+    worst_first: z.array(z.object({ match_id: z.string(), verdict: z.enum(VERDICTS), worst_gap: z.number().nullable(), reasons: z.number().int() }).strict()),
     binding_counts: z.record(z.enum(BINDINGS), z.number().int()).describe('How many players each constraint binds, over all lobbies.'),
     failing_rules: z.record(z.enum(AUDIT_RULES), z.number().int()).describe('How many lobbies each rule fails.'),
     most_binding: z.enum(BINDINGS).nullable().describe('The constraint (other than none) that binds most often; null if none binds.'),
@@ -93,21 +95,25 @@ export const auditReportSchema = z
 
 export const sweepReportSchema = z
   .object({
-    format: z.literal('lagparity/audit-sweep@1'),
+    format: z.literal(SWEEP_FORMAT),
     rule: z.string(),
     rows: z.array(
       z
         .object({
           value: z.number(),
-          valid: z.boolean().describe('false when the rules with this value contradict themselves'),
+          valid: z.boolean().describe('false when the rules with this value contradict themselves (issues say how)'),
           issues: z.array(z.string()),
           lobbies: z.number().int(),
-          passed: z.number().int(),
-          share_passing: z.number().min(0).max(1).nullable(),
+          within_rules: z.number().int(),
+          share_within_rules: z.number().min(0).max(1).nullable(),
           worst_gap: z.number().nullable(),
+          failing_rules: z.partialRecord(z.enum(AUDIT_RULES), z.number().int()).describe('How many lobbies each broken rule fails at this value (rules that hold are left out).'),
+          most_binding: z.enum(BINDINGS).nullable().describe('The constraint (other than none) that holds players back most often at this value.'),
+          excluded_players: z.number().int().describe('Players above the latency limit at this value: a looser gap bought by excluding players shows here.'),
         })
         .strict(),
     ),
+    smallest_value_within_rules: z.number().nullable().describe('The smallest swept value at which every lobby is within rules; null if none.'),
   })
   .strict();
 

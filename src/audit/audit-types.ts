@@ -1,10 +1,16 @@
 /**
- * The audit output's types (`lagparity/audit-result@1` and
- * `lagparity/audit-sweep@1`) and constants, free of the schema library (see
+ * The audit output's types (`lagparity/audit-result@2` and
+ * `lagparity/audit-sweep@2`; version 2 says "within rules" and "outside
+ * rules" where version 1 said pass and fail, and counts excluded players) and constants, free of the schema library (see
  * formats/lobby-types.ts); audit-schema.ts holds the schemas, the field
  * descriptions and the compile-time check that the two agree.
  */
-export const AUDIT_FORMAT = 'lagparity/audit-result@1';
+export const AUDIT_FORMAT = 'lagparity/audit-result@2';
+export const SWEEP_FORMAT = 'lagparity/audit-sweep@2';
+
+/** A lobby's verdict: every rule holds, or at least one is broken (the reasons say which). */
+export const VERDICTS = ['within_rules', 'outside_rules'] as const;
+export type Verdict = (typeof VERDICTS)[number];
 
 export const AUDIT_BINDINGS = ['none', 'floor', 'cap', 'soft_cap', 'ratio', 'budget', 'quantisation', 'ineligible'] as const;
 export type AuditBinding = (typeof AUDIT_BINDINGS)[number];
@@ -36,8 +42,10 @@ export interface AuditPlayer {
 export interface LobbyAudit {
   match_id: string;
   source: string;
-  verdict: 'pass' | 'fail';
+  verdict: Verdict;
   reasons: AuditReason[];
+  /** Players above the latency limit: reported, never scaled, and a reason on their own. */
+  excluded_players: number;
   target: number | null;
   players: AuditPlayer[];
   figures: {
@@ -60,31 +68,36 @@ export interface LobbyAudit {
 
 export interface AuditSummary {
   lobbies: number;
-  passed: number;
-  failed: number;
-  worst_first: { match_id: string; verdict: 'pass' | 'fail'; worst_gap: number | null; reasons: number }[];
+  within_rules: number;
+  outside_rules: number;
+  excluded_players: number;
+  worst_first: { match_id: string; verdict: Verdict; worst_gap: number | null; reasons: number }[];
   binding_counts: Record<AuditBinding, number>;
   failing_rules: Record<AuditRule, number>;
   most_binding: AuditBinding | null;
 }
 
 export interface AuditReport {
-  format: 'lagparity/audit-result@1';
+  format: 'lagparity/audit-result@2';
   caution: string;
   lobbies: LobbyAudit[];
   summary: AuditSummary;
 }
 
 export interface SweepReport {
-  format: 'lagparity/audit-sweep@1';
+  format: 'lagparity/audit-sweep@2';
   rule: string;
   rows: {
     value: number;
     valid: boolean;
     issues: string[];
     lobbies: number;
-    passed: number;
-    share_passing: number | null;
+    within_rules: number;
+    share_within_rules: number | null;
     worst_gap: number | null;
+    failing_rules: Partial<Record<AuditRule, number>>;
+    most_binding: AuditBinding | null;
+    excluded_players: number;
   }[];
+  smallest_value_within_rules: number | null;
 }

@@ -1,7 +1,7 @@
 /**
  * Sensitivity sweep for rule design: re-run the audit over a range of one
- * rule's values and report, per value, the share of lobbies that pass and the
- * worst residual gap, so a designer sees where a cap starts to bite.
+ * rule's values and report, per value, how many lobbies are within rules and
+ * why the others are not, so a designer sees where a cap starts to bite.
  *
  * Syntax: `RULE=FROM:TO:STEP` (inclusive range) or `RULE=V1,V2,...`, e.g.
  * `scale_cap=1.2:2.0:0.1`.
@@ -11,7 +11,7 @@ import type { RulesFile } from '../formats/rules-types.js';
 import type { CompiledModel } from '../model/compile.js';
 import { compileRules } from '../solver/rules.js';
 import { type AuditEntry, auditLobbies, worstGap } from './audit-lobbies.js';
-import type { SweepReport } from './audit-types.js';
+import { SWEEP_FORMAT, type SweepReport } from './audit-types.js';
 import { SWEEPABLE_RULES, type SweepableRule } from './sweepable-rules.js';
 
 export { SWEEPABLE_RULES, type SweepableRule } from './sweepable-rules.js';
@@ -56,12 +56,18 @@ export function parseSweep(text: string): Result<SweepSpec> {
   return ok({ rule: rule as SweepableRule, values });
 }
 
-/** Run the audit once per value of one rule. Pure. */
+/**
+ * Run the audit once per value of one rule. Pure. Per value: how many lobbies
+ * are within rules, the rules that fail and how often, the constraint that
+ * binds most, the players excluded (a looser gap bought by excluding players
+ * shows there), and the worst residual gap; then the smallest value at which
+ * every lobby is within rules.
+ */
 export function sweepRule(entries: readonly AuditEntry[], model: CompiledModel, rules: RulesFile, spec: SweepSpec): SweepReport {
   const rows = spec.values.map((value) => {
     const compiled = compileRules({ ...rules, [spec.rule]: value });
     if (!compiled.ok) {
-      return { value, valid: false, issues: compiled.issues.map((issue) => issue.message), lobbies: entries.length, passed: 0, share_passing: null, worst_gap: null };
+      return { value, valid: false, issues: compiled.issues.map((issue) => issue.message), lobbies: entries.length, within_rules: 0, share_within_rules: null, worst_gap: null, failing_rules: {}, most_binding: null, excluded_players: 0 };
     }
     const report = auditLobbies(entries, model, compiled.value);
     let worst: number | null = null;
@@ -69,15 +75,21 @@ export function sweepRule(entries: readonly AuditEntry[], model: CompiledModel, 
       const gap = worstGap(lobby);
       if (gap !== null) worst = worst === null ? gap : Math.max(worst, gap);
     }
+    const summary = report.summary;
+    const failing = Object.fromEntries(Object.entries(summary.failing_rules).filter(([, count]) => count > 0));
     return {
       value,
       valid: true,
       issues: [],
-      lobbies: report.summary.lobbies,
-      passed: report.summary.passed,
-      share_passing: report.summary.lobbies === 0 ? null : report.summary.passed / report.summary.lobbies,
+      lobbies: summary.lobbies,
+      within_rules: summary.within_rules,
+      share_within_rules: summary.lobbies === 0 ? null : summary.within_rules / summary.lobbies,
       worst_gap: worst,
+      failing_rules: failing,
+      most_binding: summary.most_binding,
+      excluded_players: summary.excluded_players,
     };
   });
-  return { format: 'lagparity/audit-sweep@1', rule: spec.rule, rows };
+  const passing = rows.filter((row) => row.valid && row.lobbies > 0 && row.within_rules === row.lobbies).map((row) => row.value);
+  return { format: SWEEP_FORMAT, rule: spec.rule, rows, smallest_value_within_rules: passing.length === 0 ? null : Math.min(...passing) };
 }

@@ -35,10 +35,11 @@ export async function runAudit(paths: string[], options: AuditOptions): Promise<
   if (sweep !== undefined && sweep.ok) {
     const report = sweepRule(entries, model.value, rules.value, sweep.value);
     writeOut(options.json ? JSON.stringify(report, null, 2) : renderSweep(report, style));
-    return EXIT_OK;
+    // As a single audit: 0 when the rules can hold (some swept value puts every lobby within them), 1 when none does.
+    return report.smallest_value_within_rules === null ? EXIT_FAILED_CHECK : EXIT_OK;
   }
   const report = auditLobbies(entries, model.value, rules.value);
   for (const lobby of report.lobbies) reportIssues(lobby.warnings.map((issue) => ({ ...issue, location: `${lobby.source}:${issue.location}` })));
-  writeOut(options.json ? JSON.stringify(report, null, 2) : renderAudit(report, style));
-  return report.summary.failed > 0 ? EXIT_FAILED_CHECK : EXIT_OK;
+  writeOut(options.json ? JSON.stringify(report, null, 2) : renderAudit(report, style, rules.value));
+  return report.summary.outside_rules > 0 ? EXIT_FAILED_CHECK : EXIT_OK;
 }

@@ -27,7 +27,8 @@ Examples:
   lagparity fit matches/playtest-trials.csv --out matches/model.json
   lagparity fit trials.csv --out model.json --link probit --terms latency,log_scale,difficulty --cluster none
   lagparity fit trials.csv --folds 0 --lr-tests none --no-baseline --cluster none
-    the main fit alone with its standard errors (what one general-purpose glm call does)
+    the maximum-likelihood fit alone with its standard errors (a binomial GLM by IRLS;
+    McCullagh and Nelder 1989), without the cross-validation, the tests and the baseline
   lagparity fit trials.csv --compare "logit;probit;cloglog:latency,log_scale,difficulty;least_squares"
     fits the main model (--link/--terms) and four candidates: the logit, probit and
     (with fewer terms) cloglog links and least squares on accuracy; a candidate

@@ -34,7 +34,7 @@ export function renderBalance(result: BalanceResult): string {
   const summary = result.summary;
   const ordering = result.views?.ordering;
   const lines = [
-    `${result.match_id} (${result.attribute}, difficulty ${String(result.difficulty)}): ${result.status}`,
+    `${result.match_id} (${result.attribute}, difficulty ${String(result.difficulty)}): ${result.status}${result.summary.ineligible_players === 0 ? '' : `, ${result.summary.ineligible_players} player${result.summary.ineligible_players === 1 ? '' : 's'} excluded (above the latency limit, never scaled)`}`,
     table.toString(),
     `target P(hit) ${fixed(result.target)}; largest gap ${fixed(summary.largest_gap_before)} -> ${fixed(summary.largest_gap_after)}; Jain's index ${fixed(summary.jain_before, 4)} -> ${fixed(summary.jain_after, 4)}` +
       (summary.team_gap_before === null ? '' : `; team gap ${fixed(summary.team_gap_before)} -> ${fixed(summary.team_gap_after)}`) +

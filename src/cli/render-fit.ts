@@ -2,12 +2,9 @@
 import type { FitReport } from '../model/fit-model.js';
 import { compactTable } from './table.js';
 import { fixed } from './output.js';
+import { pValueText } from '../stats/p-value-text.js';
 
-function pValue(value: number): string {
-  if (value < 1e-16) return '<1e-16';
-  if (value < 0.001) return value.toExponential(1);
-  return value.toFixed(3);
-}
+const pValue = pValueText;
 
 function number(value: number | null, digits = 4): string {
   if (value === null) return '-';
@@ -26,24 +23,24 @@ export function renderFit(report: FitReport): string {
       (report.statistics === null ? '' : ` (${report.statistics.iterations} iterations)`),
   ];
   if (report.coefficients.length === 0) return lines.join('\n');
+  // One choice of errors, labelled, the same as the report's: the errors the model file keeps
+  // (CR1 by player when clustered, else model-based); z, p and the interval come from them.
   const robust = report.coefficients.some((row) => row.robust !== null);
+  const kept = robust ? 'robust SE' : 'model SE';
   const table = compactTable(
-    ['term', 'estimate', 'SE', 'z', 'p', '95% interval', ...(robust ? ['robust SE', 'robust 95% interval'] : [])],
-    ['left', 'right', 'right', 'right', 'right', 'right', 'right', 'right'],
+    ['term', 'estimate', kept, 'z', 'p', '95% interval', ...(robust ? ['model SE'] : [])],
+    ['left', 'right', 'right', 'right', 'right', 'right', 'right'],
   );
   for (const row of report.coefficients) {
-    table.push([
-      row.name,
-      number(row.estimate),
-      number(row.std_error),
-      fixed(row.z, 2),
-      pValue(row.p_value),
-      `${number(row.ci_lower)} .. ${number(row.ci_upper)}`,
-      ...(row.robust === null ? (robust ? ['-', '-'] : []) : [number(row.robust.std_error), `${number(row.robust.ci_lower)} .. ${number(row.robust.ci_upper)}`]),
-    ]);
+    const used = row.robust ?? row;
+    table.push([row.name, number(row.estimate), number(used.std_error), fixed(used.z, 2), pValue(used.p_value), `${number(used.ci_lower)} .. ${number(used.ci_upper)}`, ...(robust ? [number(row.std_error)] : [])]);
   }
   lines.push(table.toString());
-  if (robust) lines.push(`robust: CR1 by player (${report.cluster.clusters ?? 0} clusters); the model file keeps the robust covariance`);
+  lines.push(
+    robust
+      ? `robust SE: CR1 by player (${report.cluster.clusters ?? 0} clusters), the errors the model file keeps; z, p (two-sided, normal) and the interval use them; model SE for comparison`
+      : 'model SE: from the Fisher information at the estimate (McCullagh and Nelder 1989); z, p (two-sided, normal) and the interval use them',
+  );
   const stats = report.statistics;
   if (stats !== null && report.family === 'binomial') {
     lines.push(

@@ -19,8 +19,8 @@ export function registerSummarize(program: Command): void {
       `
 Bins are closed on the left, open on the right, [lower, upper); the last quantile or edges bin
 also holds its upper end. Quantile bins cut at the Hyndman & Fan (1996) type 7 quantiles.
-Box statistics are R's boxplot.stats: Tukey's hinges, whiskers to the most extreme rounds within
-1.5 hinge spreads (Tukey 1977), outliers beyond; --json also gives the type 7 quartiles.
+Box statistics are Tukey's box plot (Tukey 1977): hinges, whiskers to the most extreme rounds
+within 1.5 hinge spreads of the hinges, outliers beyond; --json also gives the type 7 quartiles.
 In a per-attempt file, a round is all attempts of one player in one latency x scale x difficulty cell.
 
 Example:

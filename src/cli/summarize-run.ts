@@ -41,7 +41,7 @@ export function renderSummary(summary: TrialsSummary): string {
     ...summary.by.map((factor) => summary.groupings[factor]?.description ?? ''),
     table.toString(),
     'Accuracy per round = hits / attempts; mean acc = total hits / total attempts.',
-    `Box: Tukey's hinges (as R's boxplot.stats), whiskers to the most extreme rounds within 1.5 hinge spreads of the hinges (Tukey 1977); outliers are the rounds beyond (counted here, listed by --json).`,
+    `Box: Tukey's hinges, whiskers to the most extreme rounds within 1.5 hinge spreads of the hinges (Tukey 1977); outliers are the rounds beyond (counted here, listed by --json).`,
     `Rounds: ${summary.round_definition}.`,
   ];
   return lines.join('\n');

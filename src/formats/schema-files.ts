@@ -10,7 +10,7 @@ import { modelFileSchema, MODEL_FORMAT } from './model-file.js';
 import { rulesFileSchema, RULES_FORMAT } from './rules-file.js';
 import { TRIALS_FORMAT } from './trials-csv.js';
 import { trialRowSchema } from './trials-schema.js';
-import { AUDIT_FORMAT, auditReportSchema, sweepReportSchema } from '../audit/audit-schema.js';
+import { AUDIT_FORMAT, SWEEP_FORMAT, auditReportSchema, sweepReportSchema } from '../audit/audit-schema.js';
 import { planFileSchema, PLAN_FORMAT } from './plan-file.js';
 import { SIZE_STUDY_FORMAT, sizeStudySchema } from '../plan/size-study-schema.js';
 
@@ -20,7 +20,7 @@ export const SCHEMA_FILES = {
   'model.schema.json': { schema: modelFileSchema, title: MODEL_FORMAT, description: 'A fitted hit-probability model.' },
   'rules.schema.json': { schema: rulesFileSchema, title: RULES_FORMAT, description: 'The limits a league sets on compensation.' },
   'audit-result.schema.json': { schema: auditReportSchema, title: AUDIT_FORMAT, description: 'The output of `lagparity audit --json`.' },
-  'audit-sweep.schema.json': { schema: sweepReportSchema, title: 'lagparity/audit-sweep@1', description: 'The output of `lagparity audit --sweep ... --json`.' },
+  'audit-sweep.schema.json': { schema: sweepReportSchema, title: SWEEP_FORMAT, description: 'The output of `lagparity audit --sweep ... --json`.' },
   'playtest-plan.schema.json': { schema: planFileSchema, title: PLAN_FORMAT, description: 'A playtest plan: conditions, repetitions, participants, round length, seed, and what a size study assumes and aims for.' },
   'playtest-size.schema.json': { schema: sizeStudySchema, title: SIZE_STUDY_FORMAT, description: 'The output of `lagparity plan size --json`: power, interval widths and the recommended size.' },
   'trials-row.schema.json': { schema: trialRowSchema, title: `${TRIALS_FORMAT} row`, description: 'One CSV row of trials data, with its fields read as numbers.' },

@@ -4,8 +4,8 @@
  * Every axis has a title with its unit, every chart a legend for what colour
  * and shape mean, and colours come from the Okabe–Ito palette (`palette.ts`).
  *
- * Box plots are drawn from statistics computed here (Tukey's hinges, as R's
- * `boxplot.stats`), not by Vega-Lite's own `boxplot` mark, so the picture and
+ * Box plots are drawn from statistics computed here (Tukey's hinges, Tukey
+ * 1977), not by Vega-Lite's own `boxplot` mark, so the picture and
  * the `summarize` table show the same numbers.
  */
 import type { Config, TopLevelSpec } from 'vega-lite';
@@ -45,10 +45,12 @@ export function boxPlotSpec(groups: readonly BoxGroup[], axisTitle: string, titl
   const longLabels = order.some((label) => label.length > 10);
   const x = { field: 'label', type: 'nominal' as const, sort: [...order], title: axisTitle, axis: { labelAngle: longLabels ? -30 : 0, labelLimit: 160 } };
   const y = { type: 'quantitative' as const, scale: { domain: [0, 1] }, title: 'Per-round accuracy (hits / attempts)' };
-  const legend = {
-    domain: ['attempt-weighted mean', 'outlier round (beyond 1.5 hinge spreads)'],
-    range: [OKABE_ITO.vermillion, OKABE_ITO.black],
-  };
+  const MEAN = 'attempt-weighted mean';
+  const OUTLIER = 'outlier round (beyond 1.5 hinge spreads)';
+  const legend = { domain: [MEAN, OUTLIER], range: [OKABE_ITO.vermillion, OKABE_ITO.black] };
+  // The legend's symbols are the marks' own: a filled diamond for the mean, an open circle for an outlier.
+  const shapes = { domain: legend.domain, range: ['diamond', 'circle'] };
+  const boxLegend = { title: null, orient: 'bottom' as const, direction: 'vertical' as const };
   const width = Math.max(200, 60 * groups.length);
   return {
     config: CHART_CONFIG,
@@ -72,21 +74,15 @@ export function boxPlotSpec(groups: readonly BoxGroup[], axisTitle: string, titl
         encoding: { x, y: { ...y, field: 'median' } },
       },
       {
-        data: { values: boxes },
-        mark: { type: 'point' as const, shape: 'diamond', filled: true, size: 60 },
-        encoding: {
-          x,
-          y: { ...y, field: 'mean_accuracy' },
-          color: { datum: 'attempt-weighted mean', type: 'nominal' as const, scale: legend, legend: { title: null, orient: 'bottom' as const, direction: 'vertical' as const } },
-        },
-      },
-      {
-        data: { values: outliers },
-        mark: { type: 'point' as const, shape: 'circle', filled: false, size: 30, strokeWidth: 1 },
+        // Means and outliers in one layer, so that one legend shows each with its own colour and shape.
+        data: { values: [...boxes.map((group) => ({ label: group.label, value: group.mean_accuracy, series: MEAN })), ...outliers.map((point) => ({ ...point, series: OUTLIER }))] },
+        mark: { type: 'point' as const, filled: false, strokeWidth: 1.5, size: 50, opacity: 1 },
         encoding: {
           x,
           y: { ...y, field: 'value' },
-          color: { datum: 'outlier round (beyond 1.5 hinge spreads)', type: 'nominal' as const, scale: legend, legend: { title: null, orient: 'bottom' as const, direction: 'vertical' as const } },
+          color: { field: 'series', type: 'nominal' as const, scale: legend, legend: boxLegend },
+          fill: { field: 'series', type: 'nominal' as const, scale: { domain: legend.domain, range: [OKABE_ITO.vermillion, 'transparent'] }, legend: boxLegend },
+          shape: { field: 'series', type: 'nominal' as const, scale: shapes, legend: boxLegend },
         },
       },
     ],
@@ -224,21 +220,37 @@ export interface LobbyPlayerPoint {
 
 const BEFORE = 'before (scale 1)';
 const AFTER = 'after (with its scale)';
-const HELD = 'held back by a rule (cap, ratio, budget)';
 const TARGET = 'target';
 
-/** Before/after expected hit probability per player, the target, the held-back players marked, the scales printed. */
-export function lobbySpec(title: string, players: readonly LobbyPlayerPoint[], target: number): TopLevelSpec {
+/** The legend's words for the rules that hold players back: "held below the target by the soft cap or the cap". */
+export function heldLabel(bindings: readonly string[]): string {
+  const names = [...new Set(bindings)].map((binding) => (binding === 'soft_cap' ? 'the soft cap' : `the ${binding}`));
+  const listed = names.length <= 1 ? (names[0] ?? 'a rule') : `${names.slice(0, -1).join(', ')} or ${names[names.length - 1]}`;
+  return `held below the target by ${listed} (dashed: the gap left)`;
+}
+
+/**
+ * Before/after expected hit probability per player, the target, the players a
+ * rule holds below the target marked with the gap left, the scales printed.
+ * `domain` is the y-axis range, shared by every lobby of a report so that the
+ * same gap looks the same size in every chart.
+ */
+export function lobbySpec(title: string, players: readonly LobbyPlayerPoint[], target: number, domain: readonly [number, number]): TopLevelSpec {
   const order = players.map((player) => player.player);
-  const legend = { domain: [BEFORE, AFTER, HELD, TARGET], range: [OKABE_ITO.orange, OKABE_ITO.blue, OKABE_ITO.vermillion, OKABE_ITO.black] };
-  const shapes = { domain: [BEFORE, AFTER, HELD, TARGET], range: ['circle', 'diamond', 'triangle-down', 'stroke'] };
+  const held = players.filter((player) => player.held_by !== null);
+  const HELD = heldLabel(held.map((player) => player.held_by as string));
+  // The held entry only where a rule holds someone back: a legend names what the chart shows.
+  const entries = held.length === 0
+    ? { domain: [BEFORE, AFTER, TARGET], colours: [OKABE_ITO.orange, OKABE_ITO.blue, OKABE_ITO.black], shapes: ['circle', 'diamond', 'stroke'] }
+    : { domain: [BEFORE, AFTER, HELD, TARGET], colours: [OKABE_ITO.orange, OKABE_ITO.blue, OKABE_ITO.vermillion, OKABE_ITO.black], shapes: ['circle', 'diamond', 'triangle-down', 'stroke'] };
+  const legend = { domain: entries.domain, range: entries.colours };
+  const shapes = { domain: entries.domain, range: entries.shapes };
   const long = players.flatMap((player) => [
     { player: player.player, series: BEFORE, p: player.before },
     ...(player.eligible ? [{ player: player.player, series: AFTER, p: player.after }] : []),
   ]);
-  const held = players.filter((player) => player.held_by !== null);
   const x = { field: 'player', type: 'nominal' as const, sort: [...order], title: 'Player (in order of latency estimate, lowest first)', axis: { labelAngle: -35, labelLimit: 120 } };
-  const y = { type: 'quantitative' as const, scale: { zero: false, nice: true }, title: 'Expected hit probability' };
+  const y = { type: 'quantitative' as const, scale: { domain: [...domain], zero: false, nice: false }, title: 'Expected P(hit)' }; // short: a title longer than the plot pushes the plot down (the caption says the axis is shared)
   const colourLegend = { title: null, orient: 'bottom' as const, direction: 'horizontal' as const, columns: 2 };
   return {
     config: CHART_CONFIG,
@@ -260,6 +272,16 @@ export function lobbySpec(title: string, players: readonly LobbyPlayerPoint[], t
           shape: { datum: TARGET, type: 'nominal' as const, scale: shapes, legend: colourLegend },
         },
       },
+      ...(held.length === 0
+        ? []
+        : [
+            {
+              // The gap a rule leaves: from the player's result up to the target.
+              data: { values: held.map((player) => ({ ...player, target })) },
+              mark: { type: 'rule' as const, color: OKABE_ITO.vermillion, strokeDash: [3, 2], strokeWidth: 2 },
+              encoding: { x, y: { ...y, field: 'after' }, y2: { field: 'target' } },
+            },
+          ]),
       {
         data: { values: long },
         mark: { type: 'point' as const, filled: true, size: 70, opacity: 1 },
@@ -274,8 +296,9 @@ export function lobbySpec(title: string, players: readonly LobbyPlayerPoint[], t
         ? []
         : [
             {
+              // An open triangle around the result of a held player, at its own height.
               data: { values: held },
-              mark: { type: 'point' as const, filled: false, size: 220, strokeWidth: 2, yOffset: -14 },
+              mark: { type: 'point' as const, filled: false, size: 260, strokeWidth: 2 },
               encoding: {
                 x,
                 y: { ...y, field: 'after' },
@@ -288,6 +311,78 @@ export function lobbySpec(title: string, players: readonly LobbyPlayerPoint[], t
         data: { values: [...players] },
         mark: { type: 'text' as const, fontSize: 10, baseline: 'bottom' as const, color: '#333333' },
         encoding: { x, y: { value: -6 }, text: { field: 'scale_label' } },
+      },
+    ],
+  } satisfies TopLevelSpec;
+}
+
+export interface ScaleNeededMarks {
+  readonly floor: number;
+  readonly cap: number;
+  readonly softCapAbove: number | null;
+  readonly latencyLimit: number | null;
+}
+
+/**
+ * The scale each latency needs to reach the target (dashed) against the scale
+ * the rules grant (solid), with the floor, the soft cap's threshold and the
+ * cap as horizontal lines and the eligibility limit as a vertical one: where
+ * the solid line leaves the dashed one, compensation stops short.
+ */
+export function scaleNeededSpec(title: string, points: readonly { latency: number; needed: number | null; granted: number | null }[], marks: ScaleNeededMarks): TopLevelSpec {
+  const NEEDED = 'scale needed to reach the target';
+  const GRANTED = 'scale the rules grant';
+  const long = points.flatMap((point) => [
+    ...(point.needed === null ? [] : [{ latency: point.latency, series: NEEDED, scale: point.needed }]),
+    ...(point.granted === null ? [] : [{ latency: point.latency, series: GRANTED, scale: point.granted }]),
+  ]);
+  const lines = [
+    { label: `floor ${marks.floor}`, value: marks.floor },
+    ...(marks.softCapAbove === null ? [] : [{ label: `soft cap from ${marks.softCapAbove}`, value: marks.softCapAbove }]),
+    { label: `cap ${marks.cap}`, value: marks.cap },
+  ];
+  const x = { field: 'latency', type: 'quantitative' as const, title: 'Latency (ms)' };
+  const y = { type: 'quantitative' as const, title: 'Compensation scale (×)', scale: { zero: false } };
+  const legend = { title: null, orient: 'bottom' as const, direction: 'horizontal' as const };
+  return {
+    config: CHART_CONFIG,
+    title,
+    width: 460,
+    height: 260,
+    layer: [
+      {
+        data: { values: lines },
+        mark: { type: 'rule' as const, color: '#777777', strokeWidth: 1 },
+        encoding: { y: { ...y, field: 'value' } },
+      },
+      {
+        data: { values: lines },
+        mark: { type: 'text' as const, align: 'left' as const, baseline: 'bottom' as const, dx: 4, dy: -2, fontSize: 10, color: '#444444' },
+        encoding: { x: { value: 0 }, y: { ...y, field: 'value' }, text: { field: 'label' } },
+      },
+      ...(marks.latencyLimit === null
+        ? []
+        : [
+            {
+              data: { values: [{ limit: marks.latencyLimit, label: `latency limit ${marks.latencyLimit} ms: not scaled beyond` }] },
+              mark: { type: 'rule' as const, color: OKABE_ITO.vermillion, strokeDash: [4, 3], strokeWidth: 1.5 },
+              encoding: { x: { ...x, field: 'limit' } },
+            },
+            {
+              data: { values: [{ limit: marks.latencyLimit, label: `latency limit ${marks.latencyLimit} ms` }] },
+              mark: { type: 'text' as const, align: 'right' as const, baseline: 'top' as const, dx: -4, dy: 4, fontSize: 10, color: OKABE_ITO.vermillion },
+              encoding: { x: { ...x, field: 'limit' }, y: { value: 0 }, text: { field: 'label' } },
+            },
+          ]),
+      {
+        data: { values: long },
+        mark: { type: 'line' as const, strokeWidth: 2 },
+        encoding: {
+          x,
+          y: { ...y, field: 'scale' },
+          color: { field: 'series', type: 'nominal' as const, scale: { domain: [NEEDED, GRANTED], range: [OKABE_ITO.orange, OKABE_ITO.blue] }, legend },
+          strokeDash: { field: 'series', type: 'nominal' as const, scale: { domain: [NEEDED, GRANTED], range: [[6, 3], [1, 0]] }, legend },
+        },
       },
     ],
   } satisfies TopLevelSpec;

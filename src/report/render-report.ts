@@ -12,26 +12,22 @@
  * access). Asynchronous only because Vega renders asynchronously.
  */
 import { type Issue, type Result, error, fail, ok, warning } from '../issues.js';
-import type { LobbyFile } from '../formats/lobby-types.js';
 import type { Trials } from '../formats/trials-csv.js';
 import type { CompiledModel } from '../model/compile.js';
-import { type BalanceResult, type PlayerBalance, balanceLobby } from '../solver/balance-lobby.js';
 import { type CompiledRules, defaultRules } from '../solver/rules.js';
 import type { BinSpec } from '../summary/bins.js';
 import { type Factor, type TrialsSummary, summarizeTrials } from '../summary/summarize-trials.js';
-import { twoSidedNormalPValue } from '../stats/distributions.js';
-import { type BoxGroup, type CurvePanel, boxPlotSpec, calibrationSpec, curvesSpec, lobbySpec } from './charts.js';
+import { type BoxGroup, type CurvePanel, boxPlotSpec, calibrationSpec, curvesSpec, scaleNeededSpec } from './charts.js';
+import { type ReportLobby, lobbiesSection } from './lobby-section.js';
+import { coefficientTable, fitTables } from './model-section.js';
+import { scaleNeeded } from './scale-needed.js';
 import { escapeHtml, formatGeneral, formatNumber, htmlTable } from './html.js';
 import { calibrationBins, difficultyForModel, hasCovariance, predictWithBand } from './predictions.js';
 import { MissingChartingError, loadCharting, renderChartSvg } from './render-svg.js';
 import type { SizeStudy } from '../plan/size-study-types.js';
 import { powerSpec, precisionSpec } from './size-study-charts.js';
 
-export interface ReportLobby {
-  /** Shown as the lobby's source, e.g. its file name. */
-  readonly name: string;
-  readonly lobby: LobbyFile;
-}
+export type { ReportLobby } from './lobby-section.js';
 
 export interface ReportInput {
   readonly trials: Trials;
@@ -39,7 +35,7 @@ export interface ReportInput {
   /** The model's file name, for the page. */
   readonly modelName?: string;
   readonly lobbies?: readonly ReportLobby[];
-  /** Rules for the lobbies; default `defaultRules()`. */
+  /** Rules for the lobbies: each lobby is audited against them (a verdict with every reason); without them, balanced under `defaultRules()` with no verdict. */
   readonly rules?: CompiledRules;
   /** The name of the rules file, for the page. */
   readonly rulesName?: string;
@@ -59,9 +55,6 @@ export interface Report {
   /** One entry per chart, in page order: its id and title. */
   readonly charts: readonly { readonly id: string; readonly title: string }[];
 }
-
-/** Bindings that hold a player below the target: marked in the lobby charts. */
-const HOLDING_BINDINGS = new Set(['cap', 'soft_cap', 'ratio', 'budget']);
 
 /** Number of points on each fitted curve. */
 const CURVE_POINTS = 101;
@@ -89,7 +82,13 @@ table{border-collapse:collapse;margin:8px 0 16px;font-size:.9rem}caption{text-al
 th,td{border-bottom:1px solid #e2e2e2;padding:3px 10px;text-align:left;vertical-align:top}th{background:#f4f4f4;font-weight:600}
 td.num,th.num{text-align:right;font-variant-numeric:tabular-nums}
 code{font-family:ui-monospace,SFMono-Regular,Menlo,Consolas,monospace;font-size:.88em}
-dl.fit{display:grid;grid-template-columns:max-content 1fr;gap:2px 16px;font-size:.9rem}dl.fit dt{font-weight:600}dl.fit dd{margin:0}
+details>summary{cursor:pointer;list-style-position:outside}details>summary h2{display:inline-block;border:0;margin:28px 0 8px}
+details{border-bottom:1px solid #ddd}
+.headline{border-left:4px solid #0072B2;background:#f1f7fc;padding:6px 16px;margin:16px 0}.headline p{margin:6px 0}
+nav#contents ol{columns:2;max-width:60ch}nav#contents h2{font-size:1.1rem;border:0;margin:16px 0 4px}
+.within{color:#006d4f;font-weight:600}.outside{color:#a63d00;font-weight:600}
+.outside-box{border-left:4px solid #D55E00;background:#fff6ef;padding:4px 12px;margin:8px 0}
+table.stats th{text-align:left}
 `;
 
 function factorTitle(factor: Factor): string {
@@ -119,60 +118,6 @@ function representative(summary: TrialsSummary, factor: 'scale' | 'difficulty', 
   if (group !== undefined && group.value !== null) return group.value;
   if (factor === 'scale') return condition?.mean_scale ?? 1;
   return condition?.mean_difficulty ?? 0;
-}
-
-function renderFitBlock(value: unknown, depth = 0): string {
-  if (value === null || value === undefined) return '<span class="note">none</span>';
-  if (typeof value === 'number') return escapeHtml(formatGeneral(value));
-  if (typeof value === 'string' || typeof value === 'boolean') return escapeHtml(String(value));
-  if (Array.isArray(value)) {
-    if (value.every((item) => typeof item === 'number' || typeof item === 'string')) {
-      return escapeHtml(value.map((item) => (typeof item === 'number' ? formatGeneral(item) : item)).join(', '));
-    }
-    if (depth >= 2) return `<code>${escapeHtml(JSON.stringify(value))}</code>`;
-    return `<ol>${value.map((item) => `<li>${renderFitBlock(item, depth + 1)}</li>`).join('')}</ol>`;
-  }
-  if (typeof value === 'object') {
-    if (depth >= 3) return `<code>${escapeHtml(JSON.stringify(value))}</code>`;
-    const entries = Object.entries(value as Record<string, unknown>);
-    return `<dl class="fit">${entries.map(([key, item]) => `<dt>${escapeHtml(key)}</dt><dd>${renderFitBlock(item, depth + 1)}</dd>`).join('')}</dl>`;
-  }
-  return escapeHtml(String(value));
-}
-
-function coefficientTable(model: CompiledModel): string {
-  const size = model.coefficients.length;
-  const rows = model.columns.map((column, index) => {
-    const estimate = model.coefficients[index] as number;
-    const variance = model.covariance[index * size + index] as number;
-    const standardError = Math.sqrt(Math.max(variance, 0));
-    const z = standardError > 0 ? estimate / standardError : null;
-    return [
-      column.name,
-      formatGeneral(estimate),
-      standardError > 0 ? formatGeneral(standardError) : '0',
-      z === null ? '–' : formatNumber(z, 2),
-      z === null ? '–' : twoSidedNormalPValue(z) === 0 ? '< 1e-300' : formatGeneral(twoSidedNormalPValue(z)),
-    ];
-  });
-  return htmlTable(['term', 'estimate', 'std. error', 'z', 'p (two-sided, normal)'], rows, {
-    numeric: [1, 2, 3, 4],
-    caption: `Coefficients on the ${model.link.name} scale; standard errors from the model file's covariance (${model.source.coefficients.covariance_kind}).`,
-  });
-}
-
-function lobbyTable(players: readonly PlayerBalance[]): string {
-  const rows = players.map((player) => [
-    player.id,
-    player.team ?? '–',
-    formatNumber(player.latency_estimate_ms, 1),
-    player.eligible ? formatNumber(player.scale, 3) : 'not scaled',
-    formatNumber(player.expected_before),
-    player.eligible ? formatNumber(player.expected_after) : '–',
-    player.eligible ? formatNumber(player.gap_to_target) : '–',
-    player.binding,
-  ]);
-  return htmlTable(['player', 'team', 'latency ms', 'scale', 'P(hit) before', 'P(hit) after', 'gap to target', 'held by'], rows, { numeric: [2, 3, 4, 5, 6] });
 }
 
 function issueList(issues: readonly Issue[]): string {
@@ -205,8 +150,7 @@ async function sizeStudySection(study: SizeStudy, name: string, addChart: (id: s
     study.recommended === null
       ? `<p class="warn">No size in the range meets the goal. ${escapeHtml(study.closest?.message ?? '')}.</p>`
       : `<p><strong>Recommended: ${study.recommended.participants} participants with ${study.recommended.repetitions} repetition(s) of each condition.</strong></p>`;
-  return `<section id="size-study">
-<h2>How many participants</h2>
+  return `<div id="size-study">
 <p>From <code>${escapeHtml(name)}</code>${study.label === null ? '' : ` (${escapeHtml(study.label)})`}: ${study.studies} simulated playtests per size (seed ${study.seed}), each fitted as <code>lagparity fit</code> fits a playtest (${escapeHtml(a.fitted_terms.join(', '))}; CR1 errors by player). Assumed: ${a.source === 'pilot_model' ? `the pilot model <code>${escapeHtml(a.pilot_model ?? '')}</code>` : 'entered effects'} (${escapeHtml(a.link)} link), players' skill spread ${formatGeneral(a.player_sd)} on the link scale (${a.player_sd_source === 'default' ? 'the documented default, an assumption' : a.player_sd_source === 'pilot_trials' ? "estimated from the pilot's trials" : 'from the plan'}), ${a.attempts_per_round} attempts a round. The scale needed at ${formatGeneral(a.at_latency_ms)} ms (difficulty ${escapeHtml(String(a.at_difficulty))}) to restore the hit probability at ${formatGeneral(a.reference_latency_ms)} ms is ${formatNumber(a.true_scale, 3)} under these assumptions.</p>
 ${verdict}
 <ul>${study.recommendations.map((entry) => `<li>${escapeHtml(entry.note)}</li>`).join('')}</ul>
@@ -216,7 +160,7 @@ ${figure(powerSvg, 'figure-size-power', `Share of simulated studies whose Wald t
 </div>
 ${htmlTable(['participants', 'repetitions', 'session (min)', 'latency power', 'scale power', 'unusable', 'median width', '90th pct width', 'coverage', 'goal'], rows, { numeric: [0, 1, 2, 3, 4, 5, 6, 7, 8], caption: 'Widths with their 95% Monte Carlo intervals; powers with their Monte Carlo standard errors; coverage: the share of usable studies whose 90% interval holds the assumed scale.' })}
 ${study.warnings.length > 0 ? `<div class="note">Warnings:${issueList(study.warnings)}</div>` : ''}
-</section>`;
+</div>`;
 }
 
 function figure(svg: string, id: string, caption: string): string {
@@ -308,40 +252,28 @@ export async function renderReport(input: ReportInput): Promise<Result<Report>> 
     calibrationSpec(calibration.value.map((bin) => ({ mean_predicted: bin.mean_predicted, observed: bin.observed, attempts: bin.attempts, bin: `[${bin.lower.toFixed(1)}, ${bin.upper.toFixed(1)})` }))),
   );
 
-  // Lobbies.
-  const lobbySections: string[] = [];
-  for (const [index, { name, lobby }] of (input.lobbies ?? []).entries()) {
-    const result: BalanceResult = balanceLobby(lobby, model, rules);
-    const heading = `<h3>${escapeHtml(result.match_id)} <span class="note">(${escapeHtml(name)})</span></h3>`;
-    if (result.status === 'rejected') {
-      warnings.push(...result.issues.map((issue) => warning('lobby_rejected', `${name}:${issue.location}`, issue.message)));
-      lobbySections.push(`${heading}<p class="warn">The model cannot balance this lobby:</p>${issueList(result.issues)}`);
-      continue;
-    }
-    const players = [...result.players].sort((left, right) => left.latency_estimate_ms - right.latency_estimate_ms || (left.id < right.id ? -1 : 1));
-    const points = players.map((player) => ({
-      player: player.id,
-      before: player.expected_before,
-      after: player.expected_after,
-      scale_label: player.eligible ? `×${player.scale.toFixed(2)}` : 'not scaled',
-      held_by: HOLDING_BINDINGS.has(player.binding) ? player.binding : null,
-      eligible: player.eligible,
-    }));
-    const title = `${result.match_id}: expected hit probability before and after compensation (${result.status})`;
-    const svg = await addChart(`lobby-${index + 1}`, title, lobbySpec(title, points, result.target));
-    const summary = result.summary;
-    const held = players.filter((player) => HOLDING_BINDINGS.has(player.binding));
-    lobbySections.push(
-      [
-        heading,
-        `<p>Attribute <code>${escapeHtml(result.attribute)}</code>, difficulty ${escapeHtml(String(result.difficulty))}; status <strong>${escapeHtml(result.status)}</strong>. Target P(hit) ${formatNumber(result.target)}; largest gap ${formatNumber(summary.largest_gap_before)} → ${formatNumber(summary.largest_gap_after)}; Jain's index ${formatNumber(summary.jain_before, 4)} → ${formatNumber(summary.jain_after, 4)}${summary.team_gap_before === null ? '' : `; team gap ${formatNumber(summary.team_gap_before)} → ${formatNumber(summary.team_gap_after)}`}.</p>`,
-        held.length > 0 ? `<p class="warn">Held back by a rule, still short of the target: ${held.map((player) => `${escapeHtml(player.id)} (${escapeHtml(player.binding)}, gap ${formatNumber(player.gap_to_target)})`).join(', ')}. Do not present this lobby as equal.</p>` : '',
-        figure(svg, `figure-lobby-${index + 1}`, 'Orange circles: expected hit probability at scale 1; blue diamonds: with the scale printed above the player; open red triangles: players a rule (cap, ratio or budget) holds below the target; dashed line: the target.'),
-        lobbyTable(players),
-        result.warnings.length > 0 ? `<div class="note">Warnings:${issueList(result.warnings)}</div>` : '',
-      ].join('\n'),
-    );
-  }
+  // Lobbies: audited against the rules when given.
+  const rulesName = input.rules === undefined ? null : (input.rulesName ?? 'the rules given');
+  const lobbies = await lobbiesSection(input.lobbies ?? [], model, rules, rulesName, addChart, figure);
+  warnings.push(...lobbies.warnings.map((issue) => warning(issue.code === 'outside_training_range' ? issue.code : 'lobby_warning', issue.location, issue.message)));
+
+  // Where compensation stops: the scale each latency needs against what the rules grant.
+  const difficulties = [...new Set((input.lobbies ?? []).map(({ lobby }) => lobby.difficulty))];
+  const curveDifficulty = difficulties[0] ?? (model.difficulty.kind === 'levels' ? model.difficulty.reference : (Array.isArray(model.training.difficulty) ? 0 : model.training.difficulty.min));
+  const needed = scaleNeeded(model, rules, curveDifficulty);
+  const neededSvg =
+    needed === null
+      ? null
+      : await addChart(
+          'scale-needed',
+          'Where compensation stops',
+          scaleNeededSpec(`The scale each latency needs at difficulty ${String(curveDifficulty)} (target P(hit) ${formatNumber(needed.target)})`, needed.points, {
+            floor: rules.scale_floor,
+            cap: rules.scale_cap,
+            softCapAbove: rules.soft_cap?.above ?? null,
+            latencyLimit: rules.latency_limit_ms,
+          }),
+        );
 
   // Playtest planning.
   const sizeSection = input.sizeStudy === undefined ? '' : await sizeStudySection(input.sizeStudy, input.sizeStudyName ?? 'size study', addChart);
@@ -360,11 +292,68 @@ export async function renderReport(input: ReportInput): Promise<Result<Report>> 
   const training = model.training;
   const trainingDifficulty = Array.isArray(training.difficulty) ? training.difficulty.join(', ') : `${training.difficulty.min}–${training.difficulty.max}`;
   const title = input.title ?? 'lagparity report';
-  const fitBlock = model.source.fit;
   const bandNote = band
     ? `The band is a pointwise 95% interval from the delta method on the linear predictor: se = √(x′Vx) with V the model file's covariance (${escapeHtml(model.source.coefficients.covariance_kind)}), mapped through the inverse ${escapeHtml(model.link.name)} link.`
     : `No band is drawn: the model file's covariance is all zeros (<code>covariance_kind</code> “${escapeHtml(model.source.coefficients.covariance_kind)}”), so it states no uncertainty. A fitted model file carries its covariance and gets a band.`;
 
+  const stats = (model.source.fit as { statistics?: { mcfadden_r2?: unknown } } | undefined)?.statistics;
+  const mcfadden = typeof stats?.mcfadden_r2 === 'number' ? stats.mcfadden_r2 : null;
+  const hasLobbies = (input.lobbies ?? []).length > 0;
+  const headline = [
+    `Fitted: a binomial ${escapeHtml(model.link.name)} model of hit probability on ${training.rows} rows (${training.attempts} attempts${training.players === undefined ? '' : `, ${training.players} players`}), terms ${escapeHtml(model.source.terms.join(', '))}${mcfadden === null ? '' : `; McFadden's R² ${formatNumber(mcfadden, 3)} (0.1–0.2 is usual for hit-or-miss outcomes)`}.`,
+    hasLobbies
+      ? lobbies.withinRules === null
+        ? `Lobbies: ${lobbies.lobbies}, balanced under the default rules (no rules given, so no verdicts).`
+        : `Lobbies: <strong>${lobbies.withinRules} of ${lobbies.lobbies} within rules</strong> under ${escapeHtml(rulesName ?? '')}.`
+      : 'No lobbies were given.',
+    lobbies.worst === null ? '' : `Worst residual gap after compensation: <strong>${formatNumber(lobbies.worst.gap)}</strong> of hit probability (${escapeHtml(lobbies.worst.matchId)}).`,
+  ].filter((line) => line !== '');
+  const sections: { id: string; title: string; body: string }[] = [
+    {
+      id: 'data',
+      title: 'The playtest',
+      body: `<p>Each box shows the per-round accuracy (hits / attempts of one round) in one group: the box spans Tukey's hinges with the median across it, the whiskers reach the most extreme rounds within 1.5 hinge spreads of the hinges (Tukey 1977), and rounds beyond are drawn as open circles. The filled diamond is the attempt-weighted mean accuracy (total hits / total attempts). ${escapeHtml(byLatency.round_definition.replace(/^./, (letter) => letter.toUpperCase()))}.</p>
+<div class="charts">${boxSvgs.join('\n')}</div>`,
+    },
+    {
+      id: 'model',
+      title: 'The model',
+      body: `<p>${escapeHtml(model.link.name)} link; terms <code>${escapeHtml(model.source.terms.join(', '))}</code>. Trained on latency ${training.latency_ms.min}–${training.latency_ms.max} ms, scale ${training.scale.min}–${training.scale.max}, difficulty ${escapeHtml(trainingDifficulty)}; ${training.rows} rows, ${training.attempts} attempts${training.players === undefined ? '' : `, ${training.players} players`}.</p>
+${provenanceNotes.join('\n')}
+${figure(curvesSvg, 'figure-curves', `Lines: the model's hit probability against latency at each scale of the playtest (one panel per difficulty). Dots: observed mean accuracy (hits / attempts) of each latency group × scale × difficulty cell, at the cell's mean latency. ${band ? 'Shaded: the 95% band.' : 'No band: the model has no covariance.'}`)}
+<p class="note">${bandNote}</p>
+${figure(calibrationSvg, 'figure-calibration', 'Each point is one bin of predicted probability ([0, 0.1), …, [0.9, 1]; empty bins left out): the attempt-weighted mean prediction against the observed hit rate of its rows, sized by attempts. Points on the dashed diagonal mean the model is calibrated on this data; the playtest rounds are clustered by player, so the points scatter more than binomial noise alone would make them.')}
+<h3>Coefficients</h3>
+${coefficientTable(model)}
+<h3>Fit statistics</h3>
+${fitTables(model)}
+<p class="note">Provenance: <code>${escapeHtml(provenance.file)}</code>, ${provenance.rows} rows, SHA-256 <code>${escapeHtml(provenance.sha256)}</code>${provenance.created_by ? `, created by ${escapeHtml(provenance.created_by)}` : ''}.</p>`,
+    },
+    ...(neededSvg === null
+      ? []
+      : [
+          {
+            id: 'scale-needed-section',
+            title: 'Where compensation stops',
+            body: figure(
+              neededSvg,
+              'figure-scale-needed',
+              `Dashed orange: the scale a player at each latency needs to reach the target (here the best-connected player's, at the fastest trained latency, ${model.training.latency_ms.min} ms); solid blue: the scale the rules grant a player alone (the floor, the soft cap, the cap and the step; a ratio limit or a budget can grant less in a lobby). Grey lines: the floor, where the soft cap starts, and the cap; vermillion: the latency limit, beyond which players are not scaled at all. Where the blue line leaves the orange one, compensation stops short and a gap remains.`,
+            ),
+          },
+        ]),
+    { id: 'lobbies', title: 'Lobbies', body: hasLobbies ? lobbies.html : '<p class="note">No lobbies were given (<code>--lobbies</code>).</p>' },
+    ...(sizeSection === '' ? [] : [{ id: 'size-study-section', title: 'How many participants', body: sizeSection }]),
+    {
+      id: 'method',
+      title: 'Method notes',
+      body: `<ul class="note">
+<li>Groups: ${[byLatency, byScale, byDifficulty].map((summary) => escapeHtml(Object.values(summary.groupings)[0]?.description ?? '')).join('; ')}.</li>
+<li>Quantiles: the bins' cut points are Hyndman &amp; Fan (1996) type 7 sample quantiles; the boxes use Tukey's hinges (Tukey 1977).</li>
+<li>Charts: Vega-Lite specs rendered to SVG in Node by Vega, with the Okabe &amp; Ito (2008) colour-blind-safe palette; shapes and dashes repeat what colour says.</li>
+</ul>`,
+    },
+  ];
   const html = `<!doctype html>
 <html lang="en">
 <head>
@@ -377,46 +366,16 @@ export async function renderReport(input: ReportInput): Promise<Result<Report>> 
 <body>
 <main>
 <h1>${escapeHtml(title)}</h1>
-<p class="meta">Trials <code>${escapeHtml(trials.file)}</code> (${trials.rows} rows, ${byLatency.rounds} rounds, ${byLatency.attempts} attempts); model <code>${escapeHtml(input.modelName ?? 'model')}</code>${model.source.label ? ` — ${escapeHtml(model.source.label)}` : ''}${input.lobbies && input.lobbies.length > 0 ? `; ${input.lobbies.length} lobbies under ${escapeHtml(input.rulesName ?? 'the default rules')}` : ''}.</p>
+<p class="meta">Trials <code>${escapeHtml(trials.file)}</code> (${trials.rows} rows, ${byLatency.rounds} rounds, ${byLatency.attempts} attempts); model <code>${escapeHtml(input.modelName ?? 'model')}</code>${model.source.label ? ` — ${escapeHtml(model.source.label)}` : ''}${hasLobbies ? `; ${input.lobbies?.length ?? 0} lobbies under ${escapeHtml(rulesName ?? 'the default rules')}` : ''}.</p>
+<section class="headline" id="headline">
+${headline.map((line) => `<p>${line}</p>`).join('\n')}
+</section>
 <section class="caution" id="cautions">
 <h2>Cautions</h2>
 <ul>${REPORT_CAUTIONS.map((text) => `<li>${escapeHtml(text)}</li>`).join('')}</ul>
 </section>
-
-<section id="data">
-<h2>The playtest</h2>
-<p>Each box shows the per-round accuracy (hits / attempts of one round) in one group: the box spans Tukey's hinges with the median across it, the whiskers reach the most extreme rounds within 1.5 hinge spreads of the hinges (Tukey 1977; as R's <code>boxplot.stats</code>), and rounds beyond are drawn as outliers. The diamond is the attempt-weighted mean accuracy (total hits / total attempts). ${escapeHtml(byLatency.round_definition.replace(/^./, (letter) => letter.toUpperCase()))}.</p>
-<div class="charts">${boxSvgs.join('\n')}</div>
-</section>
-
-<section id="model">
-<h2>The model</h2>
-<p>${escapeHtml(model.link.name)} link; terms <code>${escapeHtml(model.source.terms.join(', '))}</code>. Trained on latency ${training.latency_ms.min}–${training.latency_ms.max} ms, scale ${training.scale.min}–${training.scale.max}, difficulty ${escapeHtml(trainingDifficulty)}; ${training.rows} rows, ${training.attempts} attempts${training.players === undefined ? '' : `, ${training.players} players`}.</p>
-${provenanceNotes.join('\n')}
-${figure(curvesSvg, 'figure-curves', `Lines: the model's hit probability against latency at each scale of the playtest (one panel per difficulty). Dots: observed mean accuracy (hits / attempts) of each latency group × scale × difficulty cell, at the cell's mean latency. ${band ? 'Shaded: the 95% band.' : 'No band: the model has no covariance.'}`)}
-<p class="note">${bandNote}</p>
-${figure(calibrationSvg, 'figure-calibration', 'Each point is one bin of predicted probability ([0, 0.1), …, [0.9, 1]; empty bins left out): the attempt-weighted mean prediction against the observed hit rate of its rows, sized by attempts. Points on the dashed diagonal mean the model is calibrated on this data; the playtest rounds are clustered by player, so the points scatter more than binomial noise alone would make them.')}
-<h3>Coefficients</h3>
-${coefficientTable(model)}
-<h3>Fit statistics</h3>
-${fitBlock === undefined ? `<p class="note">The model file has no <code>fit</code> block: it was not written by a fit (its label says “${escapeHtml(model.source.label ?? 'no label')}”).</p>` : `<details open><summary>The model file's <code>fit</code> block, as written</summary>${renderFitBlock(fitBlock)}</details>`}
-<p class="note">Provenance: <code>${escapeHtml(provenance.file)}</code>, ${provenance.rows} rows, SHA-256 <code>${escapeHtml(provenance.sha256)}</code>${provenance.created_by ? `, created by ${escapeHtml(provenance.created_by)}` : ''}.</p>
-</section>
-
-<section id="lobbies">
-<h2>Lobbies</h2>
-${lobbySections.length === 0 ? '<p class="note">No lobbies were given (<code>--lobbies</code>).</p>' : `<p>Rules: floor ${formatGeneral(rules.scale_floor)}, cap ${formatGeneral(rules.scale_cap)}, latency limit ${rules.latency_limit_ms === null ? 'none' : `${rules.latency_limit_ms} ms`}, accepted gap ${formatGeneral(rules.accepted_gap)}.</p>\n${lobbySections.join('\n')}`}
-</section>
-
-${sizeSection}
-<section id="method">
-<h2>Method notes</h2>
-<ul class="note">
-<li>Groups: ${[byLatency, byScale, byDifficulty].map((summary) => escapeHtml(Object.values(summary.groupings)[0]?.description ?? '')).join('; ')}.</li>
-<li>Quantiles: the bins' cut points are Hyndman &amp; Fan (1996) type 7 sample quantiles; the boxes use Tukey's hinges, as R's <code>fivenum</code>.</li>
-<li>Charts: Vega-Lite specs rendered to SVG in Node by Vega, with the Okabe &amp; Ito (2008) colour-blind-safe palette; shapes and dashes repeat what colour says.</li>
-</ul>
-</section>
+<nav id="contents"><h2>Contents</h2><ol>${sections.map((section) => `<li><a href="#${section.id}">${escapeHtml(section.title)}</a></li>`).join('')}</ol></nav>
+${sections.map((section) => `<details open id="${section.id}"><summary><h2>${escapeHtml(section.title)}</h2></summary>\n${section.body}\n</details>`).join('\n')}
 </main>
 </body>
 </html>

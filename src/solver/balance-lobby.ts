@@ -64,6 +64,8 @@ export interface LobbySummary {
   readonly team_gap_after: number | null;
   readonly assistance: number;
   readonly eligible_players: number;
+  /** Players above the latency limit: reported at scale 1, never scaled. A script can act on this count: `status` says how the eligible players fared. */
+  readonly ineligible_players: number;
   /** The lowest scale the ratio forces on every eligible player (the floor without a ratio). */
   readonly lift: number;
 }
@@ -291,6 +293,7 @@ export function balanceLobby(input: LobbyFile, model: CompiledModel, rules: Comp
     team_gap_after: teams.length < 2 ? null : spread(teams, (team) => team.mean_after),
     assistance: solution.assistance,
     eligible_players: count,
+    ineligible_players: lobby.players.length - count,
     lift: solution.lift,
   };
   const result = {

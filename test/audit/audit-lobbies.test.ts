@@ -19,7 +19,7 @@ function lobby(players: { id: string; team?: string; latency_ms: number | number
 describe('auditLobby()', () => {
   it('passes a lobby every player of which reaches the target', () => {
     const audit = auditLobby(lobby([{ id: 'a', team: 'x', latency_ms: 20 }, { id: 'b', team: 'y', latency_ms: 40 }]), model, defaultRules());
-    expect(audit.verdict).toBe('pass');
+    expect(audit.verdict).toBe('within_rules');
     expect(audit.reasons).toEqual([]);
   });
 
@@ -86,7 +86,7 @@ describe('auditLobby()', () => {
 
   it('reports a lobby the model cannot solve as a failure with the reason', () => {
     const audit = auditLobby(parseLobby({ format: 'lagparity/lobby@1', match_id: 'm', attribute: 'hit_area', difficulty: 'nightmare', players: [{ id: 'a', latency_ms: 20 }] }), model, defaultRules());
-    expect(audit).toMatchObject({ verdict: 'fail', figures: null, reasons: [{ rule: 'solvable' }] });
+    expect(audit).toMatchObject({ verdict: 'outside_rules', figures: null, reasons: [{ rule: 'solvable' }] });
   });
 });
 
@@ -98,7 +98,7 @@ describe('auditLobbies()', () => {
     ];
     const report = auditLobbies(entries, model, defaultRules({ scale_cap: 1.3 }));
     expect(auditReportSchema.safeParse(report).success).toBe(true);
-    expect(report.summary).toMatchObject({ lobbies: 2, passed: 1, failed: 1, most_binding: 'cap' });
+    expect(report.summary).toMatchObject({ lobbies: 2, within_rules: 1, outside_rules: 1, most_binding: 'cap' });
     expect(report.summary.worst_first[0]?.match_id).toBe('capped');
     expect(report.summary.binding_counts.cap).toBe(2);
     expect(report.summary.failing_rules.accepted_gap).toBe(1);

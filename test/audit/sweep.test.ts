@@ -34,17 +34,28 @@ describe('sweepRule()', () => {
     let previous = -1;
     for (const row of report.rows) {
       const direct = auditLobbies(entries, compiled.value, defaultRules({ scale_cap: row.value }));
-      expect(row.passed).toBe(direct.summary.passed);
-      expect(row.share_passing ?? -1).toBeGreaterThanOrEqual(previous);
-      previous = row.share_passing ?? -1;
+      expect(row.within_rules).toBe(direct.summary.within_rules);
+      expect(row.failing_rules).toEqual(Object.fromEntries(Object.entries(direct.summary.failing_rules).filter(([, count]) => count > 0)));
+      expect(row.most_binding).toBe(direct.summary.most_binding);
+      expect(row.share_within_rules ?? -1).toBeGreaterThanOrEqual(previous);
+      previous = row.share_within_rules ?? -1;
     }
-    expect(report.rows[0]?.passed).toBeLessThan(report.rows[3]?.passed ?? 0);
+    expect(report.rows[0]?.within_rules).toBeLessThan(report.rows[3]?.within_rules ?? 0);
+    // The smallest swept value at which every lobby is within rules, from the rows themselves.
+    const passing = report.rows.filter((row) => row.within_rules === row.lobbies).map((row) => row.value);
+    expect(report.smallest_value_within_rules).toBe(passing.length === 0 ? null : Math.min(...passing));
   });
 
   it('marks a value that makes the rules contradict themselves', () => {
     const report = sweepRule(entries, compiled.value, defaultRules(), { rule: 'scale_cap', values: [0.8, 1.5] });
-    expect(report.rows[0]).toMatchObject({ valid: false, share_passing: null });
+    expect(report.rows[0]).toMatchObject({ valid: false, share_within_rules: null });
     expect(report.rows[0]?.issues[0]).toMatch(/cap >= `scale_floor`/);
     expect(report.rows[1]?.valid).toBe(true);
+  });
+
+  it('counts the players a latency limit excludes, so a gap bought by exclusion shows', () => {
+    const report = sweepRule(entries, compiled.value, defaultRules({ scale_cap: 3 }), { rule: 'latency_limit_ms', values: [100, 150, 250] });
+    expect(report.rows.map((row) => row.excluded_players)).toEqual([2, 1, 0]); // players at 120 and 180 ms, then 180, then none
+    expect(report.rows[0]?.failing_rules.latency_limit_ms).toBe(2);
   });
 });

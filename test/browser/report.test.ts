@@ -3,7 +3,7 @@
  * playwright-core (executablePath /usr/bin/chromium; no browser download).
  * Run with `npm run test:browser`.
  */
-import { existsSync, mkdirSync } from 'node:fs';
+import { existsSync, mkdirSync, readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { pathToFileURL } from 'node:url';
 import { type Browser, chromium } from 'playwright-core';
@@ -22,6 +22,8 @@ describe('the demo report in headless Chromium', () => {
   const failedRequests: string[] = [];
   const requests: string[] = [];
   let charts: { id: string; svgs: number; marks: number; width: number; height: number }[] = [];
+  /** The page's text as the browser renders it (what a reader sees), charts left out. */
+  let text = '';
 
   beforeAll(async () => {
     expect(existsSync(CHROMIUM), `${CHROMIUM} is missing: apt-get install chromium`).toBe(true);
@@ -62,6 +64,16 @@ describe('the demo report in headless Chromium', () => {
         };
       }),
     );
+    // The page's own text, without the charts' SVG text (run in the page; a string, as the test has no DOM types).
+    text = (await page.evaluate(`(() => {
+      const copy = document.body.cloneNode(true);
+      for (const svg of copy.querySelectorAll('svg')) svg.remove();
+      copy.style.position = 'absolute';
+      document.body.append(copy);
+      const rendered = copy.innerText;
+      copy.remove();
+      return rendered;
+    })()`)) as string;
     await page.screenshot({ path: SCREENSHOT, fullPage: true });
   });
 
@@ -78,6 +90,7 @@ describe('the demo report in headless Chromium', () => {
       'figure-box-difficulty',
       'figure-curves',
       'figure-calibration',
+      'figure-scale-needed',
       ...Array.from({ length: balanced }, (_, index) => `figure-lobby-${index + 1}`),
     ]);
     for (const chart of charts) {
@@ -86,6 +99,24 @@ describe('the demo report in headless Chromium', () => {
       expect(chart.width, chart.id).toBeGreaterThan(200);
       expect(chart.height, chart.id).toBeGreaterThan(150);
     }
+  });
+
+  it('shows, as rendered text, every rule of the league and every lobby with its verdict and reasons', () => {
+    const rules = JSON.parse(runCli(['audit', MATCHES, '--model', join(MATCHES, 'model.json'), '--rules', join(MATCHES, 'league-rules.json'), '--json']).stdout) as {
+      lobbies: { match_id: string; verdict: string; reasons: { message: string }[] }[];
+      summary: { lobbies: number; within_rules: number };
+    };
+    const league = JSON.parse(readFileSync(join(MATCHES, 'league-rules.json'), 'utf8')) as Record<string, unknown>;
+    for (const rule of Object.keys(league).filter((key) => key !== 'format')) expect(text).toMatch(new RegExp(`\\b${rule}\\b`));
+    // Rules the league left to their defaults are printed too (the compiled rules in full).
+    for (const rule of ['max_scale_ratio', 'assistance_budget', 'target', 'spike_fraction', 'accepted_step_gain']) expect(text).toContain(rule);
+    for (const lobby of rules.lobbies) {
+      expect(text).toContain(`${lobby.match_id}`);
+      expect(text).toMatch(new RegExp(`${lobby.match_id} \\([^)]*\\) — ${lobby.verdict === 'within_rules' ? 'within rules' : 'outside rules'}`));
+      for (const reason of lobby.reasons) expect(text).toContain(reason.message);
+    }
+    expect(text).toContain(`${rules.summary.within_rules} of ${rules.summary.lobbies} within rules`);
+    expect(text).not.toMatch(/NaN|undefined|\[object Object\]/);
   });
 
   it('logs no console error or warning', () => {

@@ -17,11 +17,13 @@ describe('lagparity fit', () => {
     expect(run.status, run.stderr).toBe(0);
     const lines = run.stdout.split('\n');
     expect(lines[0]).toBe('playtest-trials.csv: 3240 rows (per round, 64800 attempts, 36 players; 3240 after collapsing); binomial logit, grouped likelihood: converged (5 iterations)');
-    expect(lines[2]).toMatch(/^│ term\s+│\s+estimate │\s+SE │\s+z │\s+p │\s+95% interval │\s+robust SE │\s+robust 95% interval\s+│$/);
+    // Clustered: one set of errors drives z, p and the interval (the robust ones); the model SE is shown beside them.
+    expect(lines[2]).toMatch(/^│ term\s+│\s+estimate │\s+robust SE │\s+z │\s+p │\s+95% interval │\s+model SE │$/);
+    expect(run.stdout).toMatch(/^robust SE: CR1 by player \(36 clusters\), the errors the model file keeps; z, p \(two-sided, normal\) and the interval use them; model SE for comparison$/m);
     for (const name of Object.keys(GROUND_TRUTH.coefficients)) expect(run.stdout).toMatch(new RegExp(`│ ${name.replace(/[[\]]/g, '\\$&')}\\s+│`));
     expect(run.stdout).toMatch(/^deviance \d+\.\d\d on 3234 df \(null \d+\.\d\d on 3239 df\); log-likelihood -\d+\.\d\d; AIC \d+\.\d\d; BIC \d+\.\d\d$/m);
     expect(run.stdout).toMatch(/^cross-validation \(3 folds by player, seed 1\): log loss 0\.\d{4}, Brier 0\.\d{4}, calibration error 0\.\d{4}$/m);
-    expect(run.stdout).toMatch(/^likelihood-ratio tests: latency chi² [\d.]+ on 2 df, p <1e-16; scale chi² [\d.]+ on 2 df, p <1e-16; difficulty chi² [\d.]+ on 2 df, p <1e-16$/m);
+    expect(run.stdout).toMatch(/^likelihood-ratio tests: latency chi² [\d.]+ on 2 df, p < 1e-16; scale chi² [\d.]+ on 2 df, p < 1e-16; difficulty chi² [\d.]+ on 2 df, p < 1e-16$/m);
     expect(run.stderr).toBe('playtest-trials.csv:player: warning few_clusters: `cluster` by player requires at least 40 players for trustworthy robust errors, got 36; with few clusters CR1 errors are biased low (Cameron and Miller 2015)\n');
   });
 

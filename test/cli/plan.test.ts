@@ -141,9 +141,9 @@ describe('lagparity plan size', () => {
     const report = runCli(['report', '--trials', join(MATCHES, 'playtest-trials.csv'), '--model', join(MATCHES, 'model.json'), '--size-study', study, '--out', html]);
     expect(report.status, report.stderr).toBe(0);
     expect(report.stderr).toBe(''); // no chart messages either
-    expect(report.stdout).toBe(`wrote ${html} (7 charts)\n`);
+    expect(report.stdout).toBe(`wrote ${html} (8 charts)\n`);
     const page = readFileSync(html, 'utf8');
-    expect(page).toContain('<section id="size-study">');
+    expect(page).toContain('<details open id="size-study-section">');
     expect(page).toContain('id="figure-size-precision"');
     expect(page).toContain('id="figure-size-power"');
   });

@@ -6,6 +6,7 @@ import { parseLobby } from '../../src/formats/lobby.js';
 import { parseTrialsCsv } from '../../src/formats/trials-csv.js';
 import { compileModel } from '../../src/model/compile.js';
 import { compileRules } from '../../src/solver/rules.js';
+import { auditLobbies } from '../../src/audit/audit-lobbies.js';
 import { type ReportInput, REPORT_CAUTIONS, renderReport } from '../../src/report/render-report.js';
 import { MATCHES, readJson } from '../helpers/demo.js';
 
@@ -35,8 +36,8 @@ describe('renderReport() on the demo', async () => {
 
   it('has one SVG per chart: three box plots, the curves, the calibration and one per lobby', () => {
     expect(report.warnings.filter((issue) => issue.code === 'lobby_rejected')).toEqual([]);
-    expect(report.charts.map((chart) => chart.id)).toEqual(['box-latency', 'box-scale', 'box-difficulty', 'curves', 'calibration', ...lobbies.map((_, index) => `lobby-${index + 1}`)]);
-    expect(report.html.match(/<svg[\s>]/g)).toHaveLength(5 + lobbies.length);
+    expect(report.charts.map((chart) => chart.id)).toEqual(['box-latency', 'box-scale', 'box-difficulty', 'curves', 'calibration', ...lobbies.map((_, index) => `lobby-${index + 1}`), 'scale-needed']);
+    expect(report.html.match(/<svg[\s>]/g)).toHaveLength(6 + lobbies.length);
     for (const chart of report.charts) expect(report.html).toContain(`id="figure-${chart.id}"`);
   });
 
@@ -75,7 +76,49 @@ describe('renderReport() on the demo', async () => {
 
   it('marks the players a cap holds back', () => {
     expect(report.html).toContain('Held back by a rule, still short of the target: driftmoor (cap');
-    expect(report.html).toContain('held back by a rule (cap, ratio, budget)');
+    expect(report.html).toContain('held below the target by the cap');
+    // The legend names the soft cap where it binds (the open free-for-all has soft-capped players).
+    expect(report.html).toMatch(/held below the target by the soft cap/);
+  });
+
+  it('carries the audit: each lobby within or outside rules with every reason, as auditLobbies judges it', () => {
+    const audit = auditLobbies(lobbies.map(({ name, lobby }) => ({ lobby, source: name })), model, rules);
+    for (const lobby of audit.lobbies) {
+      const heading = new RegExp(`<h3 id="lobby-\\d+">${lobby.match_id} <span class="note">\\(${lobby.source.replace(/\./g, '\\.')}\\)</span> — <span class="${lobby.verdict === 'within_rules' ? 'within">within rules' : 'outside">outside rules'}</span>`);
+      expect(report.html).toMatch(heading);
+      for (const reason of lobby.reasons) expect(report.html).toContain(reason.message.replace(/"/g, '&quot;').replace(/'/g, '&#39;'));
+    }
+    expect(report.html).toContain(`${audit.summary.within_rules} of ${audit.summary.lobbies} within rules`);
+    expect(report.html).toMatch(/Worst residual gap after compensation: <strong>0\.\d{3}<\/strong>/);
+  });
+
+  it('prints every rule of the compiled rules, the soft cap and the estimator among them', () => {
+    for (const [key, value] of Object.entries(rules)) {
+      if (key === 'format') continue;
+      expect(report.html).toContain(`<td>${key}</td>`);
+      if (typeof value === 'number') expect(report.html).toMatch(new RegExp(`<td>${key}</td><td>${String(Number(value.toPrecision(4))).replace('.', '\\.')}</td>`));
+    }
+    expect(report.html).toMatch(/<td>soft_cap<\/td><td>above 1\.35, fraction 0\.5<\/td>/);
+    expect(report.html).toMatch(/<td>latency_estimator<\/td><td>percentile 10<\/td>/);
+  });
+
+  it('draws every lobby on one y-axis, and the scale each latency needs with the floor, soft cap, cap and limit', () => {
+    const axes = [...report.html.matchAll(/<figure id="figure-lobby-\d+"[\s\S]*?aria-label="(Y-axis[^"]*)"/g)].map((match) => match[1]);
+    expect(axes).toHaveLength(lobbies.length);
+    expect(new Set(axes).size).toBe(1);
+    const needed = report.html.slice(report.html.indexOf('id="figure-scale-needed"'));
+    for (const label of ['floor 1', 'soft cap from 1.35', 'cap 1.5', 'latency limit 220 ms']) expect(needed).toContain(label);
+  });
+
+  it('has a headline, a table of contents of folding sections, and names no other software in its text', () => {
+    expect(report.html).toMatch(/<section class="headline" id="headline">\n<p>Fitted: a binomial logit model/);
+    for (const id of ['data', 'model', 'scale-needed-section', 'lobbies', 'method']) {
+      expect(report.html).toContain(`<a href="#${id}">`);
+      expect(report.html).toContain(`<details open id="${id}">`);
+    }
+    const text = report.html.replace(/<svg[\s\S]*?<\/svg>/g, '');
+    expect(text).not.toMatch(/\bR's\b|boxplot\.stats|fivenum|statsmodels|\bglm\(/);
+    expect(text).not.toMatch(/NaN/);
   });
 
   it('is the same page on every call', async () => {
@@ -88,14 +131,15 @@ describe('renderReport() options', () => {
     const report = await html({ model: modelWithCovariance(), lobbies: [] });
     expect(report.html).toContain('class="mark-area');
     expect(report.html).toContain('delta method on the linear predictor');
-    expect(report.html.match(/<svg[\s>]/g)).toHaveLength(5);
+    expect(report.html.match(/<svg[\s>]/g)).toHaveLength(6);
   });
 
   it('renders the model file\'s fit block, whatever it holds', async () => {
     const fitted = unwrap(compileModel({ ...modelDocument, fit: { deviance: 3312.5, converged: true, iterations: 5, information_criteria: { aic: 3324.1 } } }, 'model.json'));
     const report = await html({ model: fitted, lobbies: [] });
-    expect(report.html).toContain('<dt>deviance</dt><dd>3313</dd>');
-    expect(report.html).toContain('<dt>aic</dt><dd>3324</dd>');
+    // Fields this report does not know are shown as written, folded away.
+    expect(report.html).toContain('<dt>deviance</dt><dd><code>3312.5</code></dd>');
+    expect(report.html).toContain('<dt>information_criteria</dt><dd><code>{&quot;aic&quot;:3324.1}</code></dd>');
   });
 
   it('says when the model was fitted on other data', async () => {

@@ -17,10 +17,10 @@ describe('lagparity report', () => {
     const run = runCli([...base, '--lobbies', join(MATCHES, 'even-5v5.lobby.json'), join(MATCHES, 'far-player-5v5.lobby.json'), '--rules', join(MATCHES, 'league-rules.json'), '--out', out]);
     expect(run.stderr).toBe('');
     expect(run.status).toBe(0);
-    expect(run.stdout).toBe(`wrote ${out} (7 charts)\n`);
+    expect(run.stdout).toBe(`wrote ${out} (8 charts)\n`);
     const html = readFileSync(out, 'utf8');
     expect(html.startsWith('<!doctype html>')).toBe(true);
-    expect(html.match(/<svg[\s>]/g)).toHaveLength(7);
+    expect(html.match(/<svg[\s>]/g)).toHaveLength(8);
     expect(html).toContain('harbourline-s3-w05-owls-stags');
     expect(html).toContain('The trials file is the one the model file names as its data');
   });

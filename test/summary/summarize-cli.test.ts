@@ -35,7 +35,7 @@ describe('lagparity summarize', () => {
       │ 40      │ elite      │      2 │        8 │    0.500 │       0.250 │       0.250 │  0.500 │       0.750 │        0.750 │        0 │
       └─────────┴────────────┴────────┴──────────┴──────────┴─────────────┴─────────────┴────────┴─────────────┴──────────────┴──────────┘
       Accuracy per round = hits / attempts; mean acc = total hits / total attempts.
-      Box: Tukey's hinges (as R's boxplot.stats), whiskers to the most extreme rounds within 1.5 hinge spreads of the hinges (Tukey 1977); outliers are the rounds beyond (counted here, listed by --json).
+      Box: Tukey's hinges, whiskers to the most extreme rounds within 1.5 hinge spreads of the hinges (Tukey 1977); outliers are the rounds beyond (counted here, listed by --json).
       Rounds: one row of the file is one round; its accuracy is hits / attempts.
       "
     `);
