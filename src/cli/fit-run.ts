@@ -23,6 +23,7 @@ export interface FitOptions {
   compare?: string;
   family: string;
   reference?: string;
+  attribute?: string;
   json?: boolean;
   force?: boolean;
   lrTests: string;
@@ -132,6 +133,9 @@ export async function runFit(path: string, options: FitOptions): Promise<number>
   }
   const compare = options.compare === undefined ? null : parseCompare(options.compare);
   if (compare !== null) issues.push(...compare.issues);
+  if (options.attribute !== undefined && options.attribute !== 'hit_area' && options.attribute !== 'timing_window') {
+    issues.push(error('invalid_option', '--attribute', `\`--attribute\` requires hit_area or timing_window, got ${show(options.attribute)}`));
+  }
   if (options.out !== undefined && options.family === 'least_squares') {
     issues.push(error('invalid_option', '--out', '`--out` requires `--family binomial` (a model file holds a binomial model), got least_squares'));
   }
@@ -199,7 +203,8 @@ export async function runFit(path: string, options: FitOptions): Promise<number>
   if (options.out !== undefined && exit === EXIT_OK) {
     // Loaded only here: the model file is checked against its zod schema, which a fit without --out does not need.
     const { toModelFile } = await import('../model/to-model-file.js');
-    const model = toModelFile(report, { file: basename(path), rows: grouped.groups.sourceRows, sha256, created_by: 'lagparity fit 0.1.0' });
+    const attribute = options.attribute as 'hit_area' | 'timing_window' | undefined;
+    const model = toModelFile(report, { file: basename(path), rows: grouped.groups.sourceRows, sha256, created_by: 'lagparity fit 0.1.0', ...(attribute === undefined ? {} : { attribute }) });
     if (!model.ok) {
       reportIssues(model.issues);
       exit = EXIT_BAD_INPUT;

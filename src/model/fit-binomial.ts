@@ -356,21 +356,24 @@ export function fitBinomial(data: BinomialData, options: BinomialFitOptions = {}
   const nullComplement = hasIntercept ? (totalWeight - totalSuccessWeight) / totalWeight : link.inverseComplement(0);
   const bernoulliLogLikelihood = state.logLikelihood;
   // At a constant fitted probability the log-likelihood needs only the weighted totals; with an offset
-  // the null model is fitted (or, without an intercept, taken at the offset alone).
-  const nullBernoulliLogLikelihood =
+  // the null model is fitted (or, without an intercept, taken at the offset alone), and only when
+  // `nullDeviance` or `mcfaddenR2` is first read: callers that need the estimates alone skip that fit.
+  let nullBernoulliLogLikelihood: number | null =
     rows.offset === null
       ? (totalSuccessWeight > 0 ? totalSuccessWeight * Math.log(nullMu) : 0) +
         (totalWeight - totalSuccessWeight > 0 ? (totalWeight - totalSuccessWeight) * Math.log(nullComplement) : 0)
-      : nullWithOffset(rows, { successes, trials, priorWeights }, link, hasIntercept ? (columns === 1 ? bernoulliLogLikelihood : 'fit') : 'none', warnings);
+      : null;
+  const nullLogLikelihood = (): number =>
+    (nullBernoulliLogLikelihood ??= nullWithOffset(rows, { successes, trials, priorWeights }, link, hasIntercept ? (columns === 1 ? bernoulliLogLikelihood : 'fit') : 'none', warnings));
   const parameterCount = columns;
   let deviance: number;
-  let nullDeviance: number;
+  let nullDevianceOf: (nullLogLikelihood: number) => number;
   let logLikelihood: number;
   let defaultObservations: number;
   let residualBase: number;
   if (likelihood === 'grouped') {
     deviance = groupedDeviance(rows, state.mu, state.complement);
-    nullDeviance = Math.max(0, 2 * (rows.saturated - nullBernoulliLogLikelihood));
+    nullDevianceOf = (value) => Math.max(0, 2 * (rows.saturated - value));
     const { total, nonInteger } = logBinomialCoefficients(successes, trials, priorWeights);
     if (nonInteger) warnings.push('non-integer successes or trials: log binomial coefficients use rounded counts, as R does');
     logLikelihood = bernoulliLogLikelihood + total;
@@ -378,7 +381,7 @@ export function fitBinomial(data: BinomialData, options: BinomialFitOptions = {}
     residualBase = n;
   } else {
     deviance = -2 * bernoulliLogLikelihood;
-    nullDeviance = -2 * nullBernoulliLogLikelihood;
+    nullDevianceOf = (value) => -2 * value;
     logLikelihood = bernoulliLogLikelihood;
     defaultObservations = totalTrials;
     residualBase = options.observationCount ?? totalTrials;
@@ -386,7 +389,6 @@ export function fitBinomial(data: BinomialData, options: BinomialFitOptions = {}
   const observationCount = options.observationCount ?? defaultObservations;
   const aic = -2 * logLikelihood + 2 * parameterCount;
   const bic = -2 * logLikelihood + Math.log(observationCount) * parameterCount;
-  const mcfaddenR2 = nullBernoulliLogLikelihood < 0 ? 1 - bernoulliLogLikelihood / nullBernoulliLogLikelihood : null;
 
   const { pearsonChiSquare, successWeight, failureWeight } = sums;
   const tjurR2 =
@@ -448,14 +450,19 @@ export function fitBinomial(data: BinomialData, options: BinomialFitOptions = {}
     pValues,
     confidenceIntervals,
     deviance,
-    nullDeviance,
+    get nullDeviance() {
+      return nullDevianceOf(nullLogLikelihood());
+    },
     dfResidual: residualBase - parameterCount,
     dfNull: residualBase - (hasIntercept ? 1 : 0),
     logLikelihood,
     aic,
     bic,
     pearsonChiSquare,
-    mcfaddenR2,
+    get mcfaddenR2() {
+      const nullValue = nullLogLikelihood();
+      return nullValue < 0 ? 1 - bernoulliLogLikelihood / nullValue : null;
+    },
     tjurR2,
     brierScore,
     fitted,
