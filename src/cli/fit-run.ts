@@ -1,15 +1,13 @@
 /** `lagparity fit`, run: fit the hit-probability model to a trials file and write the model file (options and help: `fit-command.ts`). */
-import { createHash } from 'node:crypto';
 import { basename } from 'node:path';
-import { type Issue, LagparityInputError, type Result, error, ok, show } from '../issues.js';
-import { readGroupedTrialsFile } from '../io/read-trials.js';
+import { type Issue, LagparityInputError, error, show } from '../issues.js';
 import { writeFileAtomic } from '../io/write-file.js';
-import type { GroupedTrials } from '../model/collapse.js';
 import { type FitFamily, type FitModelOptions, type FitReport, fitModel } from '../model/fit-model.js';
 import { LINK_NAMES, type LinkName } from '../model/links.js';
 import { type TermName, parseTermList } from '../model/terms.js';
 import type { Ranked } from './render-fit.js';
 import { EXIT_BAD_INPUT, EXIT_OK, reportIssues, writeOut } from './output.js';
+import { progressLine, readGrouped } from './read-grouped.js';
 
 export const FIT_RESULT_FORMAT = 'lagparity/fit-result@1';
 
@@ -70,43 +68,12 @@ export function parseCompare(text: string): { candidates: Candidate[]; issues: I
   return { candidates, issues };
 }
 
-/** A progress line on stderr, only on a terminal and only once a run has taken more than a second. */
-/** The progress line on stderr; `stage` is called only when the line is shown (formatting a count loads locale data, about 20 ms). */
-function progressLine(): { update: (stage: () => string) => void; done: () => void } {
-  const started = performance.now();
-  const tty = Boolean(process.stderr.isTTY);
-  let shown = false;
-  return {
-    update(stage) {
-      if (!tty) return;
-      const elapsed = (performance.now() - started) / 1000;
-      if (elapsed < 1) return;
-      shown = true;
-      process.stderr.write(`\r\u001b[2Klagparity fit: ${stage()} (${elapsed.toFixed(1)} s)`);
-    },
-    done() {
-      if (shown) process.stderr.write('\r\u001b[2K');
-    },
-  };
-}
-
 function integerOption(name: string, text: string, minimum: number, issues: Issue[]): number {
   const value = Number(text);
   if (!Number.isSafeInteger(value) || value < minimum) {
     issues.push(error('invalid_option', name, `\`${name}\` requires a whole number >= ${minimum}, got ${show(text)}`));
   }
   return value;
-}
-
-/** Read the trials file straight into groups for fitting, hashing its bytes in the same pass. */
-async function readGrouped(path: string, progress: ReturnType<typeof progressLine>): Promise<Result<{ grouped: GroupedTrials; sha256: string }>> {
-  const hash = createHash('sha256');
-  const read = await readGroupedTrialsFile(path, {
-    onProgress: (rows) => progress.update(() => `read ${rows.toLocaleString('en-GB')} rows`),
-    onChunk: (bytes) => hash.update(bytes),
-  });
-  if (!read.ok) return read;
-  return ok({ grouped: read.value, sha256: hash.digest('hex') }, read.warnings);
 }
 
 export async function runFit(path: string, options: FitOptions): Promise<number> {
@@ -144,7 +111,7 @@ export async function runFit(path: string, options: FitOptions): Promise<number>
     return EXIT_BAD_INPUT;
   }
 
-  const progress = progressLine();
+  const progress = progressLine('fit');
   const read = await readGrouped(path, progress);
   if (!read.ok) {
     progress.done();

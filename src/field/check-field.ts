@@ -124,7 +124,8 @@ export function checkField(input: GroupedTrials | Trials, model: CompiledModel, 
   // The reference and the worst-connected band: among eligible bands with rows, those with enough
   // players for a trustworthy interval (all of them when none has).
   const target = rules?.target ?? { kind: 'best_connected' as const };
-  const withRows = bands.filter((entry) => eligible[entry.index] && (figures[entry.index] as BandFigures).weight > 0).map((entry) => entry.index);
+  // A band of one player has no cluster-robust interval (its own coefficient absorbs its one cluster).
+  const withRows = bands.filter((entry) => eligible[entry.index] && (figures[entry.index] as BandFigures).weight > 0 && (figures[entry.index] as BandFigures).players >= 2).map((entry) => entry.index);
   const enough = withRows.filter((index) => (figures[index] as BandFigures).players >= FEW_BAND_PLAYERS);
   const comparable = enough.length >= 2 ? enough : withRows;
   const worst = comparable.length > 0 ? (comparable[comparable.length - 1] as number) : null;
@@ -140,8 +141,9 @@ export function checkField(input: GroupedTrials | Trials, model: CompiledModel, 
     warnings.push(warning('difficulty_not_standardised', `${trials.file}:difficulty`, `comparing bands at one difficulty mix requires at most ${MAX_STANDARD_DIFFICULTIES} distinct difficulties, got more; bands are compared as played`));
   }
   warnings.push(...bandWarnings(trials.file, bands, figures, rates, eligible, [referenceBand, worst]));
-  for (const index of withRows) {
-    if (comparable.includes(index) || (figures[index] as BandFigures).players >= FEW_BAND_PLAYERS) continue;
+  for (const entry of bands) {
+    const index = entry.index;
+    if (!eligible[index] || (figures[index] as BandFigures).rows === 0 || comparable.includes(index) || (figures[index] as BandFigures).players >= FEW_BAND_PLAYERS) continue;
     warnings.push(warning('band_not_compared', `${trials.file}:player`, `comparing the band ${(bands[index] as LatencyBand).label} requires at least ${FEW_BAND_PLAYERS} players, got ${(figures[index] as BandFigures).players}; the verdict compares the bands with enough players (it is still in the table)`));
   }
 
@@ -335,7 +337,9 @@ function calibrationCheck(
 
 function bandRow(entry: LatencyBand, figures: BandFigures, rates: BandRates, shape: GroupedTrials['shape'], eligible: boolean, margin: number, alpha: number, isReference: boolean): FieldBand {
   const rate = rates.rates[entry.index];
-  const gap = isReference ? null : rates.gapOf(entry.index);
+  // One player's band has no cluster-robust interval (see `withRows`).
+  const single = figures.players < 2;
+  const gap = isReference || single ? null : rates.gapOf(entry.index);
   let interval: FieldBand['gap'] = null;
   if (gap !== null) {
     const spread = gap.standardError > 0 ? twoOneSidedTests(gap.estimate, gap.standardError, { lower: -margin, upper: margin }, alpha).interval : { lower: gap.estimate, upper: gap.estimate };
@@ -357,8 +361,8 @@ function bandRow(entry: LatencyBand, figures: BandFigures, rates: BandRates, sha
     predicted_lower: figures.predictedLower,
     predicted_upper: figures.predictedUpper,
     observed: rate?.observed ?? null,
-    observed_lower: rate?.lower ?? null,
-    observed_upper: rate?.upper ?? null,
+    observed_lower: single ? null : (rate?.lower ?? null),
+    observed_upper: single ? null : (rate?.upper ?? null),
     gap: interval,
   };
 }
@@ -366,12 +370,13 @@ function bandRow(entry: LatencyBand, figures: BandFigures, rates: BandRates, sha
 /** Empty bands, bands with only hits or misses, and compared bands with few players. */
 function bandWarnings(file: string, bands: readonly LatencyBand[], figures: readonly BandFigures[], rates: BandRates, eligible: readonly boolean[], compared: readonly (number | null)[]): Issue[] {
   const warnings: Issue[] = [];
+  const empty = bands.filter((entry) => (figures[entry.index] as BandFigures).rows === 0).map((entry) => entry.label);
+  if (empty.length > 0) {
+    warnings.push(warning('empty_band', `${file}:latency_ms`, `a rate for every latency band requires rows in it, got none in ${empty.join(', ')}; ${empty.length === 1 ? 'it is' : 'they are'} left out`));
+  }
   for (const entry of bands) {
     const figure = figures[entry.index] as BandFigures;
-    if (figure.rows === 0) {
-      warnings.push(warning('empty_band', `${file}:latency_ms`, `the band ${entry.label} requires rows for a rate, got none; it is left out`));
-      continue;
-    }
+    if (figure.rows === 0) continue;
     if (!(rates.rates[entry.index]?.fitted ?? false) && rates.failure === null) {
       warnings.push(warning('band_at_boundary', `${file}:latency_ms`, `an interval for the band ${entry.label} requires both hits and misses, got ${figure.hits} hits of ${figure.weight} attempts; it has no interval`));
     }

@@ -4,6 +4,7 @@
  * its recommendation, and the caution. Plain text, the same in the JSON
  * `summary` and the table output.
  */
+import { normalCdf, normalUpperTail } from '../stats/distributions.js';
 import type { CalibrationCheck, CompensationCheck, FieldCheckReport } from './field-types.js';
 import type { LatencyBand } from './latency-bands.js';
 
@@ -27,6 +28,10 @@ function count(value: number): string {
   return Math.round(value).toLocaleString('en-GB');
 }
 
+function plural(value: number, noun: string): string {
+  return `${count(value)} ${noun}${value === 1 ? '' : 's'}`;
+}
+
 const VERDICT_WORDS: Record<CompensationCheck['verdict'], string> = {
   holds: 'Compensation holds',
   under_compensates: 'Compensation falls short (under-compensates)',
@@ -48,8 +53,17 @@ export function compensationMessage(
   if (check.gap === null || worst === undefined || worst === null) return `${head}: ${why ?? 'no gap could be estimated'}.`;
   const gap = check.gap;
   const where = `the worst-connected band (${worst.label}) hits ${percentagePoints(gap.estimate)} against ${reference}, ${Math.round(gap.level * 100)}% interval ${percentagePoints(gap.lower)} to ${percentagePoints(gap.upper)}, margin ±${(margin * 100).toFixed(1)} pp`;
-  const predicted = check.predicted_gap === null ? '' : ` The model expected ${percentagePoints(check.predicted_gap)} at the scales applied${Math.abs(check.predicted_gap) > margin ? ' (the rules held the worst-connected back)' : ''}.`;
-  const tests = check.tost === null ? '' : ` (two one-sided tests, ${pValue(check.tost.p)})`;
+  const predicted =
+    check.predicted_gap === null
+      ? ''
+      : ` The model expected ${percentagePoints(check.predicted_gap)} at the scales applied${Math.abs(check.predicted_gap) > margin ? ' (the scales were short of closing the gap even by the model: caps, the target or the lobbies held them back)' : ''}.`;
+  let tests = '';
+  if (check.tost !== null) {
+    // Beyond the margin the one-sided test that decided is the one to quote; otherwise the TOST's larger p.
+    if (check.verdict === 'under_compensates') tests = ` (beyond the margin: one-sided test, ${pValue(normalCdf(check.tost.z_lower))})`;
+    else if (check.verdict === 'over_compensates') tests = ` (beyond the margin: one-sided test, ${pValue(normalUpperTail(check.tost.z_upper))})`;
+    else tests = ` (two one-sided tests, ${pValue(check.tost.p)})`;
+  }
   let needed = '';
   if (check.data_needed !== null) {
     const data = check.data_needed;
@@ -94,10 +108,10 @@ export function summaryLines(report: FieldCheckReport): string[] {
   const unit = data.shape === 'per_round' ? `${count(data.rows)} rounds, ` : '';
   const lines = [
     report.compensation.message,
-    `This rests on the live data seen: ${count(data.players)} players, ${unit}${count(data.attempts)} attempts (${data.file}), latencies ${data.latency_ms.min}-${data.latency_ms.max} ms.`,
+    `This rests on the live data seen: ${plural(data.players, 'player')}, ${unit}${count(data.attempts)} attempts (${data.file}), latencies ${data.latency_ms.min}-${data.latency_ms.max} ms.`,
     data.control.players === 0
       ? 'Control: every player had a scale above 1 at some point; there is no uncompensated group to compare with.'
-      : `Control: ${count(data.control.players)} players never had a scale above 1 (${count(data.control.attempts)} attempts); they are the uncompensated comparison, and ${count(data.compensated.players)} players were compensated at some point.`,
+      : `Control: ${plural(data.control.players, 'player')} never had a scale above 1 (${count(data.control.attempts)} attempts); they are the uncompensated comparison, and ${plural(data.compensated.players, 'player')} ${data.compensated.players === 1 ? 'was' : 'were'} compensated at some point.`,
     `Model: ${report.calibration.reason}`,
   ];
   if (report.calibration.recommendation === 'refit' && report.calibration.commands !== null) {

@@ -11,6 +11,8 @@ import { rulesFileSchema, RULES_FORMAT } from './rules-file.js';
 import { TRIALS_FORMAT } from './trials-csv.js';
 import { trialRowSchema } from './trials-schema.js';
 import { AUDIT_FORMAT, auditReportSchema, sweepReportSchema } from '../audit/audit-schema.js';
+import { fieldCheckReportSchema } from '../field/field-schema.js';
+import { FIELD_CHECK_FORMAT } from '../field/field-types.js';
 
 export const SCHEMA_FILES = {
   'lobby.schema.json': { schema: lobbyFileSchema, title: LOBBY_FORMAT, description: 'One match: players and their measured latencies.' },
@@ -19,5 +21,6 @@ export const SCHEMA_FILES = {
   'rules.schema.json': { schema: rulesFileSchema, title: RULES_FORMAT, description: 'The limits a league sets on compensation.' },
   'audit-result.schema.json': { schema: auditReportSchema, title: AUDIT_FORMAT, description: 'The output of `lagparity audit --json`.' },
   'audit-sweep.schema.json': { schema: sweepReportSchema, title: 'lagparity/audit-sweep@1', description: 'The output of `lagparity audit --sweep ... --json`.' },
+  'field-check.schema.json': { schema: fieldCheckReportSchema, title: FIELD_CHECK_FORMAT, description: 'The output of `lagparity field-check --json`.' },
   'trials-row.schema.json': { schema: trialRowSchema, title: `${TRIALS_FORMAT} row`, description: 'One CSV row of trials data, with its fields read as numbers.' },
 } as const;
