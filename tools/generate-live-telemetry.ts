@@ -13,7 +13,7 @@ import { readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { compileModel } from '../src/model/compile.js';
 import { compileRules } from '../src/solver/rules.js';
-import { GROUND_TRUTH, HANDLES } from './demo-scenario.js';
+import { GROUND_TRUTH, HANDLES, groundTruthPredictor } from './demo-scenario.js';
 import { simulateSeason } from './simulate-season.js';
 
 const folder = process.argv[2] ?? 'matches';
@@ -22,17 +22,6 @@ const rules = compileRules(JSON.parse(readFileSync(join(folder, 'league-rules.js
 if (!model.ok || !rules.ok) throw new Error('matches/model.json and matches/league-rules.json must exist and be valid (run npm run demo:generate and lagparity fit first)');
 
 const levels = GROUND_TRUTH.difficultyLevels;
-const coefficients = GROUND_TRUTH.coefficients;
-const truth = (latency: number, scale: number, difficulty: string) => {
-  const logScale = Math.log(scale);
-  return (
-    (coefficients.intercept ?? 0) +
-    (coefficients.latency ?? 0) * latency +
-    (coefficients.log_scale ?? 0) * logScale +
-    (difficulty === 'standard' ? 0 : (coefficients[`difficulty[${difficulty}]`] ?? 0)) +
-    (coefficients.latency_x_log_scale ?? 0) * latency * logScale
-  );
-};
 const season = simulateSeason({
   players: 240,
   matchDays: 12,
@@ -44,7 +33,7 @@ const season = simulateSeason({
   difficulties: levels,
   model: model.value,
   rules: rules.value,
-  truth,
+  truth: groundTruthPredictor,
   seed: 20270301,
   id: (index) => `${HANDLES[index % HANDLES.length] as string}-${Math.floor(index / HANDLES.length) + 1}`,
 });
