@@ -13,7 +13,9 @@
  *   const lobby = safeParseLobby(payload);        // per untrusted payload
  *   const result = balanceLobby(lobby.value, model.value, rules.value);
  * and to choose among candidates and keep the scales right in play:
- * rankLobbies, chooseServer, MatchSession (README, "Use as a module").
+ * rankLobbies, chooseServer, MatchSession (README, "Use as a module"); and
+ * after a season, checkField: did the scales equalise live play, and is the
+ * model still right?
  */
 export { AUDIT_CAUTION, auditLobbies, auditLobby } from './audit/audit-lobbies.js';
 export { AUDIT_FORMAT } from './audit/audit-types.js';
@@ -21,11 +23,14 @@ export { balanceLobby } from './solver/balance-lobby.js';
 export { boxStats, fiveNumber } from './stats/box-stats.js';
 export { chooseServer, lobbyOnServer } from './solver/choose-server.js';
 export { chiSquareUpperTail, normalCdf, normalDensity, normalQuantile, normalUpperTail, twoSidedNormalPValue } from './stats/distributions.js';
+export { checkField, DEFAULT_FIELD_MARGIN, FIELD_CAUTION } from './field/check-field.js';
 export { compileModel } from './model/compile.js';
 export { compileRules, defaultRules } from './solver/rules.js';
 export { createRandomSource, standardNormalDraw } from './random.js';
+export { DEFAULT_BAND_CUTS } from './field/latency-bands.js';
 export { DEFAULT_TERMS, TERM_NAMES, parseTermList } from './model/terms.js';
 export { duelOutcome, duelWinProbability } from './stats/duel.js';
+export { FIELD_CHECK_FORMAT } from './field/field-types.js';
 export { fitBinomial } from './model/fit-binomial.js';
 export { fitLeastSquares } from './model/fit-least-squares.js';
 export { FIT_REPORT_FORMAT, fitModel } from './model/fit-model.js';
@@ -61,6 +66,7 @@ export type { Binding } from './solver/solve-scales.js';
 export type { BinomialData, BinomialFit, BinomialFitOptions } from './model/fit-binomial.js';
 export type { BoxStats, BoxStatsOptions, FiveNumber } from './stats/box-stats.js';
 export type { BulkSolveResult } from './solver/solve-scales-into.js';
+export type { CalibrationCheck, CompensationCheck, FieldBand, FieldCheckReport, FieldRecommendation, FieldVerdict } from './field/field-types.js';
 export type { CollapsedTrials, GroupedTrials } from './model/collapse.js';
 export type { CompiledModel, PredictorLine } from './model/compile.js';
 export type { CompiledRules } from './solver/rules.js';
@@ -68,6 +74,7 @@ export type { DesignMatrix } from './numeric/design-matrix.js';
 export type { DuelOutcome, VolleyOrder } from './stats/duel.js';
 export type { DuelPair, DuelView } from './solver/views/duel-view.js';
 export type { ExploitView, PlayerExploit } from './solver/views/exploit-view.js';
+export type { FieldCheckOptions } from './field/check-field.js';
 export type { FitModelOptions, FitReport } from './model/fit-model.js';
 export type { Issue, IssueSeverity, Result } from './issues.js';
 export type { LeastSquaresData, LeastSquaresFit } from './model/fit-least-squares.js';

@@ -4,6 +4,7 @@ import { basename } from 'node:path';
 import { readTrialsFile } from '../io/read-trials.js';
 import { writeFileAtomic } from '../io/write-file.js';
 import { parseBinSpec } from '../summary/bins.js';
+import { checkTelemetry, parseFieldSettings } from './field-inputs.js';
 import { loadLobbies, loadModel, loadRules } from './inputs.js';
 import { EXIT_BAD_INPUT, EXIT_OK, reportIssues, writeOut } from './output.js';
 
@@ -15,10 +16,18 @@ export interface ReportOptions {
   out: string;
   force?: boolean;
   latencyBins: string;
+  live?: string;
+  liveMargin: string;
+  liveBands: string;
 }
 
 export async function runReport(options: ReportOptions): Promise<number> {
   const bins = parseBinSpec(options.latencyBins, '--latency-bins');
+  const liveSettings = parseFieldSettings(options.liveMargin, options.liveBands, '--live-margin', '--live-bands');
+  if (!liveSettings.ok) {
+    reportIssues(liveSettings.issues);
+    return EXIT_BAD_INPUT;
+  }
   // The digest is taken from the same bytes the reader parses: one read of the file.
   const hash = createHash('sha256');
   const [trials, model, rules, lobbies] = await Promise.all([
@@ -33,6 +42,17 @@ export async function runReport(options: ReportOptions): Promise<number> {
     return EXIT_BAD_INPUT;
   }
   reportIssues(trials.warnings);
+  // The field check of live telemetry, when asked for: its bad input stops the report before anything is written.
+  let field;
+  if (options.live !== undefined) {
+    const checked = await checkTelemetry(options.live, options.model, model.value, options.rules === undefined ? null : rules.value, liveSettings.value, undefined);
+    if (!checked.ok) {
+      reportIssues(checked.issues);
+      return EXIT_BAD_INPUT;
+    }
+    reportIssues(checked.warnings);
+    field = checked.value;
+  }
   // Loaded here, not at start-up: the charting library takes about half a second to import,
   // which every other command would otherwise pay.
   const { renderReport } = await import('../report/render-report.js');
@@ -45,6 +65,7 @@ export async function runReport(options: ReportOptions): Promise<number> {
     rulesName: options.rules === undefined ? 'the default rules' : basename(options.rules),
     trialsSha256: hash.digest('hex'),
     latencyBins: bins.value,
+    ...(field === undefined ? {} : { field }),
   });
   if (!report.ok) {
     reportIssues(report.issues);

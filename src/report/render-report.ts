@@ -20,7 +20,9 @@ import { type CompiledRules, defaultRules } from '../solver/rules.js';
 import type { BinSpec } from '../summary/bins.js';
 import { type Factor, type TrialsSummary, summarizeTrials } from '../summary/summarize-trials.js';
 import { twoSidedNormalPValue } from '../stats/distributions.js';
-import { type BoxGroup, type CurvePanel, boxPlotSpec, calibrationSpec, curvesSpec, lobbySpec } from './charts.js';
+import type { FieldCheckReport } from '../field/field-types.js';
+import { type BoxGroup, type CurvePanel, boxPlotSpec, calibrationSpec, curvesSpec, fieldBandsSpec, lobbySpec } from './charts.js';
+import { fieldBandPoints, fieldSection } from './field-section.js';
 import { escapeHtml, formatGeneral, formatNumber, htmlTable } from './html.js';
 import { calibrationBins, difficultyForModel, hasCovariance, predictWithBand } from './predictions.js';
 import { MissingChartingError, loadCharting, renderChartSvg } from './render-svg.js';
@@ -45,6 +47,8 @@ export interface ReportInput {
   readonly trialsSha256?: string;
   /** Latency groups for the box plots and observed means; default `auto`. */
   readonly latencyBins?: BinSpec;
+  /** A field check of live telemetry (`checkField`): adds the section on live play. */
+  readonly field?: FieldCheckReport;
   readonly title?: string;
 }
 
@@ -82,7 +86,7 @@ figure{margin:16px 0;overflow-x:auto}figcaption{color:#444;font-size:.9rem;max-w
 table{border-collapse:collapse;margin:8px 0 16px;font-size:.9rem}caption{text-align:left;color:#444;padding-bottom:4px}
 th,td{border-bottom:1px solid #e2e2e2;padding:3px 10px;text-align:left;vertical-align:top}th{background:#f4f4f4;font-weight:600}
 td.num,th.num{text-align:right;font-variant-numeric:tabular-nums}
-code{font-family:ui-monospace,SFMono-Regular,Menlo,Consolas,monospace;font-size:.88em}
+code{font-family:ui-monospace,SFMono-Regular,Menlo,Consolas,monospace;font-size:.88em}pre{white-space:pre-wrap;overflow-wrap:anywhere}
 dl.fit{display:grid;grid-template-columns:max-content 1fr;gap:2px 16px;font-size:.9rem}dl.fit dt{font-weight:600}dl.fit dd{margin:0}
 `;
 
@@ -297,6 +301,14 @@ export async function renderReport(input: ReportInput): Promise<Result<Report>> 
     );
   }
 
+  // Live play (the field check), when given.
+  let liveSection = '';
+  if (input.field !== undefined) {
+    const field = input.field;
+    const order = field.bands.filter((band) => band.observed !== null).map((band) => band.label);
+    liveSection = fieldSection(field, await addChart('live', 'Live play by latency band', fieldBandsSpec(fieldBandPoints(field), order)));
+  }
+
   // Provenance.
   const provenance = model.source.provenance;
   const provenanceNotes: string[] = [];
@@ -359,6 +371,7 @@ ${fitBlock === undefined ? `<p class="note">The model file has no <code>fit</cod
 ${lobbySections.length === 0 ? '<p class="note">No lobbies were given (<code>--lobbies</code>).</p>' : `<p>Rules: floor ${formatGeneral(rules.scale_floor)}, cap ${formatGeneral(rules.scale_cap)}, latency limit ${rules.latency_limit_ms === null ? 'none' : `${rules.latency_limit_ms} ms`}, accepted gap ${formatGeneral(rules.accepted_gap)}.</p>\n${lobbySections.join('\n')}`}
 </section>
 
+${liveSection}
 <section id="method">
 <h2>Method notes</h2>
 <ul class="note">
