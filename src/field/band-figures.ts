@@ -24,6 +24,8 @@ export interface BandFigures {
   readonly players: number;
   readonly controlPlayers: number;
   readonly meanScale: number | null;
+  /** Attempt-weighted mean latency of the band's rows (ms). */
+  readonly meanLatency: number | null;
   readonly predictedBefore: number | null;
   readonly predicted: number | null;
   readonly predictedLower: number | null;
@@ -48,6 +50,7 @@ export function bandFigures(
   const weight = new Float64Array(bandCount);
   const hits = new Float64Array(bandCount);
   const scale = new Float64Array(bandCount);
+  const latency = new Float64Array(bandCount);
   const before = new Float64Array(bandCount);
   const after = new Float64Array(bandCount);
   const gradient = new Float64Array(bandCount * k);
@@ -61,6 +64,7 @@ export function bandFigures(
     weight[b] = (weight[b] as number) + w;
     hits[b] = (hits[b] as number) + (data.weight[i] as number) * (data.successes[i] as number);
     scale[b] = (scale[b] as number) + w * (data.scale[i] as number);
+    latency[b] = (latency[b] as number) + w * (data.latency[i] as number);
     before[b] = (before[b] as number) + w * (live.predictedBefore[i] as number);
     after[b] = (after[b] as number) + w * (live.predicted[i] as number);
     playerSets[b]?.add(player[i] as number);
@@ -76,7 +80,7 @@ export function bandFigures(
     let controlPlayers = 0;
     for (const code of players) if (live.compensatedPlayer[code] === 0) controlPlayers += 1;
     const base = { rows: rows[b] as number, attempts: attempts[b] as number, weight: total, hits: hits[b] as number, players: players.size, controlPlayers };
-    if (!(total > 0)) return { ...base, meanScale: null, predictedBefore: null, predicted: null, predictedLower: null, predictedUpper: null };
+    if (!(total > 0)) return { ...base, meanScale: null, meanLatency: null, predictedBefore: null, predicted: null, predictedLower: null, predictedUpper: null };
     const predicted = (after[b] as number) / total;
     let variance = 0;
     if (design !== null) {
@@ -90,6 +94,7 @@ export function bandFigures(
     return {
       ...base,
       meanScale: (scale[b] as number) / total,
+      meanLatency: (latency[b] as number) / total,
       predictedBefore: (before[b] as number) / total,
       predicted,
       predictedLower: design === null ? null : Math.max(0, predicted - spread),

@@ -64,6 +64,8 @@ export interface BandRates {
   readonly predictedAtMix: readonly (number | null)[];
   /** Why the fit failed, when it did (then no band has an interval). */
   readonly failure: string | null;
+  /** The fitted bands' departures from the model (gamma_b, log-odds) and their CR1 covariance, row-major; null without a fit. */
+  readonly departures: { readonly bands: readonly number[]; readonly estimates: Float64Array; readonly covariance: Float64Array } | null;
 }
 
 /**
@@ -99,6 +101,7 @@ export function bandRates(
     gapOf: () => null,
     predictedAtMix,
     failure,
+    departures: null,
   });
   if (fittedBands.length === 0) return unfitted('no band has both hits and misses');
 
@@ -158,7 +161,7 @@ export function bandRates(
       2 * derivative(j) * derivative(r) * (covariance[j * k + r] as number);
     return { estimate: value - referenceValue, standardError: Math.sqrt(Math.max(variance, 0)) };
   };
-  return { rates, gapOf, predictedAtMix, failure: null };
+  return { rates, gapOf, predictedAtMix, failure: null, departures: { bands: fittedBands, estimates: fit.coefficients, covariance } };
 }
 
 /**

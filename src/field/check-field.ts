@@ -62,7 +62,7 @@ import {
 import { DEFAULT_BAND_CUTS, type LatencyBand, bandOf, checkBandCuts, latencyBands, withCut } from './latency-bands.js';
 import { type LiveRows, MAX_STANDARD_DIFFICULTIES, joinLiveRows, rangeWarnings, totalOf } from './live-rows.js';
 import { refitTest } from './refit-test.js';
-import { residualLatencyEffect } from './residual-latency.js';
+import { residualLatencyTrend } from './residual-latency.js';
 import { twoOneSidedTests } from './two-one-sided-tests.js';
 import { extent } from '../stats/extent.js';
 
@@ -115,7 +115,8 @@ export function checkField(input: GroupedTrials | Trials, model: CompiledModel, 
   const limit = rules?.latency_limit_ms ?? null;
   const bandCuts = withCut(cuts, limit);
   const bands = latencyBands(bandCuts);
-  const band = Int32Array.from(data.latency, (latency) => bandOf(latency, bandCuts));
+  const band = new Int32Array(data.rows);
+  for (let i = 0; i < data.rows; i += 1) band[i] = bandOf(data.latency[i] as number, bandCuts);
   const design = buildDesign(data, model.source.terms, model.difficulty);
   const figures = bandFigures(data, band, bands.length, live, model, design.matrix);
   const rows = fieldRows(data, trials.shape);
@@ -253,11 +254,10 @@ interface CompensationInputs {
 function compensationCheck(inputs: CompensationInputs): CompensationCheck {
   const { trials, live, rates, reference, worst, margin, alpha } = inputs;
   const referenceBand = 'band' in reference ? inputs.referenceBand : null;
-  const residual = residualLatencyEffect(fieldRows(live.data, trials.shape), live.offset, live.data.latency);
   const base = {
     reference_band: referenceBand,
     worst_band: worst,
-    residual_latency_per_100ms: residual.ok ? residual.value : null,
+    residual_latency_per_100ms: residualLatencyTrend(rates.departures, (b) => inputs.figures[b]?.meanLatency ?? null),
   };
   const predictedOf = (b: number | null) => (b === null ? null : (rates.predictedAtMix[b] ?? null));
   const predictedWorst = predictedOf(worst);

@@ -35,6 +35,13 @@ export function fieldRows(data: CollapsedTrials, shape: 'per_attempt' | 'per_rou
   };
 }
 
+/**
+ * The field fits stop once a step is at most this many standard errors (the fit's own default is
+ * 1e-10): a Newton step that small leaves the next iterate within about its square of the maximum,
+ * so nothing reported moves, and each fit saves its last pass over the rows.
+ */
+const FIELD_TOLERANCE = 1e-7;
+
 export type FieldFit =
   | { readonly ok: true; readonly fit: BinomialFitEstimated }
   | { readonly ok: false; readonly reason: string; /** Columns the data cannot estimate, on a rank-deficient design. */ readonly aliased?: readonly string[] };
@@ -58,6 +65,7 @@ export function fitField(
       likelihood: 'bernoulli',
       ...(rows.observationCount === null ? {} : { observationCount: rows.observationCount }),
       link: options.link ?? 'logit',
+      tolerance: FIELD_TOLERANCE,
       ...(options.start === undefined ? {} : { start: options.start }),
     },
   );

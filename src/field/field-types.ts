@@ -86,7 +86,7 @@ export interface CompensationCheck {
   /** The same gap as the model predicted it at the scales applied (what caps, the target and the lobbies left). */
   predicted_gap: number | null;
   tost: TostFigures | null;
-  /** Log-odds per 100 ms beyond what the model predicted at the applied scales (offset fit), 95%, CR1. */
+  /** Log-odds per 100 ms beyond what the model predicted at the applied scales: the trend of the bands' departures (GLS), 95%, CR1. */
   residual_latency_per_100ms: FieldEstimate | null;
   data_needed: DataNeeded | null;
   message: string;

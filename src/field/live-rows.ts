@@ -61,12 +61,15 @@ export function joinLiveRows(trials: GroupedTrials, model: CompiledModel): Resul
   const linearPredictor = new Float64Array(n);
   const link = model.link;
   const atOne = scaleTermValue(model.scaleForm, 1);
+  // The scale as it enters the model (a logarithm per row), once for every use below.
+  const scaleTerm = new Float64Array(n);
+  for (let i = 0; i < n; i += 1) scaleTerm[i] = scaleTermValue(model.scaleForm, data.scale[i] as number);
   for (let i = 0; i < n; i += 1) {
     const line = lines.value(i);
     const latency = data.latency[i] as number;
     const intercept = line.base + line.basePerMs * latency;
     const slope = line.scaleSlope + line.scaleSlopePerMs * latency;
-    const eta = intercept + slope * scaleTermValue(model.scaleForm, data.scale[i] as number);
+    const eta = intercept + slope * (scaleTerm[i] as number);
     const mu = link.inverse(eta);
     linearPredictor[i] = eta;
     predicted[i] = mu;
@@ -76,7 +79,7 @@ export function joinLiveRows(trials: GroupedTrials, model: CompiledModel): Resul
   const compensatedPlayer = new Uint8Array(players.length);
   const codes = groups.player;
   for (let i = 0; i < n; i += 1) if ((data.scale[i] as number) > 1) compensatedPlayer[codes[i] as number] = 1;
-  const byDifficulty = offsetsByDifficulty(data, model);
+  const byDifficulty = offsetsByDifficulty(data, model, scaleTerm);
   return ok({ data, players, predicted, predictedBefore, linearPredictor, offset, compensatedPlayer, byDifficulty });
 }
 
@@ -85,7 +88,7 @@ export function joinLiveRows(trials: GroupedTrials, model: CompiledModel): Resul
  * and each row's offset (logit of the model's prediction) at its latency and scale as if played at
  * each of them.
  */
-function offsetsByDifficulty(data: CollapsedTrials, model: CompiledModel): LiveRows['byDifficulty'] {
+function offsetsByDifficulty(data: CollapsedTrials, model: CompiledModel, scaleTerm: Float64Array): LiveRows['byDifficulty'] {
   const shares = new Map<number, number>();
   let total = 0;
   for (let i = 0; i < data.rows; i += 1) {
@@ -103,7 +106,7 @@ function offsetsByDifficulty(data: CollapsedTrials, model: CompiledModel): LiveR
     const { base, basePerMs, scaleSlope, scaleSlopePerMs } = line.value;
     for (let i = 0; i < data.rows; i += 1) {
       const latency = data.latency[i] as number;
-      values[i] = logitOfPrediction(model, base + basePerMs * latency + (scaleSlope + scaleSlopePerMs * latency) * scaleTermValue(model.scaleForm, data.scale[i] as number));
+      values[i] = logitOfPrediction(model, base + basePerMs * latency + (scaleSlope + scaleSlopePerMs * latency) * (scaleTerm[i] as number));
     }
     return values;
   });

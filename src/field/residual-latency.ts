@@ -1,26 +1,55 @@
 /**
- * The residual latency effect: how the live log-odds of a hit move with
- * latency beyond what the model predicted at the scales applied,
+ * The residual latency effect: how live log-odds of a hit move with latency
+ * beyond what the model predicted at the scales applied, as the trend of the
+ * bands' departures from the model (band-rates.ts: logit P(hit) = q + gamma_b,
+ * q the logit of the prediction, an offset) against the bands' mean latency,
  *
- *     logit P(hit) = q + a + c L,   q = logit of the model's prediction (offset),
+ *     gamma_b = a + c Lbar_b,
  *
- * reported as c x 100 (log-odds per 100 ms) with a 95% cluster-robust
- * interval. c = 0 when the model's latency effect is right at the scales
- * played; c < 0 when high latency costs more than the model says (the scales
- * fall short), c > 0 when it costs less (they overshoot).
- *
- * Cost: one fit of two columns.
+ * fitted by generalised least squares with the departures' CR1 covariance V
+ * (c = [(X' V^-1 X)^-1 X' V^-1 gamma]_2, Var c = [(X' V^-1 X)^-1]_22: the
+ * minimum-distance estimator of a linear trend from the band estimates, e.g.
+ * Newey, W. K. and McFadden, D. (1994), Large sample estimation and
+ * hypothesis testing, *Handbook of Econometrics* IV, §5.2), reported as
+ * c x 100: log-odds per 100 ms, with a 95% interval. c = 0 when the model's
+ * latency effect is right at the scales played; c < 0 when high latency costs
+ * more than the model says (the scales fall short), c > 0 when it costs less.
+ * It takes no pass over the rows. Null with fewer than two fitted bands.
  */
+import { choleskySolve } from '../numeric/cholesky.js';
+import type { BandRates } from './band-rates.js';
 import type { FieldEstimate } from './field-types.js';
-import { type FieldRows, fitField, robustError, twoSidedCritical } from './field-fit.js';
-import { designMatrixFromColumns, interceptColumn } from '../numeric/design-matrix.js';
+import { twoSidedCritical } from './field-fit.js';
 
-export function residualLatencyEffect(rows: FieldRows, offset: Float64Array, latency: Float64Array): { ok: true; value: FieldEstimate } | { ok: false; reason: string } {
-  const design = designMatrixFromColumns([interceptColumn(offset.length), { name: 'latency_ms', values: latency }]);
-  const result = fitField(rows, design, { offset, start: [0, 0] });
-  if (!result.ok) return result;
-  const estimate = 100 * (result.fit.coefficients[1] as number);
-  const standardError = 100 * robustError(result.fit, 1);
+export function residualLatencyTrend(departures: BandRates['departures'], meanLatency: (band: number) => number | null): FieldEstimate | null {
+  if (departures === null) return null;
+  const k = departures.bands.length;
+  if (k < 2) return null;
+  const latency = departures.bands.map((band) => meanLatency(band) ?? Number.NaN);
+  if (!latency.every(Number.isFinite)) return null;
+  // V^-1 X, column by column (X = [1, Lbar]).
+  const inverseOnes = choleskySolve(departures.covariance, new Float64Array(k).fill(1));
+  const inverseLatency = choleskySolve(departures.covariance, latency);
+  if (inverseOnes === null || inverseLatency === null) return null;
+  let a11 = 0;
+  let a12 = 0;
+  let a22 = 0;
+  let b1 = 0;
+  let b2 = 0;
+  for (let j = 0; j < k; j += 1) {
+    const gamma = departures.estimates[j] as number;
+    a11 += inverseOnes[j] as number;
+    a12 += (latency[j] as number) * (inverseOnes[j] as number);
+    a22 += (latency[j] as number) * (inverseLatency[j] as number);
+    b1 += gamma * (inverseOnes[j] as number);
+    b2 += gamma * (inverseLatency[j] as number);
+  }
+  const determinant = a11 * a22 - a12 * a12;
+  if (!(determinant > 0)) return null;
+  const slope = (a11 * b2 - a12 * b1) / determinant;
+  const variance = a11 / determinant;
+  const estimate = 100 * slope;
+  const standardError = 100 * Math.sqrt(variance);
   const critical = twoSidedCritical(0.95);
-  return { ok: true, value: { estimate, std_error: standardError, lower: estimate - critical * standardError, upper: estimate + critical * standardError, level: 0.95 } };
+  return { estimate, std_error: standardError, lower: estimate - critical * standardError, upper: estimate + critical * standardError, level: 0.95 };
 }

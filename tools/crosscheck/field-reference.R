@@ -173,6 +173,14 @@ for (k in seq_along(levels_present)[-1]) {
   add("rounds", "bands", "gap_at_mix", levels_present[k], std_rate[k] - std_rate[1])
   add("rounds", "bands", "gap_at_mix_se_CR1", levels_present[k], sqrt(drop(t(grad) %*% VB %*% grad)))
 }
+## The residual latency trend: generalised least squares of the band coefficients on the bands'
+## attempt-weighted mean latency, with their CR1 covariance (by hand in R).
+mean_latency <- sapply(levels_present, function(b) { i <- live$band == b; sum(live$attempts[i] * live$latency_ms[i]) / sum(live$attempts[i]) })
+Xt <- cbind(1, mean_latency)
+A <- t(Xt) %*% solve(VB) %*% Xt
+trend <- solve(A, t(Xt) %*% solve(VB) %*% gamma)
+add("rounds", "bands", "trend_per_100ms", "", 100 * trend[2])
+add("rounds", "bands", "trend_se_per_100ms", "", 100 * sqrt(solve(A)[2, 2]))
 
 ## Refit of the model's terms and the likelihood-ratio test against beta0.
 refit <- at_mle(glm(y ~ latency_ms + log(scale) + difficulty + latency_ms:log(scale), family = binomial, data = live, control = tight))
