@@ -26,10 +26,10 @@ import { once } from 'node:events';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { compileModel } from '../../src/model/compile.js';
-import { createRandomSource } from '../../src/random.js';
 import { compileRules } from '../../src/solver/rules.js';
 import { groundTruthPredictor, GROUND_TRUTH } from '../demo-scenario.js';
 import { simulateSeason } from '../simulate-season.js';
+import { calibrationLoop } from './gauge.js';
 
 const root = join(import.meta.dirname, '..', '..');
 const cli = join(root, 'dist', 'bin', 'lagparity.js');
@@ -40,13 +40,6 @@ const keep = args.includes('--keep');
 const ROWS = 1_000_000;
 const PLAYERS = 2_000;
 
-function calibration(): number {
-  const started = performance.now();
-  let sum = 0;
-  for (let i = 0; i < 300_000_000; i += 1) sum += i & 7;
-  if (sum < 0) process.stdout.write('');
-  return performance.now() - started;
-}
 
 const model = compileModel(JSON.parse(readFileSync(join(root, 'matches', 'model.json'), 'utf8')));
 const rules = compileRules(JSON.parse(readFileSync(join(root, 'matches', 'league-rules.json'), 'utf8')));
@@ -70,7 +63,6 @@ async function generate(path: string, shotsPerRound: number, seed: number): Prom
     seed,
     id: (index) => `player-${String(index + 1).padStart(4, '0')}`,
   });
-  const random = createRandomSource(seed + 1);
   const out = createWriteStream(path);
   out.write('player,latency_ms,scale,difficulty,hit\n');
   let chunk = '';
@@ -85,7 +77,6 @@ async function generate(path: string, shotsPerRound: number, seed: number): Prom
   }
   out.end(chunk);
   await once(out, 'finish');
-  if (random() < 0) process.stdout.write('');
 }
 
 interface Measured {
@@ -128,7 +119,7 @@ for (const [shape, shots, seed] of [['per-round latency', 20, 20270601], ['per-s
   const generationStart = performance.now();
   await generate(file, shots, seed);
   process.stdout.write(`${shape}: generated ${ROWS.toLocaleString('en-GB')} rows of ${PLAYERS.toLocaleString('en-GB')} players (${(statSync(file).size / 2 ** 20).toFixed(1)} MiB) in ${((performance.now() - generationStart) / 1000).toFixed(1)} s\n`);
-  process.stdout.write(`calibration loop: ${calibration().toFixed(0)} ms (about 170 ms on a quiet minute of the reference machine)\n`);
+  process.stdout.write(`calibration loop: ${calibrationLoop().toFixed(0)} ms (about 170 ms on a quiet minute of the reference machine)\n`);
   const commands = {
     'fit (one fit with SEs, CR1 by player)': ['fit', file, '--folds', '0', '--lr-tests', 'none', '--no-baseline'],
     'fit (one fit with SEs, --cluster none)': ['fit', file, '--folds', '0', '--lr-tests', 'none', '--no-baseline', '--cluster', 'none'],
