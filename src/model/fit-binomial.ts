@@ -249,10 +249,13 @@ export function fitBinomial(data: BinomialData, options: BinomialFitOptions = {}
   // The first IRLS pass (at R's starting values, weights n mu (1 - mu) > 0 on every row) already
   // reduces the design; its rank is the design's rank, so no separate pass is needed then.
   // Many logit rows start instead from a fit to a systematic sample of them (one full pass fewer);
-  // should the weights there lose rank, R's starting values decide.
+  // should the weights there lose rank, R's starting values decide. A given start's first pass
+  // serves too while it keeps full rank (else the rank is checked unweighted, and the iteration
+  // meets the lost rank itself, as before).
   const warmStart = options.start === undefined && linkName === 'logit' && n >= WARM_START_ROWS ? sampleEstimate(kept, successes, trials, priorWeights, rows.offset, options, exponents) : null;
-  let initial = options.start === undefined ? initialPass(kept, rows, link, exponents, warmStart) : null;
-  if (warmStart !== null && initial !== null && initial.reduction.qr.rank < columns) initial = initialPass(kept, rows, link, exponents, null);
+  let initial: InitialPass | null = initialPass(kept, rows, link, exponents, options.start === undefined ? warmStart : Float64Array.from(options.start));
+  if (options.start !== undefined && initial.reduction.qr.rank < columns) initial = null;
+  else if (warmStart !== null && initial.reduction.qr.rank < columns) initial = initialPass(kept, rows, link, exponents, null);
   const start = options.start ?? initial?.start;
   const structural = initial?.reduction.qr ?? reduceWeightedRows(kept, null, null, exponents).qr;
   if (structural.rank < columns) {
