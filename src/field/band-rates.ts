@@ -28,9 +28,10 @@
  * (players in both bands handled by the fit's joint covariance). Against a
  * fixed target T the gap is s_b - T.
  *
- * Bands with no rows, or whose hits are all or none of their attempts (the
- * estimate would be infinite), are left out of the fit and reported without
- * an interval.
+ * Bands with no rows, of one player (whose one cluster its own coefficient
+ * absorbs: no cluster-robust variance), or whose hits are all or none of
+ * their attempts (the estimate would be infinite) are left out of the fit and
+ * reported without an interval.
  *
  * Cost: one fit of one column per band (each row one non-zero), then one pass.
  */
@@ -79,6 +80,7 @@ export function bandRates(
   bandCount: number,
   reference: { readonly band: number } | { readonly probability: number },
   mix: DifficultyMix,
+  players: (band: number) => number,
 ): BandRates {
   const n = offset.length;
   const weight = new Float64Array(bandCount);
@@ -91,7 +93,7 @@ export function bandRates(
   }
   const observed = Array.from({ length: bandCount }, (_, b) => ((weight[b] as number) > 0 ? (hits[b] as number) / (weight[b] as number) : null));
   const fittedBands: number[] = [];
-  for (let b = 0; b < bandCount; b += 1) if ((hits[b] as number) > 0 && (hits[b] as number) < (weight[b] as number)) fittedBands.push(b);
+  for (let b = 0; b < bandCount; b += 1) if ((hits[b] as number) > 0 && (hits[b] as number) < (weight[b] as number) && players(b) >= 2) fittedBands.push(b);
   const column = new Int32Array(bandCount).fill(-1);
   fittedBands.forEach((b, j) => (column[b] = j));
   const atMix = (gamma: (b: number) => number) => mixRates(rows, offset, band, bandCount, weight, mix, gamma);

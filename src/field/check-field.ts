@@ -137,7 +137,7 @@ export function checkField(input: GroupedTrials | Trials, model: CompiledModel, 
     else warnings.push(warning('reference_band_empty', `${trials.file}:latency_ms`, `the rules' reference latency ${target.latency_ms} ms requires rows in its band ${(bands[wanted] as LatencyBand).label}, got none; the best-connected band with rows is the reference instead`));
   }
   const reference = target.kind === 'fixed' ? { probability: target.probability } : { band: referenceBand ?? 0 };
-  const rates = bandRates(rows, live.offset, band, bands.length, reference, live.byDifficulty);
+  const rates = bandRates(rows, live.offset, band, bands.length, reference, live.byDifficulty, (b) => (figures[b] as BandFigures).players);
   if (live.byDifficulty === null) {
     warnings.push(warning('difficulty_not_standardised', `${trials.file}:difficulty`, `comparing bands at one difficulty mix requires at most ${MAX_STANDARD_DIFFICULTIES} distinct difficulties, got more; bands are compared as played`));
   }
@@ -257,7 +257,7 @@ function compensationCheck(inputs: CompensationInputs): CompensationCheck {
   const base = {
     reference_band: referenceBand,
     worst_band: worst,
-    residual_latency_per_100ms: residualLatencyTrend(rates.departures, (b) => inputs.figures[b]?.meanLatency ?? null),
+    residual_latency_per_100ms: residualLatencyTrend(rates.departures, (b) => inputs.figures[b]?.meanLatency ?? null, (b) => inputs.figures[b]?.players ?? 0),
   };
   const predictedOf = (b: number | null) => (b === null ? null : (rates.predictedAtMix[b] ?? null));
   const predictedWorst = predictedOf(worst);
@@ -377,7 +377,7 @@ function bandWarnings(file: string, bands: readonly LatencyBand[], figures: read
   for (const entry of bands) {
     const figure = figures[entry.index] as BandFigures;
     if (figure.rows === 0) continue;
-    if (!(rates.rates[entry.index]?.fitted ?? false) && rates.failure === null) {
+    if (!(rates.rates[entry.index]?.fitted ?? false) && rates.failure === null && figure.players >= 2) {
       warnings.push(warning('band_at_boundary', `${file}:latency_ms`, `an interval for the band ${entry.label} requires both hits and misses, got ${figure.hits} hits of ${figure.weight} attempts; it has no interval`));
     }
     if (compared.includes(entry.index) && eligible[entry.index] && figure.players < FEW_BAND_PLAYERS) {

@@ -14,15 +14,22 @@
  * c x 100: log-odds per 100 ms, with a 95% interval. c = 0 when the model's
  * latency effect is right at the scales played; c < 0 when high latency costs
  * more than the model says (the scales fall short), c > 0 when it costs less.
- * It takes no pass over the rows. Null with fewer than two fitted bands.
+ * It takes no pass over the rows. The bands are those with at least
+ * {@link TREND_PLAYERS} players (a band's CR1 variance from a few clusters is
+ * unreliable, and generalised least squares would trust it most), all fitted
+ * bands when fewer than two have that many. Null with fewer than two bands.
  */
 import { choleskySolve } from '../numeric/cholesky.js';
 import type { BandRates } from './band-rates.js';
 import type { FieldEstimate } from './field-types.js';
 import { twoSidedCritical } from './field-fit.js';
 
-export function residualLatencyTrend(departures: BandRates['departures'], meanLatency: (band: number) => number | null): FieldEstimate | null {
-  if (departures === null) return null;
+/** Players a band needs to enter the trend (as to be compared, check-field.ts). */
+export const TREND_PLAYERS = 10;
+
+export function residualLatencyTrend(all: BandRates['departures'], meanLatency: (band: number) => number | null, players: (band: number) => number): FieldEstimate | null {
+  if (all === null) return null;
+  const departures = trendBands(all, players);
   const k = departures.bands.length;
   if (k < 2) return null;
   const latency = departures.bands.map((band) => meanLatency(band) ?? Number.NaN);
@@ -52,4 +59,15 @@ export function residualLatencyTrend(departures: BandRates['departures'], meanLa
   const standardError = 100 * Math.sqrt(variance);
   const critical = twoSidedCritical(0.95);
   return { estimate, std_error: standardError, lower: estimate - critical * standardError, upper: estimate + critical * standardError, level: 0.95 };
+}
+
+/** The departures of the bands with at least TREND_PLAYERS players (all of them when fewer than two have), with their covariance. */
+function trendBands(all: NonNullable<BandRates['departures']>, players: (band: number) => number): NonNullable<BandRates['departures']> {
+  const size = all.bands.length;
+  const keep = all.bands.map((band, j) => ({ band, j })).filter(({ band }) => players(band) >= TREND_PLAYERS);
+  if (keep.length < 2 || keep.length === size) return all;
+  const k = keep.length;
+  const covariance = new Float64Array(k * k);
+  keep.forEach((row, a) => keep.forEach((column, b) => (covariance[a * k + b] = all.covariance[row.j * size + column.j] as number)));
+  return { bands: keep.map(({ band }) => band), estimates: Float64Array.from(keep, ({ j }) => all.estimates[j] as number), covariance };
 }

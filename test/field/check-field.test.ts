@@ -105,6 +105,20 @@ describe('checkField()', () => {
     expect(report.compensation.worst_band).toBe(3);
   });
 
+  it('gives a band of one player no interval and keeps it out of the fit and the residual trend', () => {
+    // One round of p01 alone above 250 ms (a regression: its one cluster once made the trend degenerate).
+    const text = editedLive((fields, index) => (index === 0 ? [fields[0] as string, '260', ...fields.slice(2)] : fields));
+    const report = checkField(trialsOf(text), model, { bands: [40, 80, 120, 160, 200, 250] });
+    if (!report.ok) throw new Error('not checked');
+    const lonely = report.value.bands.at(-1);
+    expect(lonely?.players).toBe(1);
+    expect(lonely?.observed_lower).toBeNull();
+    expect(lonely?.gap).toBeNull();
+    const trend = report.value.compensation.residual_latency_per_100ms;
+    expect(trend?.std_error).toBeGreaterThan(0.01);
+    expect(report.value.warnings.map((issue) => issue.code)).toContain('band_not_compared');
+  });
+
   it('says how much data a verdict would need when it cannot tell', async () => {
     const report = await fixtureReport('live-rounds.csv', { margin: 0.17 });
     expect(report.verdict).toBe('not_enough_data');

@@ -173,12 +173,15 @@ for (k in seq_along(levels_present)[-1]) {
   add("rounds", "bands", "gap_at_mix", levels_present[k], std_rate[k] - std_rate[1])
   add("rounds", "bands", "gap_at_mix_se_CR1", levels_present[k], sqrt(drop(t(grad) %*% VB %*% grad)))
 }
-## The residual latency trend: generalised least squares of the band coefficients on the bands'
-## attempt-weighted mean latency, with their CR1 covariance (by hand in R).
+## The residual latency trend: generalised least squares of the coefficients of the bands with at
+## least 10 players on the bands' attempt-weighted mean latency, with their CR1 covariance (by hand).
 mean_latency <- sapply(levels_present, function(b) { i <- live$band == b; sum(live$attempts[i] * live$latency_ms[i]) / sum(live$attempts[i]) })
-Xt <- cbind(1, mean_latency)
-A <- t(Xt) %*% solve(VB) %*% Xt
-trend <- solve(A, t(Xt) %*% solve(VB) %*% gamma)
+band_players <- sapply(levels_present, function(b) length(unique(live$player[live$band == b])))
+use <- band_players >= 10
+Xt <- cbind(1, mean_latency[use])
+Vu <- VB[use, use]
+A <- t(Xt) %*% solve(Vu) %*% Xt
+trend <- solve(A, t(Xt) %*% solve(Vu) %*% gamma[use])
 add("rounds", "bands", "trend_per_100ms", "", 100 * trend[2])
 add("rounds", "bands", "trend_se_per_100ms", "", 100 * sqrt(solve(A)[2, 2]))
 
