@@ -16,7 +16,8 @@
  * rankLobbies, chooseServer, MatchSession (README, "Use as a module").
  * Before a playtest: parsePlan, buildSchedule, scheduleCsv, williamsDesign
  * (the size study's simulations run on worker threads and are the CLI's,
- * `lagparity plan size`, never loaded from here).
+ * `lagparity plan size`, never loaded from here). After a season,
+ * checkField: did the scales equalise live play, and is the model still right?
  */
 export { AUDIT_CAUTION, auditLobbies, auditLobby } from './audit/audit-lobbies.js';
 export { AUDIT_FORMAT } from './audit/audit-types.js';
@@ -25,11 +26,14 @@ export { boxStats, fiveNumber } from './stats/box-stats.js';
 export { buildSchedule, SCHEDULE_FORMAT } from './plan/build-schedule.js';
 export { chooseServer, lobbyOnServer } from './solver/choose-server.js';
 export { chiSquareUpperTail, normalCdf, normalDensity, normalQuantile, normalUpperTail, twoSidedNormalPValue } from './stats/distributions.js';
+export { checkField, DEFAULT_FIELD_MARGIN, FIELD_CAUTION } from './field/check-field.js';
 export { compileModel } from './model/compile.js';
 export { compileRules, defaultRules } from './solver/rules.js';
 export { createRandomSource, standardNormalDraw } from './random.js';
+export { DEFAULT_BAND_CUTS } from './field/latency-bands.js';
 export { DEFAULT_TERMS, TERM_NAMES, parseTermList } from './model/terms.js';
 export { duelOutcome, duelWinProbability } from './stats/duel.js';
+export { FIELD_CHECK_FORMAT } from './field/field-types.js';
 export { fitBinomial } from './model/fit-binomial.js';
 export { fitLeastSquares } from './model/fit-least-squares.js';
 export { FIT_REPORT_FORMAT, fitModel } from './model/fit-model.js';
@@ -69,6 +73,7 @@ export type { Binding } from './solver/solve-scales.js';
 export type { BinomialData, BinomialFit, BinomialFitOptions } from './model/fit-binomial.js';
 export type { BoxStats, BoxStatsOptions, FiveNumber } from './stats/box-stats.js';
 export type { BulkSolveResult } from './solver/solve-scales-into.js';
+export type { CalibrationCheck, CompensationCheck, FieldBand, FieldCheckReport, FieldRecommendation, FieldVerdict } from './field/field-types.js';
 export type { CollapsedTrials, GroupedTrials } from './model/collapse.js';
 export type { CompiledModel, PredictorLine } from './model/compile.js';
 export type { CompiledRules } from './solver/rules.js';
@@ -76,6 +81,7 @@ export type { DesignMatrix } from './numeric/design-matrix.js';
 export type { DuelOutcome, VolleyOrder } from './stats/duel.js';
 export type { DuelPair, DuelView } from './solver/views/duel-view.js';
 export type { ExploitView, PlayerExploit } from './solver/views/exploit-view.js';
+export type { FieldCheckOptions } from './field/check-field.js';
 export type { FitModelOptions, FitReport } from './model/fit-model.js';
 export type { Issue, IssueSeverity, Result } from './issues.js';
 export type { LeastSquaresData, LeastSquaresFit } from './model/fit-least-squares.js';

@@ -25,6 +25,19 @@ export const GROUND_TRUTH = {
   playerSkillSd: 0.15,
 };
 
+/** The ground truth's linear predictor (logit) of an average player, without the skill offset. */
+export function groundTruthPredictor(latency: number, scale: number, difficulty: string): number {
+  const coefficients = GROUND_TRUTH.coefficients;
+  const logScale = Math.log(scale);
+  return (
+    (coefficients.intercept ?? 0) +
+    (coefficients.latency ?? 0) * latency +
+    (coefficients.log_scale ?? 0) * logScale +
+    (difficulty === 'standard' ? 0 : (coefficients[`difficulty[${difficulty}]`] ?? 0)) +
+    (coefficients.latency_x_log_scale ?? 0) * latency * logScale
+  );
+}
+
 export const TEAMS = ['Saltmarsh Herons', 'Copperline Foxes', 'Glasswater Owls', 'Ironreed Stags'] as const;
 
 export const HANDLES = [

@@ -12,7 +12,7 @@ import { createHash } from 'node:crypto';
 import { writeFileSync, mkdirSync } from 'node:fs';
 import { join } from 'node:path';
 import { createRandomSource, standardNormalDraw } from '../src/random.js';
-import { GROUND_TRUTH, HANDLES, TEAMS } from './demo-scenario.js';
+import { GROUND_TRUTH, HANDLES, TEAMS, groundTruthPredictor } from './demo-scenario.js';
 
 const out = process.argv[2] ?? 'matches';
 mkdirSync(out, { recursive: true });
@@ -40,14 +40,7 @@ for (let tester = 0; tester < 36; tester += 1) {
     for (const scale of scales) {
       for (const difficulty of GROUND_TRUTH.difficultyLevels) {
         const latency = Math.round((home + added + 4 * Math.abs(standardNormalDraw(random))) * 10) / 10;
-        const logScale = Math.log(scale);
-        const predictor =
-          (coefficients.intercept ?? 0) +
-          (coefficients.latency ?? 0) * latency +
-          (coefficients.log_scale ?? 0) * logScale +
-          (difficulty === 'standard' ? 0 : coefficients[`difficulty[${difficulty}]`] ?? 0) +
-          (coefficients.latency_x_log_scale ?? 0) * latency * logScale +
-          skill;
+        const predictor = groundTruthPredictor(latency, scale, difficulty) + skill;
         const hits = binomialDraw(20, logistic(predictor));
         lines.push(`${id},${latency},${scale},${difficulty},${hits},20`);
       }

@@ -16,6 +16,7 @@ export function registerFit(program: Command): void {
     .option('--lr-tests <which>', 'likelihood-ratio test per factor (one refit each): all or none', 'all')
     .option('--no-baseline', 'skip the least-squares baseline on accuracy (reported as null)')
     .option('--reference <level>', 'reference difficulty level (default: the first level in the file)')
+    .option('--attribute <kind>', 'what the scale multiplied in these trials, hit_area or timing_window; recorded in the model file (the field check compares it)')
     .option('--compare <specs>', 'rank candidates by held-out log loss: MODEL[:TERMS] separated by ";", MODEL one of logit, probit, cloglog, least_squares')
     .option('--family <name>', 'binomial, or least_squares (OLS on per-round accuracy; a baseline, not written as a model)', 'binomial')
     .option('--json', 'write the whole result as one JSON document (lagparity/fit-result@1) to stdout')

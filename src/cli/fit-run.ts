@@ -1,16 +1,14 @@
 /** `lagparity fit`, run: fit the hit-probability model to a trials file and write the model file (options and help: `fit-command.ts`). */
-import { createHash } from 'node:crypto';
 import { basename } from 'node:path';
-import { type Issue, LagparityInputError, type Result, error, ok, show } from '../issues.js';
-import { readGroupedTrialsFile } from '../io/read-trials.js';
+import { type Issue, LagparityInputError, error, show } from '../issues.js';
 import { writeFileAtomic } from '../io/write-file.js';
-import type { GroupedTrials } from '../model/collapse.js';
 import { type FitFamily, type FitModelOptions, type FitReport, fitModel } from '../model/fit-model.js';
 import { LINK_NAMES, type LinkName } from '../model/links.js';
 import { type TermName, parseTermList } from '../model/terms.js';
 import type { Ranked } from './render-fit.js';
 import { EXIT_BAD_INPUT, EXIT_OK, reportIssues, writeOut } from './output.js';
-import { type ProgressLine, progressLine } from './progress.js';
+import { progressLine } from './progress.js';
+import { readGrouped } from './read-grouped.js';
 
 export const FIT_RESULT_FORMAT = 'lagparity/fit-result@1';
 
@@ -24,6 +22,7 @@ export interface FitOptions {
   compare?: string;
   family: string;
   reference?: string;
+  attribute?: string;
   json?: boolean;
   force?: boolean;
   lrTests: string;
@@ -78,17 +77,6 @@ function integerOption(name: string, text: string, minimum: number, issues: Issu
   return value;
 }
 
-/** Read the trials file straight into groups for fitting, hashing its bytes in the same pass. */
-async function readGrouped(path: string, progress: ProgressLine): Promise<Result<{ grouped: GroupedTrials; sha256: string }>> {
-  const hash = createHash('sha256');
-  const read = await readGroupedTrialsFile(path, {
-    onProgress: (rows) => progress.update(() => `read ${rows.toLocaleString('en-GB')} rows`),
-    onChunk: (bytes) => hash.update(bytes),
-  });
-  if (!read.ok) return read;
-  return ok({ grouped: read.value, sha256: hash.digest('hex') }, read.warnings);
-}
-
 export async function runFit(path: string, options: FitOptions): Promise<number> {
   const issues: Issue[] = [];
   if (!(LINK_NAMES as readonly string[]).includes(options.link)) {
@@ -113,6 +101,9 @@ export async function runFit(path: string, options: FitOptions): Promise<number>
   }
   const compare = options.compare === undefined ? null : parseCompare(options.compare);
   if (compare !== null) issues.push(...compare.issues);
+  if (options.attribute !== undefined && options.attribute !== 'hit_area' && options.attribute !== 'timing_window') {
+    issues.push(error('invalid_option', '--attribute', `\`--attribute\` requires hit_area or timing_window, got ${show(options.attribute)}`));
+  }
   if (options.out !== undefined && options.family === 'least_squares') {
     issues.push(error('invalid_option', '--out', '`--out` requires `--family binomial` (a model file holds a binomial model), got least_squares'));
   }
@@ -180,7 +171,8 @@ export async function runFit(path: string, options: FitOptions): Promise<number>
   if (options.out !== undefined && exit === EXIT_OK) {
     // Loaded only here: the model file is checked against its zod schema, which a fit without --out does not need.
     const { toModelFile } = await import('../model/to-model-file.js');
-    const model = toModelFile(report, { file: basename(path), rows: grouped.groups.sourceRows, sha256, created_by: 'lagparity fit 0.1.0' });
+    const attribute = options.attribute as 'hit_area' | 'timing_window' | undefined;
+    const model = toModelFile(report, { file: basename(path), rows: grouped.groups.sourceRows, sha256, created_by: 'lagparity fit 0.1.0', ...(attribute === undefined ? {} : { attribute }) });
     if (!model.ok) {
       reportIssues(model.issues);
       exit = EXIT_BAD_INPUT;

@@ -4,6 +4,7 @@ import { Command, CommanderError } from 'commander';
 import { registerAudit } from './audit-command.js';
 import { registerBalance } from './balance-command.js';
 import { registerChooseServer } from './choose-server-command.js';
+import { registerFieldCheck } from './field-check-command.js';
 import { registerFit } from './fit-command.js';
 import { registerPlan } from './plan-command.js';
 import { registerReplay } from './replay-command.js';
@@ -21,7 +22,7 @@ program
   .version('0.1.0')
   .exitOverride()
   .configureOutput({ writeErr: (text) => process.stderr.write(escapeControlCharacters(text)), writeOut: (text) => process.stdout.write(escapeControlCharacters(text)) })
-  .addHelpText('after', '\nExit codes: 0 success; 1 a check failed (audit, replay); 2 bad input.');
+  .addHelpText('after', '\nExit codes: 0 success; 1 a check failed (audit, replay, field-check); 2 bad input.');
 
 // Options and help only: each command's action imports its run code (`X-run.ts`) when it runs,
 // so a command loads what it needs and nothing else; errors from there reach the catch below.
@@ -31,6 +32,7 @@ registerFit(program);
 registerPlan(program);
 registerAudit(program);
 registerSummarize(program);
+registerFieldCheck(program);
 registerReport(program);
 registerReplay(program);
 registerServe(program);

@@ -14,6 +14,9 @@ export function registerReport(program: Command): void {
     .requiredOption('--out <file>', 'the HTML file to write')
     .option('--force', 'replace the output file if it exists')
     .option('--latency-bins <spec>', 'latency groups: auto, levels, quantile:K, width:W (ms) or edges:a,b,... (as for summarize)', 'auto')
+    .option('--live <file>', 'live telemetry (trials with a player column and the applied scales): adds the field check by latency band (as lagparity field-check)')
+    .option('--live-margin <gap>', 'the field check\'s margin in hit probability', '0.02')
+    .option('--live-bands <cuts>', 'the field check\'s latency band cut points in ms', '40,80,120,160,200')
     .addHelpText(
       'after',
       `
@@ -21,11 +24,13 @@ The page needs no network: charts are inline SVG, with no scripts and no web fon
 The file is written to a temporary file beside the target and renamed into place; an existing
 file is kept unless --force.
 
-Example:
+Examples:
   lagparity report --trials matches/playtest-trials.csv --model matches/model.json \\
     --lobbies matches --rules matches/league-rules.json --out report.html
   lagparity plan size matches/preseason-playtest.plan.json --pilot-model matches/model.json --out size.json
   lagparity report --trials matches/playtest-trials.csv --model matches/model.json --size-study size.json --out plan.html
+  lagparity report --trials matches/playtest-trials.csv --model matches/model.json \\
+    --rules matches/league-rules.json --live matches/live-telemetry.csv --out season.html
 
 Exit codes: 0 written; 2 bad input, or the output exists without --force.`,
     )

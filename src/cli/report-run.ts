@@ -8,6 +8,7 @@ import { safeParseSizeStudy } from '../plan/size-study-schema.js';
 import type { SizeStudy } from '../plan/size-study-types.js';
 import { writeFileAtomic } from '../io/write-file.js';
 import { parseBinSpec } from '../summary/bins.js';
+import { checkTelemetry, parseFieldSettings } from './field-inputs.js';
 import { loadLobbies, loadModel, loadRules } from './inputs.js';
 import { EXIT_BAD_INPUT, EXIT_OK, reportIssues, writeOut } from './output.js';
 
@@ -20,6 +21,9 @@ export interface ReportOptions {
   force?: boolean;
   latencyBins: string;
   sizeStudy?: string;
+  live?: string;
+  liveMargin: string;
+  liveBands: string;
 }
 
 async function loadSizeStudy(path: string): Promise<Result<SizeStudy>> {
@@ -30,6 +34,11 @@ async function loadSizeStudy(path: string): Promise<Result<SizeStudy>> {
 
 export async function runReport(options: ReportOptions): Promise<number> {
   const bins = parseBinSpec(options.latencyBins, '--latency-bins');
+  const liveSettings = parseFieldSettings(options.liveMargin, options.liveBands, '--live-margin', '--live-bands');
+  if (!liveSettings.ok) {
+    reportIssues(liveSettings.issues);
+    return EXIT_BAD_INPUT;
+  }
   // The digest is taken from the same bytes the reader parses: one read of the file.
   const hash = createHash('sha256');
   const [trials, model, rules, lobbies, sizeStudy] = await Promise.all([
@@ -45,6 +54,17 @@ export async function runReport(options: ReportOptions): Promise<number> {
     return EXIT_BAD_INPUT;
   }
   reportIssues(trials.warnings);
+  // The field check of live telemetry, when asked for: its bad input stops the report before anything is written.
+  let field;
+  if (options.live !== undefined) {
+    const checked = await checkTelemetry(options.live, options.model, model.value, options.rules === undefined ? null : rules.value, liveSettings.value, undefined);
+    if (!checked.ok) {
+      reportIssues(checked.issues);
+      return EXIT_BAD_INPUT;
+    }
+    reportIssues(checked.warnings);
+    field = checked.value;
+  }
   // Loaded here, not at start-up: the charting library takes about half a second to import,
   // which every other command would otherwise pay.
   const { renderReport } = await import('../report/render-report.js');
@@ -58,6 +78,7 @@ export async function runReport(options: ReportOptions): Promise<number> {
     trialsSha256: hash.digest('hex'),
     latencyBins: bins.value,
     ...(sizeStudy?.ok ? { sizeStudy: sizeStudy.value, sizeStudyName: basename(options.sizeStudy ?? '') } : {}),
+    ...(field === undefined ? {} : { field }),
   });
   if (!report.ok) {
     reportIssues(report.issues);

@@ -38,6 +38,10 @@ export const modelFileSchema = z
   .object({
     format: z.literal(MODEL_FORMAT, { error: `the format tag "${MODEL_FORMAT}" (a string)` }),
     label: z.string().max(500).optional().describe('Free text: what this model is, e.g. "fit of the demo playtest".'),
+    attribute: z
+      .enum(['hit_area', 'timing_window'])
+      .optional()
+      .describe('What the scale multiplied in the data the model was fitted on (a lobby\'s `attribute`); the field check refuses live data that scaled the other.'),
     family: z.literal('binomial').describe('The response family. Hit probability models are binomial.'),
     link: z.enum(['logit', 'probit', 'cloglog']),
     terms: z.array(z.enum(TERM_NAMES)).min(1).describe('Terms in coefficient order; see docs/formats.md.'),

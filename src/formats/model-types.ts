@@ -15,6 +15,7 @@ export type DifficultyCoding = { kind: 'numeric' } | { kind: 'levels'; levels: s
 export interface ModelFile {
   format: 'lagparity/model@1';
   label?: string | undefined;
+  attribute?: 'hit_area' | 'timing_window' | undefined;
   family: 'binomial';
   link: 'logit' | 'probit' | 'cloglog';
   terms: TermName[];

@@ -48,6 +48,13 @@
  * inverse expected information, as R `sandwich` does for a glm; Liang & Zeger
  * (1986), Cameron & Miller (2015); see `numeric/cluster-sandwich.ts`.
  *
+ * Offset (when `offset` is given): a known term added to every row's linear
+ * predictor, eta = offset + X b, as R's `glm(..., offset = )`: each IRLS
+ * step regresses the working response less the offset on X, and R's starting
+ * values ignore it. The null deviance is then that of the model with the
+ * offset and, when the design has a constant column, an intercept (a fit of
+ * its own, `nullWithOffset`), as R's `glm` reports it.
+ *
  * Cost: O(iterations * n * k^2) time, one fused pass over the rows per
  * iteration (linear predictor, link, working weights and response, row
  * reduction together; no per-iteration arrays of length n), O(n) memory for a
@@ -73,6 +80,8 @@ export interface BinomialData {
   readonly priorWeights?: ArrayLike<number>;
   /** Cluster index per row (0..G-1); when given, a CR1 block is reported. */
   readonly clusters?: ArrayLike<number>;
+  /** A known term added to each row's linear predictor (R's `offset`); default none. */
+  readonly offset?: ArrayLike<number>;
 }
 
 /**
@@ -233,17 +242,20 @@ export function fitBinomial(data: BinomialData, options: BinomialFitOptions = {}
   const successes = select(data.successes);
   const trials = select(data.trials);
   const priorWeights = select(data.priorWeights);
-  const rows = glmRows(successes, trials, priorWeights);
+  const rows = glmRows(successes, trials, priorWeights, data.offset === undefined ? null : select(data.offset));
   const base = { link: linkName, names: design.names };
   const exponents = columnExponents(kept);
 
   // The first IRLS pass (at R's starting values, weights n mu (1 - mu) > 0 on every row) already
   // reduces the design; its rank is the design's rank, so no separate pass is needed then.
   // Many logit rows start instead from a fit to a systematic sample of them (one full pass fewer);
-  // should the weights there lose rank, R's starting values decide.
-  const warmStart = options.start === undefined && linkName === 'logit' && n >= WARM_START_ROWS ? sampleEstimate(kept, successes, trials, priorWeights, options, exponents) : null;
-  let initial = options.start === undefined ? initialPass(kept, rows, link, exponents, warmStart) : null;
-  if (warmStart !== null && initial !== null && initial.reduction.qr.rank < columns) initial = initialPass(kept, rows, link, exponents, null);
+  // should the weights there lose rank, R's starting values decide. A given start's first pass
+  // serves too while it keeps full rank (else the rank is checked unweighted, and the iteration
+  // meets the lost rank itself, as before).
+  const warmStart = options.start === undefined && linkName === 'logit' && n >= WARM_START_ROWS ? sampleEstimate(kept, successes, trials, priorWeights, rows.offset, options, exponents) : null;
+  let initial: InitialPass | null = initialPass(kept, rows, link, exponents, options.start === undefined ? warmStart : Float64Array.from(options.start));
+  if (options.start !== undefined && initial.reduction.qr.rank < columns) initial = null;
+  else if (warmStart !== null && initial.reduction.qr.rank < columns) initial = initialPass(kept, rows, link, exponents, null);
   const start = options.start ?? initial?.start;
   const structural = initial?.reduction.qr ?? reduceWeightedRows(kept, null, null, exponents).qr;
   if (structural.rank < columns) {
@@ -264,7 +276,7 @@ export function fitBinomial(data: BinomialData, options: BinomialFitOptions = {}
   const iteration = iterate(kept, rows, link, maxIterations, tolerance, exponents, start, initial);
   warnings.push(...iteration.warnings);
   const { coefficients } = iteration;
-  const linearPredictor = iteration.atEstimate?.linearPredictor ?? multiply(kept, coefficients);
+  const linearPredictor = iteration.atEstimate?.linearPredictor ?? predictorOf(kept, coefficients, rows.offset);
   const { state, boundaryRows, stillMoving, sums } = atEstimate(link, linearPredictor, rows, successes, trials, priorWeights, iteration.lastLinearPredictorChange, iteration.spares);
   // The last pass of the iteration already reduced the rows at the estimate.
   const information = (iteration.atEstimate?.reduction ?? reduceWeightedRows(kept, squares(rootWeightsOf(link, linearPredictor, rows)), null, exponents)).qr;
@@ -346,19 +358,25 @@ export function fitBinomial(data: BinomialData, options: BinomialFitOptions = {}
   const nullMu = hasIntercept ? totalSuccessWeight / totalWeight : link.inverse(0);
   const nullComplement = hasIntercept ? (totalWeight - totalSuccessWeight) / totalWeight : link.inverseComplement(0);
   const bernoulliLogLikelihood = state.logLikelihood;
-  // At a constant fitted probability the log-likelihood needs only the weighted totals.
-  const nullBernoulliLogLikelihood =
-    (totalSuccessWeight > 0 ? totalSuccessWeight * Math.log(nullMu) : 0) +
-    (totalWeight - totalSuccessWeight > 0 ? (totalWeight - totalSuccessWeight) * Math.log(nullComplement) : 0);
+  // At a constant fitted probability the log-likelihood needs only the weighted totals; with an offset
+  // the null model is fitted (or, without an intercept, taken at the offset alone), and only when
+  // `nullDeviance` or `mcfaddenR2` is first read: callers that need the estimates alone skip that fit.
+  let nullBernoulliLogLikelihood: number | null =
+    rows.offset === null
+      ? (totalSuccessWeight > 0 ? totalSuccessWeight * Math.log(nullMu) : 0) +
+        (totalWeight - totalSuccessWeight > 0 ? (totalWeight - totalSuccessWeight) * Math.log(nullComplement) : 0)
+      : null;
+  const nullLogLikelihood = (): number =>
+    (nullBernoulliLogLikelihood ??= nullWithOffset(rows, { successes, trials, priorWeights }, link, hasIntercept ? (columns === 1 ? bernoulliLogLikelihood : 'fit') : 'none', warnings));
   const parameterCount = columns;
   let deviance: number;
-  let nullDeviance: number;
+  let nullDevianceOf: (nullLogLikelihood: number) => number;
   let logLikelihood: number;
   let defaultObservations: number;
   let residualBase: number;
   if (likelihood === 'grouped') {
     deviance = groupedDeviance(rows, state.mu, state.complement);
-    nullDeviance = Math.max(0, 2 * (rows.saturated - nullBernoulliLogLikelihood));
+    nullDevianceOf = (value) => Math.max(0, 2 * (rows.saturated - value));
     const { total, nonInteger } = logBinomialCoefficients(successes, trials, priorWeights);
     if (nonInteger) warnings.push('non-integer successes or trials: log binomial coefficients use rounded counts, as R does');
     logLikelihood = bernoulliLogLikelihood + total;
@@ -366,7 +384,7 @@ export function fitBinomial(data: BinomialData, options: BinomialFitOptions = {}
     residualBase = n;
   } else {
     deviance = -2 * bernoulliLogLikelihood;
-    nullDeviance = -2 * nullBernoulliLogLikelihood;
+    nullDevianceOf = (value) => -2 * value;
     logLikelihood = bernoulliLogLikelihood;
     defaultObservations = totalTrials;
     residualBase = options.observationCount ?? totalTrials;
@@ -374,14 +392,13 @@ export function fitBinomial(data: BinomialData, options: BinomialFitOptions = {}
   const observationCount = options.observationCount ?? defaultObservations;
   const aic = -2 * logLikelihood + 2 * parameterCount;
   const bic = -2 * logLikelihood + Math.log(observationCount) * parameterCount;
-  const mcfaddenR2 = nullBernoulliLogLikelihood < 0 ? 1 - bernoulliLogLikelihood / nullBernoulliLogLikelihood : null;
 
   const { pearsonChiSquare, successWeight, failureWeight } = sums;
   const tjurR2 =
     successWeight > 0 && failureWeight > 0 ? sums.fittedAmongSuccesses / successWeight - sums.fittedAmongFailures / failureWeight : null;
   const brierScore = sums.brierSum / sums.priorTrials;
 
-  const fitted = kept === design ? state.mu : multiply(design, coefficients).map((value) => link.inverse(value));
+  const fitted = kept === design ? state.mu : predictorOf(design, coefficients, data.offset ?? null).map((value) => link.inverse(value));
 
   let robust: BinomialRobust | null = null;
   if (data.clusters !== undefined && options.robust !== false) {
@@ -436,14 +453,19 @@ export function fitBinomial(data: BinomialData, options: BinomialFitOptions = {}
     pValues,
     confidenceIntervals,
     deviance,
-    nullDeviance,
+    get nullDeviance() {
+      return nullDevianceOf(nullLogLikelihood());
+    },
     dfResidual: residualBase - parameterCount,
     dfNull: residualBase - (hasIntercept ? 1 : 0),
     logLikelihood,
     aic,
     bic,
     pearsonChiSquare,
-    mcfaddenR2,
+    get mcfaddenR2() {
+      const nullValue = nullLogLikelihood();
+      return nullValue < 0 ? 1 - bernoulliLogLikelihood / nullValue : null;
+    },
     tjurR2,
     brierScore,
     fitted,
@@ -460,7 +482,7 @@ export function fitBinomial(data: BinomialData, options: BinomialFitOptions = {}
 export function binomialScore(data: BinomialData, coefficients: ArrayLike<number>, linkName: LinkName = 'logit'): Float64Array {
   const link = linkFor(linkName);
   const { design } = data;
-  const linearPredictor = multiply(design, coefficients);
+  const linearPredictor = predictorOf(design, coefficients, data.offset ?? null);
   const score = new Float64Array(design.columns);
   for (let i = 0; i < design.rows; i += 1) {
     const trials = data.trials[i] as number;
@@ -489,6 +511,8 @@ interface GlmRows {
   readonly saturated: number;
   /** sum w: the attempts, weighted. */
   readonly totalWeight: number;
+  /** The offset per row, or null for none. */
+  readonly offset: ArrayLike<number> | null;
 }
 
 interface LinkState {
@@ -758,6 +782,7 @@ function logitBlock(
   const values = design.values;
   const proportions = rows.proportions;
   const glmWeights = rows.weights;
+  const offset = rows.offset;
   const row = triangle.scratch;
   const diagonal = triangle.diagonal;
   const upper = triangle.upper;
@@ -767,9 +792,11 @@ function logitBlock(
   for (let i = start; i < end; i += 1) {
     const weight = glmWeights[i] as number;
     const proportion = proportions[i] as number;
-    let eta = 0;
+    // The offset is in eta and out of the working response (R's glm.fit: z = eta - offset + (y - mu) / mu.eta).
+    const shift = offset === null ? 0 : (offset[i] as number);
+    let eta = shift;
     if (beta === null) {
-      // R's start mu = (w y + 0.5) / (w + 1): eta = log(mu / (1 - mu)).
+      // R's start mu = (w y + 0.5) / (w + 1): eta = log(mu / (1 - mu)), the offset ignored.
       eta = Math.log((weight * proportion + 0.5) / (weight * (1 - proportion) + 0.5));
     } else {
       for (let j = 0; j < columns; j += 1) {
@@ -802,7 +829,7 @@ function logitBlock(
     const variance = mu * complement;
     let w = weight * variance;
     if (!(w > 0) || !Number.isFinite(w)) continue;
-    let y = eta + residualOf(proportion, mu, complement) / variance;
+    let y = eta - shift + residualOf(proportion, mu, complement) / variance;
     for (let j = 0; j < columns; j += 1) row[j] = (values[j * n + i] as number) * (factors[j] as number);
     for (let j = 0; j < columns; j += 1) {
       const xj = row[j] as number;
@@ -848,12 +875,14 @@ function genericPass(
   const values = design.values;
   const proportions = rows.proportions;
   const glmWeights = rows.weights;
+  const offset = rows.offset;
   const row = triangle.scratch;
   let deviance = 0;
   for (let i = 0; i < n; i += 1) {
     const weight = glmWeights[i] as number;
     const proportion = proportions[i] as number;
-    let eta = 0;
+    const shift = offset === null ? 0 : (offset[i] as number);
+    let eta = shift;
     if (coefficients === null) eta = link.link((weight * proportion + 0.5) / (weight + 1));
     else {
       for (let j = 0; j < columns; j += 1) {
@@ -873,7 +902,7 @@ function genericPass(
     const workingWeight = (weight * derivative * derivative) / variance;
     // Like R's glm.fit `good` rows: a row whose dmu/deta or variance underflows carries no information.
     if (!(variance > 0) || !Number.isFinite(workingWeight) || !(workingWeight > 0)) continue;
-    const workingResponse = eta + residualOf(proportion, mu, complement) / derivative;
+    const workingResponse = eta - shift + residualOf(proportion, mu, complement) / derivative;
     for (let j = 0; j < columns; j += 1) row[j] = (values[j * n + i] as number) * (factors[j] as number);
     triangle.include(workingWeight, workingResponse);
   }
@@ -926,8 +955,8 @@ function markCarrying(trials: ArrayLike<number>, priorWeights: ArrayLike<number>
   return count;
 }
 
-/** Proportions, GLM weights (prior weight x trials), the saturated log-likelihood kernel and the weight total. */
-function glmRows(successes: Float64Array, trials: Float64Array, priorWeights: Float64Array): GlmRows {
+/** Proportions, GLM weights (prior weight x trials), the saturated log-likelihood kernel, the weight total and the offset. */
+function glmRows(successes: Float64Array, trials: Float64Array, priorWeights: Float64Array, offset: ArrayLike<number> | null): GlmRows {
   const n = successes.length;
   const proportions = new Float64Array(n);
   // With prior weights of 1 the GLM weights are the trials themselves: no copy.
@@ -961,7 +990,7 @@ function glmRows(successes: Float64Array, trials: Float64Array, priorWeights: Fl
       saturated += weight * term;
     }
   }
-  return { proportions, weights, saturated, totalWeight };
+  return { proportions, weights, saturated, totalWeight, offset };
 }
 
 /** Trials up to this many (whole, with whole successes) take their saturated bracket from {@link glmRows}'s table. */
@@ -988,20 +1017,21 @@ function sampleEstimate(
   successes: Float64Array,
   trials: Float64Array,
   priorWeights: Float64Array,
+  offset: ArrayLike<number> | null,
   options: BinomialFitOptions,
   exponents: Int32Array,
 ): Float64Array | null {
   const every = Math.max(2, Math.floor(design.rows / WARM_START_SAMPLE));
   const count = Math.ceil(design.rows / every);
-  const pick = (values: Float64Array, offset = 0) => {
+  const pick = (values: ArrayLike<number>, first = 0) => {
     const sample = new Float64Array(count);
-    for (let r = 0; r < count; r += 1) sample[r] = values[offset + r * every] as number;
+    for (let r = 0; r < count; r += 1) sample[r] = values[first + r * every] as number;
     return sample;
   };
   const values = new Float64Array(count * design.columns);
   for (let j = 0; j < design.columns; j += 1) values.set(pick(design.values, j * design.rows), j * count);
   const sample: DesignMatrix = { rows: count, columns: design.columns, names: design.names, values };
-  const rows = glmRows(pick(successes), pick(trials), pick(priorWeights));
+  const rows = glmRows(pick(successes), pick(trials), pick(priorWeights), offset === null ? null : pick(offset));
   const link = linkFor('logit');
   // The full design's column scales serve the sample too (they only condition the passes).
   const initial = initialPass(sample, rows, link, exponents, null);
@@ -1090,7 +1120,7 @@ function iterate(
       const step = stepSize(candidate, coefficients, unscaled, lastStep);
       if (step <= tolerance || (n >= WARM_START_ROWS && step <= COVARIANCE_SHIFT * Math.sqrt(rows.totalWeight) && remainingAfter(step, previousStepInStandardErrors, lastHalved) <= tolerance)) {
         coefficients = candidate;
-        multiply(design, candidate, previous);
+        predictorOf(design, candidate, rows.offset, previous);
         [previous, current] = [current, previous];
         accepted += 1;
         converged = true;
@@ -1375,6 +1405,7 @@ function checkInput(
     issues.push(...checkLength('priorWeights', data.priorWeights, rows), ...checkFinite('priorWeights', data.priorWeights, true));
   }
   if (data.clusters !== undefined) issues.push(...checkClusters(data.clusters, rows));
+  if (data.offset !== undefined) issues.push(...checkLength('offset', data.offset, rows), ...checkFinite('offset', data.offset));
   if (issues.length === 0) {
     issues.push(...checkFinite('successes', data.successes, true), ...checkFinite('trials', data.trials, true));
   }
@@ -1408,4 +1439,44 @@ function checkInput(
     issues.push(error('invalid_option', 'observationCount', `\`observationCount\` requires a number > 0, got ${show(count)}`));
   }
   if (issues.length > 0) throw new LagparityInputError(issues);
+}
+
+/** X b (+ the offset, when there is one), into `target` when given. */
+function predictorOf(design: DesignMatrix, coefficients: ArrayLike<number>, offset: ArrayLike<number> | null, target?: Float64Array): Float64Array {
+  const predictor = multiply(design, coefficients, target);
+  if (offset !== null) for (let i = 0; i < design.rows; i += 1) predictor[i] = (predictor[i] as number) + (offset[i] as number);
+  return predictor;
+}
+
+/**
+ * The Bernoulli-level log-likelihood of the null model of a fit with an
+ * offset, as R's `glm` takes it for the null deviance: without an intercept,
+ * the offset alone (`'none'`); with one, the intercept-only fit with the same
+ * offset (`'fit'`), or the fit's own log-likelihood when the fit is that model
+ * (a number). Should that fit give no estimate, the offset alone is used and
+ * a warning says so.
+ */
+function nullWithOffset(
+  rows: GlmRows,
+  counts: { readonly successes: Float64Array; readonly trials: Float64Array; readonly priorWeights: Float64Array },
+  link: Link,
+  intercept: 'none' | 'fit' | number,
+  warnings: string[],
+): number {
+  if (typeof intercept === 'number') return intercept;
+  const offset = rows.offset as ArrayLike<number>;
+  const n = rows.proportions.length;
+  if (intercept === 'fit') {
+    const ones: DesignMatrix = { rows: n, columns: 1, names: ['intercept'], values: new Float64Array(n).fill(1) };
+    const fit = fitBinomial({ design: ones, ...counts, offset }, { link: link.name, likelihood: 'bernoulli' });
+    if (fit.status === 'converged' || fit.status === 'iteration_limit') return fit.logLikelihood;
+    warnings.push(`the null model (intercept and offset) gave no estimate (${fit.status}): the null deviance is taken at the offset alone`);
+  }
+  const mu = new Float64Array(n);
+  const complement = new Float64Array(n);
+  for (let i = 0; i < n; i += 1) {
+    mu[i] = link.inverse(offset[i] as number);
+    complement[i] = link.inverseComplement(offset[i] as number);
+  }
+  return bernoulliLogLikelihoodOf(rows, mu, complement);
 }

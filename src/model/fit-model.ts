@@ -42,6 +42,7 @@ import type { Trials } from '../formats/trials-csv.js';
 import { multiply } from '../numeric/design-matrix.js';
 import { createRandomSource, shuffledIndices } from '../random.js';
 import { chiSquareUpperTail, normalQuantile, twoSidedNormalPValue } from '../stats/distributions.js';
+import { extent } from '../stats/extent.js';
 import { predictorLine } from './predictor-line.js';
 import { type CollapsedTrials, type GroupedTrials, groupTrials, selectCollapsed } from './collapse.js';
 import { type TermDesign, buildDesign, difficultyCodingOf } from './design.js';
@@ -525,16 +526,6 @@ function countDistinct(values: ArrayLike<number>, stopAt = Infinity): number {
 }
 
 function trainingRanges(data: CollapsedTrials, coding: DifficultyCoding, players: number | null): TrainingRanges {
-  const extent = (values: ArrayLike<number>) => {
-    let min = Infinity;
-    let max = -Infinity;
-    for (let i = 0; i < values.length; i += 1) {
-      const value = values[i] as number;
-      if (value < min) min = value;
-      if (value > max) max = value;
-    }
-    return { min, max };
-  };
   let attempts = 0;
   for (let i = 0; i < data.rows; i += 1) attempts += data.attempts[i] as number;
   return {

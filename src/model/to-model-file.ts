@@ -22,6 +22,8 @@ export interface ModelProvenance {
   readonly sha256: string;
   readonly created_by?: string;
   readonly label?: string;
+  /** What the scale multiplied in the fitted data (`hit_area` or `timing_window`). */
+  readonly attribute?: 'hit_area' | 'timing_window';
 }
 
 /**
@@ -47,6 +49,7 @@ export function toModelFile(report: FitReport, provenance: ModelProvenance): Res
   const model: ModelFile = {
     format: MODEL_FORMAT,
     ...(provenance.label === undefined ? {} : { label: provenance.label }),
+    ...(provenance.attribute === undefined ? {} : { attribute: provenance.attribute }),
     family: 'binomial',
     link: report.link,
     terms: [...report.terms],

@@ -74,9 +74,34 @@ export function compactClusters(
   clusters: ArrayLike<number>,
   keep: ArrayLike<boolean>,
 ): { readonly indices: Int32Array; readonly count: number } {
-  const renumbered = new Map<number, number>();
-  const indices: number[] = [];
+  // Cluster indices are whole numbers >= 0 (checked by the fits); when they are no larger than a few
+  // times the rows (player codes are), a typed table renumbers them, else a map: the same numbering.
+  let largest = -1;
+  let kept = 0;
   for (let i = 0; i < clusters.length; i += 1) {
+    if (keep[i] !== true) continue;
+    kept += 1;
+    if ((clusters[i] as number) > largest) largest = clusters[i] as number;
+  }
+  const indices = new Int32Array(kept);
+  if (largest < 4 * clusters.length + 16) {
+    const table = new Int32Array(largest + 1).fill(-1);
+    let count = 0;
+    for (let i = 0, r = 0; i < clusters.length; i += 1) {
+      if (keep[i] !== true) continue;
+      const cluster = clusters[i] as number;
+      let index = table[cluster] as number;
+      if (index < 0) {
+        index = count;
+        table[cluster] = count;
+        count += 1;
+      }
+      indices[r++] = index;
+    }
+    return { indices, count };
+  }
+  const renumbered = new Map<number, number>();
+  for (let i = 0, r = 0; i < clusters.length; i += 1) {
     if (keep[i] !== true) continue;
     const cluster = clusters[i] as number;
     let index = renumbered.get(cluster);
@@ -84,9 +109,9 @@ export function compactClusters(
       index = renumbered.size;
       renumbered.set(cluster, index);
     }
-    indices.push(index);
+    indices[r++] = index;
   }
-  return { indices: Int32Array.from(indices), count: renumbered.size };
+  return { indices, count: renumbered.size };
 }
 
 function multiplySquare(left: Float64Array, right: Float64Array, size: number): Float64Array {

@@ -387,3 +387,51 @@ export function scaleNeededSpec(title: string, points: readonly { latency: numbe
     ],
   } satisfies TopLevelSpec;
 }
+
+export interface FieldBandPoint {
+  readonly band: string;
+  readonly series: string;
+  readonly p: number;
+  readonly lower: number | null;
+  readonly upper: number | null;
+}
+
+export const FIELD_SERIES = ['model, before compensation (scale 1)', 'model, after (applied scales)', 'observed (as played)'] as const;
+
+/**
+ * The field check by latency band: the model's hit probability before
+ * compensation (scale 1) and after (the applied scales), and the observed
+ * rate, each band side by side, with 95% intervals where there are any.
+ */
+export function fieldBandsSpec(points: readonly FieldBandPoint[], bandOrder: readonly string[]): TopLevelSpec {
+  const legend = { domain: [...FIELD_SERIES], range: [OKABE_ITO.orange, OKABE_ITO.skyBlue, OKABE_ITO.blue] };
+  const shapes = { domain: [...FIELD_SERIES], range: ['circle', 'diamond', 'square'] };
+  const x = { field: 'band', type: 'nominal' as const, sort: [...bandOrder], title: 'Latency band', axis: { labelAngle: 0 } };
+  const offset = { field: 'series', type: 'nominal' as const, sort: [...FIELD_SERIES] };
+  const y = { type: 'quantitative' as const, scale: { zero: false, nice: true }, title: 'Hit probability' };
+  const colourLegend = { title: null, orient: 'bottom' as const, direction: 'vertical' as const };
+  return {
+    config: CHART_CONFIG,
+    title: 'Live play by latency band: predicted before and after compensation, and observed',
+    width: Math.max(320, 90 * bandOrder.length),
+    height: 280,
+    layer: [
+      {
+        data: { values: points.filter((point) => point.lower !== null && point.upper !== null) },
+        mark: { type: 'rule' as const, strokeWidth: 2 },
+        encoding: { x, xOffset: offset, y: { ...y, field: 'lower' }, y2: { field: 'upper' }, color: { field: 'series', type: 'nominal' as const, scale: legend, legend: colourLegend } },
+      },
+      {
+        data: { values: [...points] },
+        mark: { type: 'point' as const, filled: true, size: 70, opacity: 1 },
+        encoding: {
+          x,
+          xOffset: offset,
+          y: { ...y, field: 'p' },
+          color: { field: 'series', type: 'nominal' as const, scale: legend, legend: colourLegend },
+          shape: { field: 'series', type: 'nominal' as const, scale: shapes, legend: colourLegend },
+        },
+      },
+    ],
+  } satisfies TopLevelSpec;
+}

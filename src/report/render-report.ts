@@ -21,6 +21,9 @@ import { type BoxGroup, type CurvePanel, boxPlotSpec, calibrationSpec, curvesSpe
 import { type ReportLobby, lobbiesSection } from './lobby-section.js';
 import { coefficientTable, fitTables } from './model-section.js';
 import { scaleNeeded } from './scale-needed.js';
+import type { FieldCheckReport } from '../field/field-types.js';
+import { fieldBandsSpec } from './charts.js';
+import { VERDICT_TEXT, fieldBandPoints, fieldSection } from './field-section.js';
 import { escapeHtml, formatGeneral, formatNumber, htmlTable } from './html.js';
 import { calibrationBins, difficultyForModel, hasCovariance, predictWithBand } from './predictions.js';
 import { MissingChartingError, loadCharting, renderChartSvg } from './render-svg.js';
@@ -43,6 +46,8 @@ export interface ReportInput {
   readonly trialsSha256?: string;
   /** Latency groups for the box plots and observed means; default `auto`. */
   readonly latencyBins?: BinSpec;
+  /** A field check of live telemetry (`checkField`): adds the section on live play. */
+  readonly field?: FieldCheckReport;
   readonly title?: string;
   /** A size study's result (`lagparity plan size --json`): a section with the precision and power against participants. */
   readonly sizeStudy?: SizeStudy;
@@ -89,6 +94,7 @@ nav#contents ol{columns:2;max-width:60ch}nav#contents h2{font-size:1.1rem;border
 .within{color:#006d4f;font-weight:600}.outside{color:#a63d00;font-weight:600}
 .outside-box{border-left:4px solid #D55E00;background:#fff6ef;padding:4px 12px;margin:8px 0}
 table.stats th{text-align:left}
+pre{white-space:pre-wrap;overflow-wrap:anywhere}
 `;
 
 function factorTitle(factor: Factor): string {
@@ -278,6 +284,14 @@ export async function renderReport(input: ReportInput): Promise<Result<Report>> 
   // Playtest planning.
   const sizeSection = input.sizeStudy === undefined ? '' : await sizeStudySection(input.sizeStudy, input.sizeStudyName ?? 'size study', addChart);
 
+  // Live play (the field check), when given.
+  let liveSection = '';
+  if (input.field !== undefined) {
+    const field = input.field;
+    const order = field.bands.filter((band) => band.observed !== null).map((band) => band.label);
+    liveSection = fieldSection(field, await addChart('live', 'Live play by latency band', fieldBandsSpec(fieldBandPoints(field), order)));
+  }
+
   // Provenance.
   const provenance = model.source.provenance;
   const provenanceNotes: string[] = [];
@@ -307,6 +321,7 @@ export async function renderReport(input: ReportInput): Promise<Result<Report>> 
         : `Lobbies: <strong>${lobbies.withinRules} of ${lobbies.lobbies} within rules</strong> under ${escapeHtml(rulesName ?? '')}.`
       : 'No lobbies were given.',
     lobbies.worst === null ? '' : `Worst residual gap after compensation: <strong>${formatNumber(lobbies.worst.gap)}</strong> of hit probability (${escapeHtml(lobbies.worst.matchId)}).`,
+    input.field === undefined ? '' : `Live play: <strong>${escapeHtml(VERDICT_TEXT[input.field.verdict])}</strong>; the model: ${input.field.calibration.recommendation === 'refit' ? 'refit' : 'keep'}.`,
   ].filter((line) => line !== '');
   const sections: { id: string; title: string; body: string }[] = [
     {
@@ -343,6 +358,7 @@ ${fitTables(model)}
           },
         ]),
     { id: 'lobbies', title: 'Lobbies', body: hasLobbies ? lobbies.html : '<p class="note">No lobbies were given (<code>--lobbies</code>).</p>' },
+    ...(liveSection === '' ? [] : [{ id: 'live-section', title: 'Live play: does compensation hold?', body: liveSection }]),
     ...(sizeSection === '' ? [] : [{ id: 'size-study-section', title: 'How many participants', body: sizeSection }]),
     {
       id: 'method',

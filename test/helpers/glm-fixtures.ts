@@ -1,17 +1,21 @@
-// Readers for the reference CSVs copied into test/fixtures/glm/ (sources in its README).
+// Readers for the reference CSVs copied into test/fixtures/glm/ (sources in its README); the
+// folder-taking forms serve the other fixture folders (field/).
 import { readFileSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
-
-const fixtureDirectory = new URL('../fixtures/glm/', import.meta.url);
 
 export interface Table {
   readonly header: readonly string[];
   readonly rows: readonly (readonly string[])[];
 }
 
-/** Parse a plain CSV fixture (header line, no quoting). */
+/** Parse a plain CSV fixture of test/fixtures/glm/ (header line, no quoting). */
 export function readTable(file: string): Table {
-  const text = readFileSync(fileURLToPath(new URL(file, fixtureDirectory)), 'utf8');
+  return readFixtureTable('glm', file);
+}
+
+/** Parse a plain CSV fixture of test/fixtures/<folder>/ (header line, no quoting). */
+export function readFixtureTable(folder: string, file: string): Table {
+  const text = readFileSync(fileURLToPath(new URL(`../fixtures/${folder}/${file}`, import.meta.url)), 'utf8');
   const lines = text.split(/\r?\n/).filter((line) => line.trim() !== '');
   const [headerLine, ...rest] = lines;
   if (headerLine === undefined) throw new Error(`${file} is empty`);
@@ -27,7 +31,11 @@ export function numberColumn(table: Table, name: string): number[] {
 
 /** One value from a long-format result file: dataset,model,quantity,term,value. */
 export function referenceValue(file: string, dataset: string, model: string, quantity: string, term = ''): number {
-  const table = readTable(file);
+  return tableValue(readTable(file), file, dataset, model, quantity, term);
+}
+
+/** One value from a long-format result table already read (`file` names it in errors). */
+export function tableValue(table: Table, file: string, dataset: string, model: string, quantity: string, term = ''): number {
   const hits = table.rows.filter(
     (row) => row[0] === dataset && row[1] === model && row[2] === quantity && (row[3] ?? '') === term,
   );

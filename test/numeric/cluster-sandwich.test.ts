@@ -49,4 +49,10 @@ describe('compactClusters()', () => {
     expect(Array.from(indices)).toEqual([0, 1, 0, 1]);
     expect(count).toBe(2);
   });
+
+  it('numbers large cluster ids the same way (the map path)', () => {
+    const { indices, count } = compactClusters([4e9, 3, 4e9, 12, 3], [true, true, true, true, true]);
+    expect(Array.from(indices)).toEqual([0, 1, 0, 2, 1]);
+    expect(count).toBe(3);
+  });
 });

@@ -34,6 +34,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { pathToFileURL } from 'node:url';
 import { createRandomSource, standardNormalDraw } from '../../src/random.js';
+import { calibrationLoop } from './gauge.js';
 
 const root = join(import.meta.dirname, '..', '..');
 const cli = join(root, 'dist', 'bin', 'lagparity.js');
@@ -44,14 +45,6 @@ const keep = args.includes('--keep');
 const runsArgument = args[args.indexOf('--runs') + 1];
 const runs = args.includes('--runs') && runsArgument !== undefined ? Math.max(1, Number(runsArgument)) : 3;
 
-/** Milliseconds of a fixed integer loop: a gauge of the machine's speed at the moment. */
-function calibration(): number {
-  const started = performance.now();
-  let sum = 0;
-  for (let i = 0; i < 300_000_000; i += 1) sum += i & 7;
-  if (sum < 0) process.stdout.write('');
-  return performance.now() - started;
-}
 
 /** Targets of issue 3: a third of the faster reference time, a quarter of the smaller reference memory. */
 const TARGETS: Record<number, { seconds: number; mebibytes: number }> = {
@@ -119,7 +112,7 @@ for (const rows of sizes) {
   await generate(file, rows, 20260301 + rows);
   const megabytes = statSync(file).size / 2 ** 20;
   process.stdout.write(`generated ${rows.toLocaleString('en-GB')} rows (${megabytes.toFixed(1)} MiB) in ${((performance.now() - generationStart) / 1000).toFixed(1)} s\n`);
-  process.stdout.write(`calibration loop: ${calibration().toFixed(0)} ms (about 170 ms on a quiet minute of the reference machine)\n`);
+  process.stdout.write(`calibration loop: ${calibrationLoop().toFixed(0)} ms (about 170 ms on a quiet minute of the reference machine)\n`);
   const target = TARGETS[rows];
   for (const [label, extra] of [
     ['one fit with SEs (--folds 0 --lr-tests none --no-baseline)', ['--folds', '0', '--lr-tests', 'none', '--no-baseline']],

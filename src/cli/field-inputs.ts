@@ -1,0 +1,81 @@
+/** What `field-check` and `report --live` share: their options, the refit commands' paths, and the check of a telemetry file. */
+import { open } from 'node:fs/promises';
+import { basename, dirname, join } from 'node:path';
+import { type Issue, type Result, error, fail, ok, show } from '../issues.js';
+import { checkField } from '../field/check-field.js';
+import type { FieldCheckReport } from '../field/field-types.js';
+import { parseBandCuts } from '../field/latency-bands.js';
+import type { RefitCommandInputs } from '../field/refit-commands.js';
+import type { CompiledModel } from '../model/compile.js';
+import type { CompiledRules } from '../solver/rules.js';
+import { progressLine } from './progress.js';
+import { readGrouped } from './read-grouped.js';
+
+export interface FieldSettings {
+  readonly margin: number;
+  readonly bands: readonly number[];
+}
+
+/** Parse the margin and band cuts of the options named `marginOption` and `bandsOption`. */
+export function parseFieldSettings(marginText: string, bandsText: string, marginOption: string, bandsOption: string): Result<FieldSettings> {
+  const issues: Issue[] = [];
+  const margin = /^\d*\.?\d+$/.test(marginText.trim()) ? Number(marginText) : Number.NaN;
+  if (!(margin > 0 && margin < 0.5)) issues.push(error('invalid_option', marginOption, `\`${marginOption}\` requires a hit-probability gap above 0 and below 0.5, such as 0.02, got ${show(marginText)}`));
+  const bands = parseBandCuts(bandsText, bandsOption);
+  if (!bands.ok) issues.push(...bands.issues);
+  return issues.length > 0 || !bands.ok ? fail(issues) : ok({ margin, bands: bands.value });
+}
+
+/** Read a telemetry file and check it; its read warnings come with the report's. */
+export async function checkTelemetry(
+  telemetry: string,
+  modelPath: string,
+  model: CompiledModel,
+  rules: CompiledRules | null,
+  settings: FieldSettings,
+  attribute: 'hit_area' | 'timing_window' | undefined,
+): Promise<Result<FieldCheckReport>> {
+  const progress = progressLine('lagparity field-check');
+  const read = await readGrouped(telemetry, progress);
+  progress.done();
+  if (!read.ok) return read;
+  const { grouped, sha256 } = read.value;
+  const report = checkField(grouped, model, {
+    margin: settings.margin,
+    bands: settings.bands,
+    rules,
+    ...(attribute === undefined ? {} : { attribute }),
+    modelFile: basename(modelPath),
+    sha256,
+    commands: await commandInputs(telemetry, modelPath, model),
+  });
+  return report.ok ? ok(report.value, [...read.warnings, ...report.warnings]) : report;
+}
+
+/** The paths for the refit commands: the model's training file is looked for beside the model, by the name its provenance gives. */
+async function commandInputs(telemetry: string, modelPath: string, model: CompiledModel): Promise<RefitCommandInputs> {
+  const trainingPath = join(dirname(modelPath), basename(model.source.provenance.file));
+  const [trainingHeader, liveHeader] = await Promise.all([headerLine(trainingPath), headerLine(telemetry)]);
+  return {
+    telemetry,
+    model: modelPath,
+    training: trainingHeader === null ? null : { path: trainingPath, sameHeader: trainingHeader === liveHeader },
+  };
+}
+
+/** The first line of a file (without a byte-order mark or CR), or null when it cannot be read. */
+async function headerLine(path: string): Promise<string | null> {
+  try {
+    const handle = await open(path, 'r');
+    try {
+      const buffer = Buffer.alloc(64 * 1024);
+      const { bytesRead } = await handle.read(buffer, 0, buffer.length, 0);
+      const text = buffer.subarray(0, bytesRead).toString('utf8').replace(/^\uFEFF/, '');
+      return text.split('\n', 1)[0]?.replace(/\r$/, '') ?? null;
+    } finally {
+      await handle.close();
+    }
+  } catch {
+    return null;
+  }
+}
