@@ -6,6 +6,7 @@ import { registerBalance } from './balance-command.js';
 import { registerChooseServer } from './choose-server-command.js';
 import { registerFieldCheck } from './field-check-command.js';
 import { registerFit } from './fit-command.js';
+import { registerGroupingSql } from './grouping-sql-command.js';
 import { registerReplay } from './replay-command.js';
 import { registerReport } from './report-command.js';
 import { registerSummarize } from './summarize-command.js';
@@ -26,6 +27,7 @@ program
 registerBalance(program);
 registerChooseServer(program);
 registerFit(program);
+registerGroupingSql(program);
 registerAudit(program);
 registerSummarize(program);
 registerFieldCheck(program);
