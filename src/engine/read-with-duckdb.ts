@@ -245,7 +245,10 @@ async function readThrough(connection: Connection, pattern: string, options: Eng
   const levels = new Map<string, number>();
   if (chosen.difficultyIsText) {
     const firstSeen = await withTicks('finding the difficulty levels', options.onProgress, () =>
-      connection.runAndReadAll("SELECT trim(difficulty) AS level FROM telemetry GROUP BY trim(difficulty) ORDER BY min({'file': source_file, 'row': source_row}), level"),
+      // CSV scans have no row number: DuckDB keeps the files' order (preserve_insertion_order), which row_number() counts.
+      connection.runAndReadAll(
+        `SELECT level FROM (SELECT trim(difficulty) AS level, source_file, ${chosen.parquet ? 'source_row' : 'row_number() OVER ()'} AS n FROM telemetry) AS seen GROUP BY level ORDER BY min({'file': source_file, 'row': n}), level`,
+      ),
     );
     for (const [level] of firstSeen.getRows()) levels.set(String(level), levels.size);
   }
