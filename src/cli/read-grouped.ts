@@ -41,6 +41,11 @@ export interface ReadGroupedOptions {
   readonly counts?: 'rounds' | 'attempts';
   /** How DuckDB is imported (tests). */
   readonly loader?: DuckDbLoader;
+  /**
+   * Read Parquet and globs through DuckDB (default true). `field-check` says false: its bands need each
+   * row's exact latency, which the grouping rounds, so it reads one CSV file as before.
+   */
+  readonly engine?: boolean;
 }
 
 /** Read the trials straight into groups, hashing the bytes read. */
@@ -53,7 +58,7 @@ export async function readGrouped(path: string, progress: ReturnType<typeof prog
 }
 
 async function readGroupedSource(path: string, progress: ReturnType<typeof progressLine>, options: ReadGroupedOptions): Promise<Result<{ grouped: GroupedTrials; sha256: string }>> {
-  if (options.latencyStepMs !== undefined || needsEngine(path)) {
+  if (options.engine !== false && (options.latencyStepMs !== undefined || needsEngine(path))) {
     const { readGroupedWithDuckDb } = await import('../engine/read-with-duckdb.js');
     const read = await readGroupedWithDuckDb(path, {
       latencyStepMs: options.latencyStepMs ?? DEFAULT_LATENCY_STEP_MS,

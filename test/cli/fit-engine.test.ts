@@ -152,6 +152,12 @@ describe('lagparity fit on Parquet and globs: bad input', () => {
     expect(run.stderr).toContain('other.csv:latency_ms: error missing_column');
   });
 
+  it('keeps field-check to one CSV file (its bands need exact latencies)', () => {
+    const run = runCli(['field-check', join(scratch, 'rounds.parquet'), '--model', join(MATCHES, 'model.json')]);
+    expect(run.status).toBe(2);
+    expect(run.stderr).toBe(`${join(scratch, 'rounds.parquet')}: error unsupported_input: \`field-check\` requires a trials CSV file, got a Parquet file; export the rows as CSV (every row, latencies exact)\n`);
+  });
+
   it('refuses a --latency-step that is not a number above 0', () => {
     const run = runCli(['fit', playtest, '--latency-step', '0']);
     expect(run.status).toBe(2);
