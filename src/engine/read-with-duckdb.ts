@@ -320,7 +320,8 @@ async function readThrough(connection: Connection, pattern: string, options: Eng
       filled += 1;
     }
     groupsRead += count;
-    options.onProgress?.(`read ${groupsRead.toLocaleString('en-GB')} groups of ${rows.toLocaleString('en-GB')} rows`);
+    // About every 65,536 groups (32 chunks of DuckDB's 2,048 rows), not every chunk.
+    if ((groupsRead & 0xffff) < count) options.onProgress?.(`read ${groupsRead.toLocaleString('en-GB')} groups of ${rows.toLocaleString('en-GB')} rows`);
   }
   flush();
 
