@@ -21,9 +21,10 @@ import { type Issue, type Result, error, fail, ok, show } from '../issues.js';
 import { parseDecimal } from '../formats/trials-csv.js';
 import { COLLAPSE_BATCH_ROWS, GroupAccumulator, type GroupedTrials, mergeGroups } from '../model/collapse.js';
 import { groupingSql } from './grouping-sql.js';
-import { type DuckDbLoader, type DuckDbModule, loadDuckDb } from './load-duckdb.js';
+import type { DuckDBConnection } from '@duckdb/node-api';
+import { type DuckDbLoader, loadDuckDb } from './load-duckdb.js';
 
-type Connection = Awaited<ReturnType<Awaited<ReturnType<DuckDbModule['DuckDBInstance']['create']>>['connect']>>;
+type Connection = DuckDBConnection;
 
 /** Options of {@link readGroupedWithDuckDb}. */
 export interface EngineReadOptions {
@@ -119,7 +120,7 @@ function viewSql(files: readonly string[], layout: Layout): string {
     'filename AS source_file',
     layout.parquet ? 'file_row_number + 1 AS source_row' : 'NULL AS source_row',
   ];
-  const extra = layout.parquet ? ', filename = true, file_row_number = true' : ', filename = true';
+  const extra = layout.parquet ? ', filename = true, file_row_number = true, union_by_name = true' : ', filename = true, union_by_name = true';
   return `CREATE VIEW telemetry AS SELECT ${columns.join(', ')} FROM ${scan(files, layout.parquet, extra)}`;
 }
 
@@ -183,6 +184,9 @@ export async function readGroupedWithDuckDb(pattern: string, options: EngineRead
   const connection = await instance.connect();
   try {
     return await readThrough(connection, pattern, options);
+  } catch (cause) {
+    // A file DuckDB cannot decode part-way (a truncated shard, a type it cannot cast): its first line, not a stack trace.
+    return fail([error('cannot_read', pattern, `the files require to be readable by DuckDB: ${(cause as Error).message.split('\n')[0] ?? ''}`)]);
   } finally {
     connection.closeSync();
     instance.closeSync();
@@ -195,7 +199,7 @@ async function readThrough(connection: Connection, pattern: string, options: Eng
   try {
     files = await listFiles(connection, pattern);
   } catch (cause) {
-    return fail([error('cannot_read', pattern, `the files requires to be listable: ${(cause as Error).message}`)]);
+    return fail([error('cannot_read', pattern, `the files require to be listable: ${(cause as Error).message}`)]);
   }
   if (files.length === 0) return fail([error('no_files', pattern, `\`${pattern}\` requires at least one matching file, got none`)]);
   const parquetFiles = files.filter((file) => /\.parquet$/i.test(file)).length;
