@@ -50,9 +50,11 @@ export interface GroupingSqlOptions {
 function literal(value: number): string {
   if (Number.isInteger(value)) return String(value);
   const text = String(value);
-  if (!/e/i.test(text)) return text;
-  const digits = Math.min(100, Math.max(0, -Math.floor(Math.log10(value)) + 17));
-  return value.toFixed(digits).replace(/0+$/, '');
+  const exponential = /^(\d)(?:\.(\d+))?e-(\d+)$/.exec(text);
+  if (exponential === null) return text;
+  // Shortest digits of a small value, written out: 3e-7 -> 0.0000003 (steps are above 0 and at most 60,000).
+  const [, lead, rest, exponent] = exponential;
+  return `0.${'0'.repeat(Number(exponent) - 1)}${lead ?? ''}${rest ?? ''}`;
 }
 
 /** Whole n with 1/n equal to the step (0.01 -> 100), or null when the step is not such a fraction. */
