@@ -66,7 +66,7 @@ describe('groupingSql()', () => {
     expect(latencyBinSql('x', 0.3).latency('b')).toBe('b * 0.3');
     expect(latencyBinSql('x', 1e-7).bin).toBe('FLOOR(x * 10000000 + 0.5)');
     expect(latencyBinSql('x', 3e-7).latency('b')).toBe('b * 0.0000003');
-    expect(latencyBinSql('x', 2.5e-7).latency('b')).toBe('b * 0.00000025');
+    expect(latencyBinSql('x', 3.7e-7).latency('b')).toBe('b * 0.00000037');
     expect(DEFAULT_LATENCY_STEP_MS).toBe(1);
   });
 
