@@ -44,8 +44,8 @@ export const englishOnlyZod: Plugin = {
   },
 };
 
-/** Packages left to node_modules: the charting stack, loaded only by `report`. */
-const EXTERNAL = ['vega', 'vega-lite'];
+/** Packages left to node_modules: the charting stack, loaded only by `report`, and embedded DuckDB (a native binding), loaded only for Parquet, globs and `--latency-step`. */
+const EXTERNAL = ['vega', 'vega-lite', '@duckdb/node-api'];
 
 /** The package folder of a bundled input path like `node_modules/@scope/name/lib/x.js`, or null for the project's own files. */
 export function packageFolderOf(input: string): string | null {

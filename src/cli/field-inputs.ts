@@ -35,8 +35,12 @@ export async function checkTelemetry(
   settings: FieldSettings,
   attribute: 'hit_area' | 'timing_window' | undefined,
 ): Promise<Result<FieldCheckReport>> {
+  if (/\.parquet$/i.test(telemetry)) {
+    // The field check's bands need each row's exact latency: it reads one trials CSV file (fit reads Parquet, rounding latency).
+    return fail([error('unsupported_input', telemetry, '`field-check` requires a trials CSV file, got a Parquet file; export the rows as CSV (every row, latencies exact)')]);
+  }
   const progress = progressLine('lagparity field-check');
-  const read = await readGrouped(telemetry, progress);
+  const read = await readGrouped(telemetry, progress, { engine: false });
   progress.done();
   if (!read.ok) return read;
   const { grouped, sha256 } = read.value;

@@ -9,6 +9,7 @@ import type { Ranked } from './render-fit.js';
 import { EXIT_BAD_INPUT, EXIT_OK, reportIssues, writeOut } from './output.js';
 import { progressLine } from './progress.js';
 import { readGrouped } from './read-grouped.js';
+import { latencyStepOption } from './latency-step-option.js';
 
 export const FIT_RESULT_FORMAT = 'lagparity/fit-result@1';
 
@@ -27,6 +28,8 @@ export interface FitOptions {
   force?: boolean;
   lrTests: string;
   baseline: boolean;
+  latencyStep?: string;
+  counts: string;
 }
 
 /** One candidate of `--compare`: `MODEL[:TERMS]`, MODEL a link name or `least_squares`. */
@@ -107,13 +110,17 @@ export async function runFit(path: string, options: FitOptions): Promise<number>
   if (options.out !== undefined && options.family === 'least_squares') {
     issues.push(error('invalid_option', '--out', '`--out` requires `--family binomial` (a model file holds a binomial model), got least_squares'));
   }
+  const latencyStepMs = options.latencyStep === undefined ? undefined : latencyStepOption(options.latencyStep, issues);
+  if (options.counts !== 'rounds' && options.counts !== 'attempts') {
+    issues.push(error('invalid_option', '--counts', `\`--counts\` requires rounds or attempts, got ${show(options.counts)}`));
+  }
   if (issues.length > 0) {
     reportIssues(issues);
     return EXIT_BAD_INPUT;
   }
 
   const progress = progressLine('lagparity fit');
-  const read = await readGrouped(path, progress);
+  const read = await readGrouped(path, progress, { ...(latencyStepMs === undefined ? {} : { latencyStepMs }), counts: options.counts as 'rounds' | 'attempts' });
   if (!read.ok) {
     progress.done();
     reportIssues(read.issues);

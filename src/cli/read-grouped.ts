@@ -1,16 +1,54 @@
 /**
  * Reading a trials file into groups for fitting, hashing its bytes in the
  * same pass, with a progress line: the one way `fit` and `field-check` read
- * trials, so a reader added for one serves both.
+ * trials, so a reader added for one serves both. A Parquet file, a glob of
+ * shards or a latency resolution goes through embedded DuckDB
+ * (`engine/read-with-duckdb.ts`, loaded only then); one CSV file without a
+ * resolution through the built-in reader, its latencies exact.
  */
 import { createHash } from 'node:crypto';
 import { type Result, ok } from '../issues.js';
 import { readGroupedTrialsFile } from '../io/read-trials.js';
-import type { GroupedTrials } from '../model/collapse.js';
+import { type GroupedTrials, mergeGroups } from '../model/collapse.js';
+import { DEFAULT_LATENCY_STEP_MS } from '../engine/grouping-sql.js';
+import type { DuckDbLoader } from '../engine/load-duckdb.js';
+import { needsEngine } from '../engine/needs-engine.js';
 import type { ProgressLine } from './progress.js';
 
-/** Read the trials file straight into groups, hashing its bytes in the same pass. */
-export async function readGrouped(path: string, progress: ProgressLine): Promise<Result<{ grouped: GroupedTrials; sha256: string }>> {
+/** How {@link readGrouped} reads. */
+export interface ReadGroupedOptions {
+  /** Latency resolution of the grouping in ms (through DuckDB); default exact for one CSV file, {@link DEFAULT_LATENCY_STEP_MS} through DuckDB. */
+  readonly latencyStepMs?: number;
+  /** `attempts`: hits/attempts rows are counts of independent attempts (the grouping statement's output), fitted as the attempts would be. */
+  readonly counts?: 'rounds' | 'attempts';
+  /** How DuckDB is imported (tests). */
+  readonly loader?: DuckDbLoader;
+  /**
+   * Read Parquet and globs through DuckDB (default true). `field-check` says false: its bands need each
+   * row's exact latency, which the grouping rounds, so it reads one CSV file as before.
+   */
+  readonly engine?: boolean;
+}
+
+/** Read the trials straight into groups, hashing the bytes read. */
+export async function readGrouped(path: string, progress: ProgressLine, options: ReadGroupedOptions = {}): Promise<Result<{ grouped: GroupedTrials; sha256: string }>> {
+  const read = await readGroupedSource(path, progress, options);
+  if (!read.ok || options.counts !== 'attempts' || read.value.grouped.shape === 'per_attempt') return read;
+  // Counts of attempts: merged like attempts and fitted with the Bernoulli likelihood (n = attempts), as the rows they count.
+  const { grouped, sha256 } = read.value;
+  return ok({ grouped: { ...grouped, shape: 'per_attempt', groups: mergeGroups(grouped.groups) }, sha256 }, read.warnings);
+}
+
+async function readGroupedSource(path: string, progress: ProgressLine, options: ReadGroupedOptions): Promise<Result<{ grouped: GroupedTrials; sha256: string }>> {
+  if (options.engine !== false && (options.latencyStepMs !== undefined || needsEngine(path))) {
+    const { readGroupedWithDuckDb } = await import('../engine/read-with-duckdb.js');
+    const read = await readGroupedWithDuckDb(path, {
+      latencyStepMs: options.latencyStepMs ?? DEFAULT_LATENCY_STEP_MS,
+      onProgress: (stage) => progress.update(() => stage),
+      ...(options.loader === undefined ? {} : { loader: options.loader }),
+    });
+    return read.ok ? ok({ grouped: read.value.grouped, sha256: read.value.sha256 }, read.warnings) : read;
+  }
   const hash = createHash('sha256');
   const read = await readGroupedTrialsFile(path, {
     onProgress: (rows) => progress.update(() => `read ${rows.toLocaleString('en-GB')} rows`),

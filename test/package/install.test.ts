@@ -103,6 +103,14 @@ process.stdout.write(result.status + ' ' + result.players.map((p) => p.scale.toF
     expect(report.issues[0]?.message).toContain('npm install vega@6.4.0 vega-lite@6.4.3');
   });
 
+  it('names the package to install when a Parquet file is fitted without DuckDB (a real absence: the lean install has none)', () => {
+    const result = run(join(project, 'node_modules', '.bin', 'lagparity'), ['fit', 'telemetry/*.parquet']);
+    expect(result.status).toBe(2);
+    expect(result.stderr).toBe(
+      'telemetry/*.parquet: error missing_optional_package: reading Parquet files, globs of shards and grouping at `--latency-step` requires the optional package @duckdb/node-api@1.5.6-r.1, which is not installed: run `npm install @duckdb/node-api@1.5.6-r.1` where lagparity is installed\n',
+    );
+  });
+
   it('runs the command line from the bin', () => {
     const result = run(join(project, 'node_modules', '.bin', 'lagparity'), ['--version']);
     expect(result.status, result.stderr).toBe(0);
