@@ -3,8 +3,8 @@
  * saved as UTF-16 (a common default of some editors) is named as such
  * instead of failing as garbled JSON or CSV: by its byte-order mark (Unicode
  * Standard, section 23.8: FF FE little-endian, FE FF big-endian; FF FE 00 00
- * and 00 00 FE FF for UTF-32), or without one by NUL bytes in every other
- * position of the first characters, as ASCII text has in UTF-16.
+ * and 00 00 FE FF for UTF-32), or without one by NUL bytes where ASCII text
+ * has them: three of every four bytes in UTF-32, every other byte in UTF-16.
  */
 
 export type ForeignEncoding = 'UTF-16 little-endian' | 'UTF-16 big-endian' | 'UTF-32';
@@ -14,6 +14,7 @@ export function foreignEncoding(bytes: Uint8Array): ForeignEncoding | null {
   if ((a === 0xff && b === 0xfe && c === 0 && d === 0) || (a === 0 && b === 0 && c === 0xfe && d === 0xff)) return 'UTF-32';
   if (a === 0xff && b === 0xfe) return 'UTF-16 little-endian';
   if (a === 0xfe && b === 0xff) return 'UTF-16 big-endian';
+  if (utf32WithoutMark(bytes)) return 'UTF-32';
   const length = Math.min(bytes.length, 64) & ~1;
   if (length < 4) return null;
   let evenZeros = 0;
@@ -26,6 +27,21 @@ export function foreignEncoding(bytes: Uint8Array): ForeignEncoding | null {
   if (oddZeros >= pairs * 0.75 && evenZeros === 0) return 'UTF-16 little-endian';
   if (evenZeros >= pairs * 0.75 && oddZeros === 0) return 'UTF-16 big-endian';
   return null;
+}
+
+/** ASCII characters as UTF-32 (either byte order): in each group of four bytes, three NULs and one other byte, always in the same place. */
+function utf32WithoutMark(bytes: Uint8Array): boolean {
+  const length = Math.min(bytes.length, 64) & ~3;
+  if (length < 8) return false;
+  let littleEndian = true;
+  let bigEndian = true;
+  for (let index = 0; index < length; index += 4) {
+    const [a, b, c, d] = bytes.subarray(index, index + 4);
+    if (!(b === 0 && c === 0)) return false;
+    littleEndian &&= a !== 0 && d === 0;
+    bigEndian &&= a === 0 && d !== 0;
+  }
+  return littleEndian || bigEndian;
 }
 
 /** The message of a file in another encoding. */

@@ -62,4 +62,17 @@ describe('foreignEncoding()', () => {
     expect(foreignEncoding(bytes(0x7b, 0x00, 0x22, 0x00, 0x61, 0x00))).toBe('UTF-16 little-endian');
     expect(foreignEncoding(new TextEncoder().encode('{"a": 1}'))).toBeNull();
   });
+
+  it('names UTF-32 without a byte-order mark in either byte order (it was read as UTF-16)', () => {
+    const text = '{"format": "x"}';
+    const little = new Uint8Array(text.length * 4);
+    const big = new Uint8Array(text.length * 4);
+    for (let index = 0; index < text.length; index += 1) {
+      little[4 * index] = text.charCodeAt(index);
+      big[4 * index + 3] = text.charCodeAt(index);
+    }
+    expect(foreignEncoding(little)).toBe('UTF-32');
+    expect(foreignEncoding(big)).toBe('UTF-32');
+    expect(foreignEncoding(bytes(0x7b, 0x00, 0x22, 0x00, 0x61, 0x00, 0x22, 0x00))).toBe('UTF-16 little-endian');
+  });
 });
