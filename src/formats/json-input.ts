@@ -79,6 +79,9 @@ export function structureIssue(problem: StructureProblem, text: string, file: st
   if (problem.code === 'duplicate_key') {
     return error('duplicate_key', place, `${field} requires each key once in an object (RFC 8259 section 4; RFC 7493 section 2.3), got ${show(problem.key)} again at line ${line}, column ${column}`);
   }
+  if (problem.code === 'lone_surrogate') {
+    return error('lone_surrogate', place, `${field} requires Unicode text (RFC 8259 section 8.2; RFC 7493 section 2.1), got a \\u escape of half a surrogate pair at line ${line}, column ${column}: it would print as U+FFFD, like any other`);
+  }
   return error('forbidden_key', place, `keys named \`__proto__\`, \`constructor\` or \`prototype\` are refused, got ${show(problem.key)} at line ${line}, column ${column}`);
 }
 
@@ -112,8 +115,14 @@ export function parseJsonText(text: string, file: string, maxBytes: number = MAX
     return fail([error('empty_file', file, 'a JSON document requires some content, got an empty file')]);
   }
   // Text decoded from UTF-16 as if it were UTF-8 is full of NUL bytes; JSON allows none, even in strings.
-  if (body.includes('\u0000')) {
-    return fail([error('wrong_encoding', file, 'a JSON document requires UTF-8 text, got NUL bytes (as UTF-16 text has): save the file as UTF-8')]);
+  const nul = body.indexOf('\u0000');
+  if (nul >= 0) {
+    const head = body.slice(0, 64);
+    if (head.length - head.replaceAll('\u0000', '').length >= head.length / 4) {
+      return fail([error('wrong_encoding', file, 'a JSON document requires UTF-8 text, got NUL bytes (as UTF-16 text has): save the file as UTF-8')]);
+    }
+    const { line, column } = lineAndColumn(body, nul);
+    return fail([error('invalid_json', `${file}:${line}:${column}`, 'the file requires well-formed JSON, got a NUL character: JSON allows none, not even in strings (write it as \\u0000 there)')]);
   }
   let value: unknown;
   try {
