@@ -23,7 +23,8 @@
 /** Documented limit: arrays and objects nested at most this deep. */
 export const MAX_JSON_DEPTH = 64;
 
-const FORBIDDEN_KEYS = new Set(['__proto__', 'constructor', 'prototype']);
+/** Keys refused anywhere in a document: they can reach an object's prototype. */
+export const FORBIDDEN_KEYS: ReadonlySet<string> = new Set(['__proto__', 'constructor', 'prototype']);
 
 export interface StructureProblem {
   readonly code: 'too_deep' | 'duplicate_key' | 'forbidden_key' | 'lone_surrogate';
