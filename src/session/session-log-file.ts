@@ -110,3 +110,20 @@ export function parseSessionLog(text: string, file = 'session.jsonl'): Result<Se
   if (later > 0) return fail([error('invalid_log', `${file}:${String(lineOf[later])}`, 'a session log requires exactly one start event (one match a log), got a second one')]);
   return ok(events);
 }
+
+/**
+ * Events given as values rather than read from a log (replaySession's input):
+ * each checked with a log line's schema, issues at `events[i]:field`. The
+ * checked copies are returned, so a value changed after the check is not read.
+ */
+export function checkSessionEvents(events: readonly unknown[]): Result<SessionEvent[]> {
+  const checked: SessionEvent[] = [];
+  const issues: Issue[] = [];
+  for (let index = 0; index < events.length && issues.length < 20; index += 1) {
+    const event = events[index];
+    const parsed = eventSchema.safeParse(event);
+    if (parsed.success) checked.push(parsed.data as SessionEvent);
+    else issues.push(...fromZodIssues(parsed.error.issues, event, `events[${index}]`));
+  }
+  return issues.length > 0 ? fail(issues) : ok(checked);
+}
