@@ -15,7 +15,9 @@
  * `exit` (the documented exit code: 0 ok, 1 a check failed, 2 bad input);
  * `code` (an issue code the output must carry, or null); `place` (the start of
  * that issue's line: the file, then the line and column or the field path);
- * `line` (where the issue must name a line: the number it must name); `note`.
+ * `line` (where the issue must name a line: the number it must name); `shows`
+ * (text the output must contain, such as an id's escaped form); `issues` (how
+ * many issue lines, where one is the point); `note`.
  */
 import { mkdirSync, readdirSync, rmSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
@@ -30,6 +32,10 @@ export interface HostileCase {
   readonly code: string | null;
   readonly place: string | null;
   readonly line?: number;
+  /** Text the output (stdout or stderr) must contain: an escaped id, the range a message gives. */
+  readonly shows?: string;
+  /** How many issue lines the output must have, where that is the point (one wrong_kind issue). */
+  readonly issues?: number;
   readonly note: string;
 }
 
@@ -405,16 +411,17 @@ export function hostileCorpus(): HostileCorpus {
     ['line-separator', '\\u2028'],
     ['backspace', '\\b\\b\\b'],
   ];
+  const shown: Record<string, string> = { esc: '\\u001b[31m', nul: '\\u0000', bel: '\\u0007', del: '\\u007f', 'csi-c1': '\\u009b2J', 'bidi-override': '\\u202e', 'line-separator': '\\u2028', backspace: '\\u0008\\u0008\\u0008' };
   for (const [name, escape] of controls) {
-    add(`control-id-${name}.json`, swap(L, '"id": "kestrelby"', `"id": "kestrel${escape}by"`), { command: 'balance', exit: 0, code: null, place: null, note: `a player id holding ${name}: balanced, the id printed escaped` });
+    add(`control-id-${name}.json`, swap(L, '"id": "kestrelby"', `"id": "kestrel${escape}by"`), { command: 'balance', exit: 0, code: null, place: null, shows: `kestrel${shown[name] as string}by`, note: `a player id holding ${name}: balanced, the id printed escaped in the table` });
   }
-  add('control-id-esc-json.json', swap(L, '"id": "kestrelby"', '"id": "kestrel\\u001b]0;title\\u0007by"'), { command: 'balance-json', exit: 0, code: null, place: null, note: 'an id with an OSC title sequence, balance --json: escaped in the JSON too' });
-  add('control-team-esc.json', swap(L, '"team": "Tidewater Gulls"', '"team": "Tidewater\\u001b[2J Gulls"'), { command: 'audit', exit: 0, code: null, place: null, note: 'a team name with ESC[2J (clear screen) through audit' });
+  add('control-id-esc-json.json', swap(L, '"id": "kestrelby"', '"id": "kestrel\\u001b]0;title\\u0007by"'), { command: 'balance-json', exit: 0, code: null, place: null, shows: 'kestrel\\u001b]0;title\\u0007by', note: 'an id with an OSC title sequence, balance --json: escaped in the JSON too' });
+  add('control-team-esc.json', swap(L, '"team": "Tidewater Gulls"', '"team": "Tidewater\\u001b[2J Gulls"'), { command: 'audit', exit: 0, code: null, place: null, shows: 'Tidewater\\u001b[2J Gulls', note: 'a team name with ESC[2J (clear screen) through audit' });
   add('control-match-id.json', swap(L, '"match_id": "tidewater-s1-w02-gulls-otters"', '"match_id": "tidewater\\u001b[1A\\r\\u0000"'), { command: 'balance', exit: 0, code: null, place: null, note: 'a match id with cursor-up, CR and NUL' });
-  add('control-server-name.json', S.replaceAll('quay-north', 'quay\\u001b[5mnorth'), { command: 'choose-server', exit: 0, code: null, place: null, note: 'a server id with ESC[5m (blink) through choose-server' });
+  add('control-server-name.json', S.replaceAll('quay-north', 'quay\\u001b[5mnorth'), { command: 'choose-server', exit: 0, code: null, place: null, shows: 'quay\\u001b[5mnorth', note: 'a server id with ESC[5m (blink) through choose-server' });
   add('control-id-duplicate.json', swap(L, '"id": "dunmoor"', '"id": "kestrelby\\u0000"').replace('"id": "kestrelby"', '"id": "kestrelby\\u0000"'), { command: 'validate:lobby', exit: 2, code: 'duplicate_player', place: 'control-id-duplicate.json:players[1].id', note: 'two ids equal with their NUL: the duplicate named, the NUL escaped' });
-  add('control-unknown-key.json', swap(L, '"attribute": "hit_area",', '"attribute": "hit_area",\n  "x\\u001b[31my": 1,'), { command: 'validate', exit: 2, code: 'unknown_field', place: 'control-unknown-key.json', note: 'an unknown key with ESC: named escaped in the issue' });
-  add('control-difficulty.json', swap(L, '"difficulty": "veteran"', '"difficulty": "vet\\u001b[8meran"'), { command: 'balance', exit: 2, code: 'wrong_difficulty', place: 'control-difficulty.json:difficulty', note: 'an unknown difficulty with ESC[8m (hidden text): named escaped' });
+  add('control-unknown-key.json', swap(L, '"attribute": "hit_area",', '"attribute": "hit_area",\n  "x\\u001b[31my": 1,'), { command: 'validate', exit: 2, code: 'unknown_field', place: 'control-unknown-key.json', shows: 'x\\u001b[31my', note: 'an unknown key with ESC: named escaped in the issue' });
+  add('control-difficulty.json', swap(L, '"difficulty": "veteran"', '"difficulty": "vet\\u001b[8meran"'), { command: 'balance', exit: 2, code: 'wrong_difficulty', place: 'control-difficulty.json:difficulty', shows: 'vet\\u001b[8meran', note: 'an unknown difficulty with ESC[8m (hidden text): named escaped' });
   add('control-format-tag.json', swap(L, '"format": "lagparity/lobby@1"', '"format": "lagparity/lobby@1\\u0007"'), { command: 'validate', exit: 2, code: 'unknown_format', place: 'control-format-tag.json:format', note: 'a format tag ending in BEL' });
   add('control-raw-in-string.json', withBytes(L, 'kestrelby', [0x6b, 0x1b, 0x5b, 0x33, 0x31, 0x6d, 0x07]), { command: 'validate', exit: 2, code: 'invalid_json', place: `control-raw-in-string.json:${lineOf(L, 'kestrelby')}:`, line: lineOf(L, 'kestrelby'), note: 'raw ESC and BEL bytes inside a string: not JSON, and not echoed raw' });
   add('control-raw-outside.json', withBytes(L, '"attribute"', [0x1b, 0x5b, 0x32, 0x4a, 0x22, 0x61, 0x74, 0x74, 0x72, 0x69, 0x62, 0x75, 0x74, 0x65, 0x22]), { command: 'validate', exit: 2, code: 'invalid_json', place: `control-raw-outside.json:${lineOf(L, '"attribute"')}:`, line: lineOf(L, '"attribute"'), note: 'a raw ESC[2J between tokens' });
@@ -442,7 +449,7 @@ export function hostileCorpus(): HostileCorpus {
       ['utf32be-bom', utf32(base, true, true), 'UTF-32'],
       ['utf32be', utf32(base, true, false), 'UTF-32'],
     ] as const) {
-      add(`encoding-${kind}-${name}.json`, bytes, { command, exit: 2, code: 'wrong_encoding', place: `encoding-${kind}-${name}.json`, note: `a ${kind} saved as ${encoding}${name.endsWith('bom') ? ' with a byte-order mark' : ' without a byte-order mark'} (message names ${encoding})` });
+      add(`encoding-${kind}-${name}.json`, bytes, { command, exit: 2, code: 'wrong_encoding', place: `encoding-${kind}-${name}.json`, shows: `got ${encoding} text`, note: `a ${kind} saved as ${encoding}${name.endsWith('bom') ? ' with a byte-order mark' : ' without a byte-order mark'} (message names ${encoding})` });
     }
   }
   add('encoding-plan-utf16le-bom.json', utf16(P, false, true), { command: 'plan-schedule', exit: 2, code: 'wrong_encoding', place: 'encoding-plan-utf16le-bom.json', note: 'a plan saved as UTF-16 (plan schedule --out)' });
@@ -531,7 +538,7 @@ export function hostileCorpus(): HostileCorpus {
       ['array', `["${tag}"]`],
       ['number', '1'],
     ] as const) {
-      add(`format-${name}-${kind}.json`, swap(base, `"format": "${tag}"`, `"format": ${value}`), { command: `validate:${kind}`, exit: 2, code: 'invalid_value', place: `format-${name}-${kind}.json:format`, line: 2, note: `a ${kind} whose format tag is ${name === 'array' ? 'an array' : `an ${name}`.replace('an number', 'a number')}: says a string is expected` });
+      add(`format-${name}-${kind}.json`, swap(base, `"format": "${tag}"`, `"format": ${value}`), { command: `validate:${kind}`, exit: 2, code: 'invalid_value', place: `format-${name}-${kind}.json:format`, line: 2, shows: '(a string)', note: `a ${kind} whose format tag is ${name === 'array' ? 'an array' : `an ${name}`.replace('an number', 'a number')}: says a string is expected` });
     }
   }
   for (const [name, value] of [
@@ -544,20 +551,24 @@ export function hostileCorpus(): HostileCorpus {
   ] as const) {
     add(`format-auto-${name}.json`, swap(L, '"format": "lagparity/lobby@1"', `"format": ${value}`), { command: 'validate', exit: 2, code: 'unknown_format', place: `format-auto-${name}.json:format`, note: `validate without --kind, a format tag ${value}` });
   }
-  add('wrong-kind-rules-as-model.json', R, { command: 'balance-model', exit: 2, code: 'wrong_kind', place: 'wrong-kind-rules-as-model.json:format', line: 2, note: 'a rules file given as --model: one issue saying it is a rules file' });
-  add('wrong-kind-model-as-rules.json', M, { command: 'balance-rules', exit: 2, code: 'wrong_kind', place: 'wrong-kind-model-as-rules.json:format', line: 2, note: 'a model given as --rules' });
-  add('wrong-kind-lobby-as-model.json', L, { command: 'balance-model', exit: 2, code: 'wrong_kind', place: 'wrong-kind-lobby-as-model.json:format', line: 2, note: 'a lobby given as --model' });
-  add('wrong-kind-servers-as-lobby.json', S, { command: 'balance', exit: 2, code: 'wrong_kind', place: 'wrong-kind-servers-as-lobby.json:format', line: 2, note: 'a server-choice lobby given to balance' });
-  add('wrong-kind-lobby-as-servers.json', L, { command: 'choose-server', exit: 2, code: 'wrong_kind', place: 'wrong-kind-lobby-as-servers.json:format', line: 2, note: 'a lobby given to choose-server' });
-  add('wrong-kind-plan-as-rules.json', P, { command: 'audit-rules', exit: 2, code: 'wrong_kind', place: 'wrong-kind-plan-as-rules.json:format', line: 2, note: 'a plan given as the audit rules' });
-  add('wrong-kind-model-as-plan.json', M, { command: 'plan-schedule', exit: 2, code: 'wrong_kind', place: 'wrong-kind-model-as-plan.json:format', line: 2, note: 'a model given to plan schedule' });
-  add('wrong-kind-rules-as-lobby-report.json', R, { command: 'report-lobby', exit: 2, code: 'wrong_kind', place: 'wrong-kind-rules-as-lobby-report.json:format', line: 2, note: 'a rules file given to report --lobbies: nothing written' });
-  add('wrong-kind-model-as-lobby.json', M, { command: 'validate:lobby', exit: 2, code: 'wrong_kind', place: 'wrong-kind-model-as-lobby.json:format', line: 2, note: 'validate --kind lobby on a model' });
+  add('wrong-kind-rules-as-model.json', R, { command: 'balance-model', exit: 2, code: 'wrong_kind', place: 'wrong-kind-rules-as-model.json:format', line: 2, issues: 1, shows: 'got a rules file (its `format`', note: 'a rules file given as --model: one issue saying it is a rules file' });
+  add('wrong-kind-model-as-rules.json', M, { command: 'balance-rules', exit: 2, code: 'wrong_kind', place: 'wrong-kind-model-as-rules.json:format', line: 2, issues: 1, shows: 'got a model (its `format`', note: 'a model given as --rules' });
+  add('wrong-kind-lobby-as-model.json', L, { command: 'balance-model', exit: 2, code: 'wrong_kind', place: 'wrong-kind-lobby-as-model.json:format', line: 2, issues: 1, shows: 'got a lobby (its `format`', note: 'a lobby given as --model' });
+  add('wrong-kind-servers-as-lobby.json', S, { command: 'balance', exit: 2, code: 'wrong_kind', place: 'wrong-kind-servers-as-lobby.json:format', line: 2, issues: 1, shows: 'got a server-choice lobby (its `format`', note: 'a server-choice lobby given to balance' });
+  add('wrong-kind-lobby-as-servers.json', L, { command: 'choose-server', exit: 2, code: 'wrong_kind', place: 'wrong-kind-lobby-as-servers.json:format', line: 2, issues: 1, shows: 'got a lobby (its `format`', note: 'a lobby given to choose-server' });
+  add('wrong-kind-plan-as-rules.json', P, { command: 'audit-rules', exit: 2, code: 'wrong_kind', place: 'wrong-kind-plan-as-rules.json:format', line: 2, issues: 1, shows: 'got a playtest plan (its `format`', note: 'a plan given as the audit rules' });
+  add('wrong-kind-model-as-plan.json', M, { command: 'plan-schedule', exit: 2, code: 'wrong_kind', place: 'wrong-kind-model-as-plan.json:format', line: 2, issues: 1, shows: 'got a model (its `format`', note: 'a model given to plan schedule' });
+  add('wrong-kind-rules-as-lobby-report.json', R, { command: 'report-lobby', exit: 2, code: 'wrong_kind', place: 'wrong-kind-rules-as-lobby-report.json:format', line: 2, issues: 1, shows: 'got a rules file (its `format`', note: 'a rules file given to report --lobbies: nothing written' });
+  add('wrong-kind-model-as-lobby.json', M, { command: 'validate:lobby', exit: 2, code: 'wrong_kind', place: 'wrong-kind-model-as-lobby.json:format', line: 2, issues: 1, shows: 'got a model (its `format`', note: 'validate --kind lobby on a model' });
 
   // --- 9. Rules messages: ranges, spelling, comments, warnings.
   const rule = (file: string, from: string, to: string, command: string, exit: 0 | 1 | 2, code: string, path: string, marker: string | null, note: string): void => {
     const text = swap(R, from, to);
     add(file, text, { command, exit, code, place: `${file}${path === '' ? '' : `:${path}`}`, ...(marker === null ? {} : { line: lineOf(text, marker) }), note });
+  };
+  const ruleShows = (file: string, shows: string): void => {
+    const index = cases.findIndex((entry) => entry.file === file);
+    cases[index] = { ...(cases[index] as HostileCase), shows };
   };
   rule('rules-gap-2.json', '"accepted_gap": 0.02', '"accepted_gap": 2', 'validate:rules', 2, 'out_of_range', 'accepted_gap', '"accepted_gap"', 'accepted_gap 2: the message gives the allowed range');
   rule('rules-gap-negative.json', '"accepted_gap": 0.02', '"accepted_gap": -0.1', 'balance-rules', 2, 'out_of_range', 'accepted_gap', '"accepted_gap"', 'accepted_gap -0.1');
@@ -580,6 +591,13 @@ export function hostileCorpus(): HostileCorpus {
   rule('rules-hex-number.json', '"latency_limit_ms": 220', '"latency_limit_ms": 0xdc', 'validate:rules', 2, 'invalid_json', `${lineOf(R, '"latency_limit_ms"')}:`, '"latency_limit_ms"', 'a hexadecimal number');
   rule('rules-leading-zero.json', '"latency_limit_ms": 220', '"latency_limit_ms": 0220', 'validate:rules', 2, 'invalid_json', `${lineOf(R, '"latency_limit_ms"')}:`, '"latency_limit_ms"', 'a number with a leading zero');
   rule('rules-ratio-string.json', '"max_scale_ratio": null', '"max_scale_ratio": "1.2"', 'validate:rules', 2, 'wrong_type', 'max_scale_ratio', '"max_scale_ratio"', 'a ratio as a string');
+  ruleShows('rules-gap-2.json', 'requires a probability above 0 and at most 1, got 2');
+  ruleShows('rules-typo-gap.json', 'did you mean "accepted_gap"');
+  ruleShows('rules-typo-cap.json', 'did you mean "scale_cap"');
+  ruleShows('rules-typo-nested.json', 'did you mean "fraction"');
+  ruleShows('rules-comment-line.json', 'JSON (RFC 8259) has no comments');
+  ruleShows('rules-comment-block.json', 'JSON (RFC 8259) has no comments');
+  ruleShows('rules-floor-0.8.json', 'a handicap');
   rule('rules-soft-cap-array.json', '"soft_cap": {', '"soft_cap": [], "x": {', 'validate:rules', 2, 'wrong_type', 'soft_cap', '"soft_cap"', 'soft_cap as an array');
 
   // --- 10. Whole documents that are not documents.
@@ -656,7 +674,7 @@ export function hostileCorpus(): HostileCorpus {
   // --- 14. Plans.
   add('plan-format-array.json', swap(P, '"format": "lagparity/playtest-plan@1"', '"format": ["lagparity/playtest-plan@1"]'), { command: 'plan-schedule', exit: 2, code: 'invalid_value', place: 'plan-format-array.json:format', line: 2, note: 'a plan whose format tag is an array' });
   add('plan-comment.json', swap(P, '"seed": 7', '"seed": 7 // fixed'), { command: 'plan-schedule', exit: 2, code: 'invalid_json', place: `plan-comment.json:${lineOf(P, '"seed"')}:`, line: lineOf(P, '"seed"'), note: 'a plan with a comment' });
-  add('plan-typo.json', swap(P, '"participants"', '"participents"'), { command: 'plan-schedule', exit: 2, code: 'unknown_field', place: 'plan-typo.json:participents', line: lineOf(P, '"participants"'), note: 'participents: did you mean participants' });
+  add('plan-typo.json', swap(P, '"participants"', '"participents"'), { command: 'plan-schedule', exit: 2, code: 'unknown_field', place: 'plan-typo.json:participents', line: lineOf(P, '"participants"'), shows: 'did you mean "participants"', note: 'participents: did you mean participants' });
   add('plan-participants-huge.json', swap(P, '"participants": 8', '"participants": 1e9'), { command: 'plan-schedule', exit: 2, code: 'out_of_range', place: 'plan-participants-huge.json:participants', note: 'a billion participants' });
   add('plan-label-control.json', swap(P, '"label": "Tidewater league: hostile corpus plan"', '"label": "Tidewater\\u001b[31m\\u0007 plan"'), { command: 'plan-schedule', exit: 0, code: null, place: null, note: 'a plan label with ESC and BEL: the schedule is written' });
 

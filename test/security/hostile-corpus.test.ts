@@ -6,7 +6,9 @@
  *   - the documented exit code (0 ok, 1 a check failed, 2 bad input);
  *   - the issue code, on a line starting with the place (the file, then the
  *     line and column or the field path), and the line number where the table
- *     gives one;
+ *     gives one; text the output must show (an id's escaped form, the range a
+ *     message gives, "did you mean") and the number of issues where one is
+ *     the point;
  *   - no stack trace and no "internal error"; no NaN (unless the file holds
  *     the word); no raw control character (C0 but tab and line feed, DEL, C1,
  *     bidi marks, line separators) in stdout or stderr;
@@ -184,6 +186,8 @@ describe(`the hostile-input corpus (${cases.length} file cases)`, () => {
     } else if (entry.place !== null) {
       expect(issueLines.some((text) => text.startsWith(entry.place as string)), `no issue at ${entry.place} in\n${outcome.stderr}`).toBe(true);
     }
+    if (entry.shows !== undefined) expect(both, `the output should show ${entry.shows}`).toContain(entry.shows);
+    if (entry.issues !== undefined) expect(issueLines, outcome.stderr).toHaveLength(entry.issues);
     if (entry.exit === 2) {
       expect(issueLines.some((text) => text.startsWith(entry.file) && text.includes(': error ')), `an error naming ${entry.file} in\n${outcome.stderr}`).toBe(true);
     }
