@@ -23,8 +23,12 @@
 /** Documented limit: arrays and objects nested at most this deep. */
 export const MAX_JSON_DEPTH = 64;
 
-/** Keys refused anywhere in a document: they can reach an object's prototype. */
-export const FORBIDDEN_KEYS: ReadonlySet<string> = new Set(['__proto__', 'constructor', 'prototype']);
+const FORBIDDEN_KEYS = new Set(['__proto__', 'constructor', 'prototype']);
+
+/** Whether a key is refused anywhere in a document (it can reach an object's prototype). */
+export function isForbiddenKey(key: string): boolean {
+  return FORBIDDEN_KEYS.has(key);
+}
 
 export interface StructureProblem {
   readonly code: 'too_deep' | 'duplicate_key' | 'forbidden_key' | 'lone_surrogate';

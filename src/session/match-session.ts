@@ -45,7 +45,7 @@
 import { LagparityInputError, error, show } from '../issues.js';
 import { compiledInputIssues } from '../solver/entry-checks.js';
 import { readSafely } from '../validated.js';
-import { FORBIDDEN_KEYS } from '../formats/json-structure.js';
+import { isForbiddenKey } from '../formats/json-structure.js';
 import { type LobbyFile, MAX_PLAYERS } from '../formats/lobby-types.js';
 import type { CompiledModel } from '../model/compile.js';
 import type { CompiledRules } from '../solver/rules.js';
@@ -226,7 +226,7 @@ export class MatchSession {
     const known = this.players.get(id);
     const problem = !isName(id)
       ? 'join with an id that is not 1 to 128 characters: ignored'
-      : FORBIDDEN_KEYS.has(id)
+      : isForbiddenKey(id)
         ? `join with the id ${JSON.stringify(id)}, which the session log cannot hold as a key: ignored`
         : team !== null && !isName(team)
         ? 'join with a team that is not 1 to 128 characters: ignored'
