@@ -419,6 +419,7 @@ export function hostileCorpus(): HostileCorpus {
   add('control-team-esc.json', swap(L, '"team": "Tidewater Gulls"', '"team": "Tidewater\\u001b[2J Gulls"'), { command: 'audit', exit: 0, code: null, place: null, shows: 'Tidewater\\u001b[2J Gulls', note: 'a team name with ESC[2J (clear screen) through audit' });
   add('control-match-id.json', swap(L, '"match_id": "tidewater-s1-w02-gulls-otters"', '"match_id": "tidewater\\u001b[1A\\r\\u0000"'), { command: 'balance', exit: 0, code: null, place: null, note: 'a match id with cursor-up, CR and NUL' });
   add('control-server-name.json', S.replaceAll('quay-north', 'quay\\u001b[5mnorth'), { command: 'choose-server', exit: 0, code: null, place: null, shows: 'quay\\u001b[5mnorth', note: 'a server id with ESC[5m (blink) through choose-server' });
+  add('control-report-ids.json', swap(swap(L, '"id": "kestrelby"', '"id": "kestrel\\u001b[31m\\u202eby"'), '"team": "Tidewater Gulls"', '"team": "Tide\\u0007water"'), { command: 'report-lobby', exit: 0, code: null, place: null, note: 'ids and teams with ESC, a bidi override and BEL in the HTML report: written, with no raw control character in it' });
   add('control-id-duplicate.json', swap(L, '"id": "dunmoor"', '"id": "kestrelby\\u0000"').replace('"id": "kestrelby"', '"id": "kestrelby\\u0000"'), { command: 'validate:lobby', exit: 2, code: 'duplicate_player', place: 'control-id-duplicate.json:players[1].id', note: 'two ids equal with their NUL: the duplicate named, the NUL escaped' });
   add('control-unknown-key.json', swap(L, '"attribute": "hit_area",', '"attribute": "hit_area",\n  "x\\u001b[31my": 1,'), { command: 'validate', exit: 2, code: 'unknown_field', place: 'control-unknown-key.json', shows: 'x\\u001b[31my', note: 'an unknown key with ESC: named escaped in the issue' });
   add('control-difficulty.json', swap(L, '"difficulty": "veteran"', '"difficulty": "vet\\u001b[8meran"'), { command: 'balance', exit: 2, code: 'wrong_difficulty', place: 'control-difficulty.json:difficulty', shows: 'vet\\u001b[8meran', note: 'an unknown difficulty with ESC[8m (hidden text): named escaped' });
@@ -430,7 +431,7 @@ export function hostileCorpus(): HostileCorpus {
   {
     const lines = G.split('\n');
     lines[1] = (lines[1] as string).replace(/"id":"([a-z]+)"/, '"id":"$1\\u001b[31m"');
-    add('control-session-id.jsonl', lines.join('\n'), { command: 'replay', exit: 1, code: null, place: null, note: 'a session log edited to put ESC into one id (its join): the replay differs (exit 1), the id printed escaped' });
+    add('control-session-id.jsonl', lines.join('\n'), { command: 'replay', exit: 1, code: null, place: null, shows: '\\u001b[31m', note: 'a session log edited to put ESC into one id (its join): the replay differs (exit 1), the id printed escaped' });
   }
 
   // --- 5. Encodings: UTF-16 and UTF-32 named as such, bytes that are not UTF-8 refused.

@@ -199,6 +199,7 @@ describe(`the hostile-input corpus (${cases.length} file cases)`, () => {
       if (entry.exit === 0) {
         expect(written).not.toBe(SENTINEL);
         expect(written).not.toMatch(/NaN/);
+        expect(RAW_CONTROL.exec(written)?.[0], 'a raw control character in the written file').toBeUndefined();
       } else expect(written, 'a failure leaves the existing file as it was').toBe(SENTINEL);
     } else if (entry.exit === 2 && !entry.command.startsWith('validate')) {
       // A rejected lobby may be named as rejected on stdout (with its reason), but no answer: no table, no JSON result.
