@@ -380,6 +380,10 @@ export function hostileCorpus(): HostileCorpus {
   duplicate('dup-plan-latency.json', P, '"latency_ms": [', '"latency_ms": [0],\n  "latency_ms": [', 'plan-schedule', 'latency_ms', '"latency_ms": [\n', 'a plan with latency_ms twice (plan schedule --out)');
   duplicate('dup-unknown-field.json', L, '"attribute": "hit_area",', '"attribute": "hit_area",\n  "note": 1,\n  "note": 2,', 'validate:lobby', 'note', '"note": 2', 'an unknown field twice: the duplicate is named, not only the unknown field');
   {
+    const text = swap(L, '"latency_ms": 71', '"latency_ms": 71,\n      "latency_ms": 7').replaceAll('\n', '\r\n');
+    add('dup-crlf.json', text, { command: 'balance', exit: 2, code: 'duplicate_key', place: 'dup-crlf.json:players[3].latency_ms', line: lineOf(text, '"latency_ms": 7\r'), note: 'latency_ms twice in a file with CRLF line ends: the line counted right' });
+  }
+  {
     const lines = G.split('\n');
     lines[1] = (lines[1] as string).replace('"type":"join",', '"type":"join","type":"leave",');
     add('dup-session-type.jsonl', lines.join('\n'), { command: 'replay', exit: 2, code: 'duplicate_key', place: 'dup-session-type.jsonl:2', line: 2, note: 'a session log line with its type twice (join, then leave)' });
@@ -420,6 +424,8 @@ export function hostileCorpus(): HostileCorpus {
   add('control-match-id.json', swap(L, '"match_id": "tidewater-s1-w02-gulls-otters"', '"match_id": "tidewater\\u001b[1A\\r\\u0000"'), { command: 'balance', exit: 0, code: null, place: null, note: 'a match id with cursor-up, CR and NUL' });
   add('control-server-name.json', S.replaceAll('quay-north', 'quay\\u001b[5mnorth'), { command: 'choose-server', exit: 0, code: null, place: null, shows: 'quay\\u001b[5mnorth', note: 'a server id with ESC[5m (blink) through choose-server' });
   add('control-report-ids.json', swap(swap(L, '"id": "kestrelby"', '"id": "kestrel\\u001b[31m\\u202eby"'), '"team": "Tidewater Gulls"', '"team": "Tide\\u0007water"'), { command: 'report-lobby', exit: 0, code: null, place: null, note: 'ids and teams with ESC, a bidi override and BEL in the HTML report: written, with no raw control character in it' });
+  add('control-unknown-key-json.json', swap(L, '"attribute": "hit_area",', '"attribute": "hit_area",\n  "x\\u001b[31m\\u202ey": 1,'), { command: 'validate-json', exit: 2, code: null, place: null, shows: 'x\\u001b[31m\\u202ey', note: 'validate --json on an unknown key with ESC and a bidi override: the JSON document holds the escapes' });
+  add('control-team-audit-json.json', swap(L, '"team": "Marram Otters"', '"team": "Marram\\u009b31m Otters"'), { command: 'audit-json', exit: 0, code: null, place: null, shows: 'Marram\\u009b31m Otters', note: 'audit --json with a C1 CSI (U+009B) in a team name' });
   add('control-id-duplicate.json', swap(L, '"id": "dunmoor"', '"id": "kestrelby\\u0000"').replace('"id": "kestrelby"', '"id": "kestrelby\\u0000"'), { command: 'validate:lobby', exit: 2, code: 'duplicate_player', place: 'control-id-duplicate.json:players[1].id', note: 'two ids equal with their NUL: the duplicate named, the NUL escaped' });
   add('control-unknown-key.json', swap(L, '"attribute": "hit_area",', '"attribute": "hit_area",\n  "x\\u001b[31my": 1,'), { command: 'validate', exit: 2, code: 'unknown_field', place: 'control-unknown-key.json', shows: 'x\\u001b[31my', note: 'an unknown key with ESC: named escaped in the issue' });
   add('control-difficulty.json', swap(L, '"difficulty": "veteran"', '"difficulty": "vet\\u001b[8meran"'), { command: 'balance', exit: 2, code: 'wrong_difficulty', place: 'control-difficulty.json:difficulty', shows: 'vet\\u001b[8meran', note: 'an unknown difficulty with ESC[8m (hidden text): named escaped' });
@@ -650,6 +656,7 @@ export function hostileCorpus(): HostileCorpus {
 
   // --- 12. Server lobbies: ids that name Object's properties, missing entries.
   add('servers-named-constructor.json', S.replaceAll('cliff-west', 'constructor'), { command: 'validate', exit: 2, code: 'forbidden_key', place: 'servers-named-constructor.json:players[0].latency_ms.constructor', note: 'a server named constructor: refused as a key' });
+  add('servers-named-proto-value.json', swap(S, '"cliff-west"\n  ]', '"cliff-west",\n    "__proto__"\n  ]'), { command: 'choose-server', exit: 2, code: 'missing_server_latency', place: 'servers-named-proto-value.json:players[0].latency_ms', note: 'a server named __proto__ in the list (a value): no player can have a latency to it as a key, so it is missing' });
   add('servers-missing-latency.json', swap(S, '"quay-north": 15,', ''), { command: 'choose-server', exit: 2, code: null, place: 'servers-missing-latency.json:players[0].latency_ms', note: 'a player without a latency to one server' });
   add('servers-named-to-string.json', swap(S, '"cliff-west"\n  ]', '"cliff-west",\n    "toString"\n  ]'), { command: 'choose-server', exit: 2, code: null, place: 'servers-named-to-string.json:players[0].latency_ms', note: 'a server named toString that no player has a latency for: missing, not read from Object.prototype' });
 

@@ -157,6 +157,17 @@ const cases: ApiCase[] = [
   { name: 'balanceLobby: views.duel "yes" throws', run: () => balanceLobby(lobby, model, rules, as({ views: { duel: 'yes' } })), expect: { throws: TypeError, message: /`options\.views\.duel` requires true or false/ } },
   { name: 'balanceLobby: options null throws', run: () => balanceLobby(lobby, model, rules, as(null)), expect: { throws: TypeError, message: /`options` requires an object/ } },
 
+  { name: 'balanceLobby: a latency nested 1,000,000 arrays deep (a value, not text)', run: () => {
+    let deep: unknown = 20;
+    for (let level = 0; level < 1_000_000; level += 1) deep = [deep];
+    return balanceLobby(withPlayer(0, 'latency_ms', deep), model, rules);
+  }, expect: { status: 'rejected', code: 'wrong_type' } },
+  { name: 'balanceLobby: an unknown field nested 1,000,000 objects deep', run: () => {
+    let deep: unknown = 1;
+    for (let level = 0; level < 1_000_000; level += 1) deep = { a: deep };
+    return balanceLobby(withPlayer(0, 'extra', deep), model, rules);
+  }, expect: { status: 'rejected', code: 'unknown_field' } },
+
   // compileModel / compileRules: failures with a code, never an exception out of them.
   { name: 'compileModel: a coefficients getter that throws', run: () => compileModel(throwingGetter(copy(modelDocument), 'coefficients')), expect: { failure: 'unreadable_input' } },
   { name: 'compileModel: a covariance row that throws when read', run: () => {

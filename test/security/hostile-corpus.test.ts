@@ -66,6 +66,8 @@ function prepare(entry: HostileCase, index: number, scratch: string): Prepared {
   switch (command) {
     case 'validate':
       return { args: kind === undefined ? ['validate', file] : ['validate', '--kind', kind, file], out: null };
+    case 'validate-json':
+      return { args: ['validate', '--json', file], out: null };
     case 'balance':
       return { args: ['balance', file, '--model', model], out: null };
     case 'balance-json':
@@ -84,6 +86,8 @@ function prepare(entry: HostileCase, index: number, scratch: string): Prepared {
       return { args: ['balance', support('lobby.json'), '--model', model, '--rules', file], out: null };
     case 'balance-rules-strict':
       return { args: ['balance', support('lobby.json'), '--model', model, '--rules', file, '--strict'], out: null };
+    case 'audit-json':
+      return { args: ['audit', file, '--model', model, '--rules', support('rules.json'), '--json'], out: null };
     case 'audit':
       return { args: ['audit', file, '--model', model, '--rules', support('rules.json')], out: null };
     case 'audit-heavy':
