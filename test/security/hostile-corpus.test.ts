@@ -27,12 +27,12 @@
  * needing more heap ends it (and this test fails), and its peak resident set
  * (process.resourceUsage().maxRSS after every case) is asserted below 2 GiB.
  */
-import { spawnSync } from 'node:child_process';
 import { existsSync, mkdirSync, mkdtempSync, readFileSync, readdirSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { ROOT } from '../helpers/demo.js';
+import { type BatchRun, runCliBatch } from '../helpers/cli.js';
 import { type HostileCase, hostileCorpus } from '../../tools/generate-hostile-corpus.js';
 
 const FOLDER = join(ROOT, 'test', 'fixtures', 'hostile');
@@ -116,13 +116,7 @@ function prepare(entry: HostileCase, index: number, scratch: string): Prepared {
   }
 }
 
-interface Outcome {
-  readonly status: number;
-  readonly stdout: string;
-  readonly stderr: string;
-  readonly ms: number;
-  readonly maxRss: number;
-}
+type Outcome = BatchRun;
 
 const scratch = mkdtempSync(join(tmpdir(), 'lagparity-hostile-'));
 const prepared = cases.map((entry, index) => prepare(entry, index, scratch));
@@ -130,19 +124,9 @@ let outcomes: Outcome[] = [];
 let wallMs = 0;
 
 beforeAll(() => {
-  const list = join(scratch, 'cases.json');
-  writeFileSync(list, JSON.stringify(prepared.map(({ args }) => ({ args }))));
   const started = performance.now();
-  const run = spawnSync(process.execPath, ['--max-old-space-size=2048', join(ROOT, 'test', 'helpers', 'cli-batch.mjs'), list], {
-    cwd: FOLDER,
-    encoding: 'utf8',
-    env: { ...process.env, NO_COLOR: '1' },
-    maxBuffer: 256 * 1024 * 1024,
-    timeout: 170_000,
-  });
+  outcomes = runCliBatch(prepared.map(({ args }) => args), { cwd: FOLDER });
   wallMs = performance.now() - started;
-  if (run.status !== 0) throw new Error(`the batch process failed (status ${run.status}, signal ${run.signal}):\n${run.stderr.slice(-4000)}`);
-  outcomes = JSON.parse(run.stdout) as Outcome[];
 }, 180_000);
 
 afterAll(() => {
