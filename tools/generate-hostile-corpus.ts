@@ -686,6 +686,12 @@ export function hostileCorpus(): HostileCorpus {
   add('plan-participants-huge.json', swap(P, '"participants": 8', '"participants": 1e9'), { command: 'plan-schedule', exit: 2, code: 'out_of_range', place: 'plan-participants-huge.json:participants', note: 'a billion participants' });
   add('plan-label-control.json', swap(P, '"label": "Tidewater league: hostile corpus plan"', '"label": "Tidewater\\u001b[31m\\u0007 plan"'), { command: 'plan-schedule', exit: 0, code: null, place: null, note: 'a plan label with ESC and BEL: the schedule is written' });
 
+  // --- 15. Size studies given to the report (--size-study).
+  add('size-study-lobby.json', L, { command: 'report-size-study', exit: 2, code: 'wrong_kind', place: 'size-study-lobby.json:format', issues: 1, note: 'a lobby given as the size study: one issue, not one per missing field; no report written' });
+  add('size-study-deep.json', nestedObjects(10_000, true), { command: 'report-size-study', exit: 2, code: 'too_deep', place: 'size-study-deep.json:1:321', line: 1, note: '10,000 nested objects as the size study' });
+  add('size-study-format-number.json', '{\n  "format": 2,\n  "label": null\n}\n', { command: 'report-size-study', exit: 2, code: 'invalid_value', place: 'size-study-format-number.json:format', line: 2, shows: '(a string)', note: 'a size study whose format tag is a number' });
+  add('size-study-utf16.json', utf16('{"format": "lagparity/playtest-size@1"}', false, true), { command: 'report-size-study', exit: 2, code: 'wrong_encoding', place: 'size-study-utf16.json', shows: 'got UTF-16 little-endian text', note: 'a size study saved as UTF-16' });
+
   return { files, cases };
 }
 

@@ -107,6 +107,10 @@ function prepare(entry: HostileCase, index: number, scratch: string): Prepared {
       const out = outFile('report.html');
       return { args: ['report', '--trials', support('trials.csv'), '--model', model, '--lobbies', file, '--out', out, '--force'], out };
     }
+    case 'report-size-study': {
+      const out = outFile('report.html');
+      return { args: ['report', '--trials', support('trials.csv'), '--model', model, '--size-study', file, '--out', out, '--force'], out };
+    }
     case 'plan-schedule': {
       const out = outFile('schedule.csv');
       return { args: ['plan', 'schedule', file, '--out', out, '--force'], out };
