@@ -7,6 +7,7 @@
  * passes, lists the lobbies worst first and says which constraint binds most.
  */
 import { matchIdOf, parsedLobby } from '../solver/entry-checks.js';
+import { readSafely } from '../validated.js';
 import type { Issue } from '../issues.js';
 import { show, unwrap } from '../issues.js';
 import type { LobbyFile } from '../formats/lobby-types.js';
@@ -200,6 +201,14 @@ function summarise(audits: readonly LobbyAudit[]): AuditSummary {
   return { lobbies: audits.length, within_rules: within, outside_rules: audits.length - within, excluded_players: excluded, worst_first: ranked, binding_counts: bindingCounts, failing_rules: failingRules, most_binding: mostBinding };
 }
 
+/** A value that throws `message` on every read, for an entry that could not be read. */
+function throwing(message: string): LobbyFile {
+  const fail = (): never => {
+    throw new Error(message);
+  };
+  return new Proxy({} as LobbyFile, { get: fail, ownKeys: fail, getPrototypeOf: fail, has: fail, getOwnPropertyDescriptor: fail });
+}
+
 export interface AuditEntry {
   readonly lobby: LobbyFile;
   readonly source: string;
@@ -207,6 +216,11 @@ export interface AuditEntry {
 
 /** Audit lobbies under one model and rule set. Pure. */
 export function auditLobbies(entries: readonly AuditEntry[], model: CompiledModel, rules: CompiledRules): AuditReport {
-  const lobbies = entries.map(({ lobby, source }) => auditLobby(lobby, model, rules, source));
+  if (!Array.isArray(entries as unknown)) throw new TypeError(`\`entries\` requires a list of { lobby, source }, got ${show(entries)}`);
+  const lobbies = entries.map((entry) => {
+    // An entry that throws when read is audited as a lobby that throws when read: rejected, unreadable_input.
+    const read = readSafely(entry, () => ({ lobby: entry.lobby, source: entry.source }), (message) => ({ lobby: throwing(message), source: '' }));
+    return auditLobby(read.lobby, model, rules, typeof read.source === 'string' ? read.source : '');
+  });
   return { format: AUDIT_FORMAT, caution: AUDIT_CAUTION, lobbies, summary: summarise(lobbies) };
 }

@@ -21,21 +21,18 @@ export async function runBalance(paths: string[], options: BalanceOptions): Prom
     reportIssues(issues);
     return EXIT_BAD_INPUT;
   }
-  const results: BalanceResult[] = lobbies.value.map(({ lobby }) => balanceForOutput(lobby, model.value, rules.value));
-  let extrapolated = false;
+  const results: BalanceResult[] = lobbies.value.map(({ lobby }) => {
+    const result = balanceForOutput(lobby, model.value, rules.value);
+    return options.strict ? refuseExtrapolation(result) : result;
+  });
   results.forEach((result, index) => {
     const file = lobbies.value[index]?.path ?? '';
     const name = file === '-' ? 'stdin' : basename(file);
-    const warnings = result.warnings.map((issue) => ({ ...issue, location: at(name, issue.location) }));
-    // Under --strict, a prediction outside the model's training range is an error, not a warning.
-    const judged = warnings.map((issue) => (options.strict && issue.code === 'outside_training_range' ? { ...issue, severity: 'error' as const } : issue));
-    const errors = judged.filter((issue) => issue.severity === 'error');
-    if (errors.length > 0) extrapolated = true;
-    reportIssues([...errors, ...judged.filter((issue) => issue.severity !== 'error')]);
-    // A solver issue located at `model.<field>` is about the model file; the others name a place in the lobby.
-    const modelName = basename(options.model);
-    const place = (location: string) => (location.startsWith('model.') ? at(modelName, location.slice('model.'.length)) : at(name, location));
+    // A solver issue located at `model.<field>` is about the model file, one at `rules.<field>` about the rules file; the others name a place in the lobby.
+    const place = (location: string) =>
+      location.startsWith('model.') ? at(basename(options.model), location.slice('model.'.length)) : location.startsWith('rules.') && options.rules !== undefined ? at(basename(options.rules), location.slice('rules.'.length)) : at(name, location);
     if (result.status === 'rejected') reportIssues(result.issues.map((issue) => ({ ...issue, location: place(issue.location) })));
+    reportIssues(result.warnings.map((issue) => ({ ...issue, location: place(issue.location) })));
   });
   if (options.json) {
     writeOut(JSON.stringify(balanceDocument(results), null, 2));
@@ -43,5 +40,21 @@ export async function runBalance(paths: string[], options: BalanceOptions): Prom
     writeOut(results.map(renderBalance).join('\n\n'));
     process.stderr.write(`\n${CAUTION}\n`);
   }
-  return extrapolated || results.some((result) => result.status === 'rejected') ? EXIT_BAD_INPUT : EXIT_OK;
+  return results.some((result) => result.status === 'rejected') ? EXIT_BAD_INPUT : EXIT_OK;
+}
+
+/**
+ * Under --strict, a prediction outside the model's training range is an error, not a warning: the
+ * lobby is rejected with those issues, so neither the table nor --json prints scales for it (they
+ * printed the answer, then exited 2).
+ */
+function refuseExtrapolation(result: BalanceResult): BalanceResult {
+  const refused = result.warnings.filter((issue) => issue.code === 'outside_training_range');
+  if (refused.length === 0) return result;
+  return {
+    status: 'rejected',
+    match_id: result.match_id,
+    issues: [...refused.map((issue) => ({ ...issue, severity: 'error' as const })), ...(result.status === 'rejected' ? result.issues : [])],
+    warnings: result.warnings.filter((issue) => issue.code !== 'outside_training_range'),
+  };
 }

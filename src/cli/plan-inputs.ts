@@ -7,6 +7,7 @@
  */
 import { type Issue, type Result, error, fail, ok, show } from '../issues.js';
 import { readJsonFile } from '../io/read-json.js';
+import { withLines } from '../io/issue-lines.js';
 import { type ValidPlan, safeParsePlan } from '../formats/plan.js';
 import { PLAN_FORMAT } from '../formats/plan-types.js';
 import { parseDecimal } from '../formats/trials-csv.js';
@@ -182,6 +183,7 @@ function optionFor(location: string, set: ReadonlySet<string> | null): string | 
 export async function loadPlan(path: string | undefined, options: PlanFieldOptions & SizeFieldOptions): Promise<Result<LoadedPlan>> {
   let document: Record<string, unknown> = { format: PLAN_FORMAT };
   let file: string | undefined;
+  let text = '';
   if (path !== undefined) {
     const read = await readJsonFile(path);
     if (!read.ok) return read;
@@ -190,6 +192,7 @@ export async function loadPlan(path: string | undefined, options: PlanFieldOptio
     }
     document = structuredClone(read.value as Record<string, unknown>);
     file = read.file;
+    text = read.text ?? '';
   }
   const issues: Issue[] = [];
   const set = new Set<string>();
@@ -207,6 +210,11 @@ export async function loadPlan(path: string | undefined, options: PlanFieldOptio
   if (issues.length > 0) return fail(issues);
   const where = (field: string) => optionFor(field, file === undefined ? null : set) ?? (file === undefined ? field : field === '(root)' ? file : `${file}:${field}`);
   const parsed = safeParsePlan(document);
-  if (!parsed.ok) return fail(parsed.issues.map((issue) => ({ ...issue, location: where(issue.location) })));
-  return ok({ plan: parsed.value, file, where }, parsed.warnings);
+  // Issues at a field of the file get its line, as every JSON input's do (io/issue-lines.ts).
+  const placed = (list: readonly Issue[]) => {
+    const located = list.map((issue) => ({ ...issue, location: where(issue.location) }));
+    return file === undefined ? located : withLines(located, text, file);
+  };
+  if (!parsed.ok) return fail(placed(parsed.issues));
+  return ok({ plan: parsed.value, file, where }, placed(parsed.warnings));
 }

@@ -1,10 +1,12 @@
 /** `lagparity report`, run: one self-contained HTML page of the playtest, the model and the lobbies (options and help: `report-command.ts`). */
 import { createHash } from 'node:crypto';
 import { basename } from 'node:path';
-import { type Result } from '../issues.js';
+import { type Result, error, fail } from '../issues.js';
+import { kindOfTag } from '../formats/file-kinds.js';
+import { withLines } from '../io/issue-lines.js';
 import { readJsonFile } from '../io/read-json.js';
 import { readTrialsFile } from '../io/read-trials.js';
-import { safeParseSizeStudy } from '../plan/size-study-schema.js';
+import { SIZE_STUDY_FORMAT, safeParseSizeStudy } from '../plan/size-study-schema.js';
 import type { SizeStudy } from '../plan/size-study-types.js';
 import { writeFileAtomic } from '../io/write-file.js';
 import { parseBinSpec } from '../summary/bins.js';
@@ -29,7 +31,13 @@ export interface ReportOptions {
 async function loadSizeStudy(path: string): Promise<Result<SizeStudy>> {
   const read = await readJsonFile(path);
   if (!read.ok) return read;
-  return safeParseSizeStudy(read.value, read.file);
+  // A document of another kind gets one issue, not one per field it lacks (as every input's does).
+  const tag = read.value !== null && typeof read.value === 'object' && !Array.isArray(read.value) ? (read.value as { format?: unknown }).format : undefined;
+  if (kindOfTag(tag) !== undefined) {
+    return fail([error('wrong_kind', `${read.file}:format`, `this input requires a size study (${SIZE_STUDY_FORMAT}, written by \`lagparity plan size --out\`), got a file whose \`format\` is ${JSON.stringify(tag)}: check which file goes where`)]);
+  }
+  const parsed = safeParseSizeStudy(read.value, read.file);
+  return parsed.ok ? parsed : fail(withLines(parsed.issues, read.text ?? '', read.file));
 }
 
 export async function runReport(options: ReportOptions): Promise<number> {

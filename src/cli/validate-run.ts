@@ -8,7 +8,7 @@ import { safeParseLobby, safeParseServerLobby } from '../formats/lobby.js';
 import { compileModel } from '../model/compile.js';
 import { compileRules } from '../solver/rules.js';
 import { safeParsePlan } from '../formats/plan.js';
-import { FILE_KINDS as KINDS, type FileKind as Kind, KIND_OF_TAG as TAGS } from '../formats/file-kinds.js';
+import { FILE_KINDS as KINDS, type FileKind as Kind, KIND_OF_TAG as TAGS, kindOfTag } from '../formats/file-kinds.js';
 import { EXIT_BAD_INPUT, EXIT_OK, reportIssues, writeOut } from './output.js';
 
 export interface FileVerdict {
@@ -29,10 +29,10 @@ export async function validateFile(path: string, forced: Kind | undefined): Prom
   const read = await readJsonFile(path);
   if (!read.ok) return { path, kind: kind ?? null, valid: false, issues: read.issues, warnings: [] };
   const tag = read.value !== null && typeof read.value === 'object' && !Array.isArray(read.value) ? (read.value as { format?: unknown }).format : undefined;
-  const detected = kind ?? (typeof tag === 'string' ? TAGS[tag] : undefined);
+  const detected = kind ?? kindOfTag(tag);
   if (detected === undefined) {
     const known = Object.keys(TAGS).map((name) => show(name)).join(', ');
-    return { path, kind: null, valid: false, warnings: [], issues: [error('unknown_format', `${read.file}:format`, `\`format\` requires one of ${known} (or a .csv trials file), got ${show(tag)}`)] };
+    return { path, kind: null, valid: false, warnings: [], issues: [error('unknown_format', `${read.file}:format`, `\`format\` requires ${typeof tag === 'string' || tag === undefined ? '' : 'a string, '}one of ${known} (or a .csv trials file), got ${show(tag)}`)] };
   }
   const checked =
     detected === 'lobby'

@@ -22,6 +22,11 @@ export const KIND_OF_TAG: Readonly<Record<string, FileKind>> = {
   [PLAN_FORMAT]: 'plan',
 };
 
+/** The kind a `format` tag names, or undefined: own keys only (a tag "constructor" or "toString" named Object's functions). */
+export function kindOfTag(tag: unknown): FileKind | undefined {
+  return typeof tag === 'string' && Object.hasOwn(KIND_OF_TAG, tag) ? KIND_OF_TAG[tag] : undefined;
+}
+
 const KIND_NAMES: Readonly<Record<FileKind, string>> = {
   trials: 'a trials file',
   lobby: 'a lobby',
@@ -44,7 +49,7 @@ export function wrongKind(input: unknown, expected: FileKind, file: string | und
   } catch {
     return null;
   }
-  const kind = typeof tag === 'string' ? KIND_OF_TAG[tag] : undefined;
+  const kind = kindOfTag(tag);
   if (kind === undefined || kind === expected) return null;
   return error('wrong_kind', at(file, 'format'), `this input requires ${KIND_NAMES[expected]}, got ${KIND_NAMES[kind]} (its \`format\` is ${JSON.stringify(tag)}): check which file goes where`);
 }

@@ -8,7 +8,7 @@
  */
 import { printParseErrorCode, visit } from 'jsonc-parser';
 import { type Issue, type Result, at, error, fail, ok, show } from '../issues.js';
-import { MAX_JSON_DEPTH, firstTooDeep, scanJsonStructure } from './json-structure.js';
+import { MAX_JSON_DEPTH, type StructureProblem, firstTooDeep, scanJsonStructure } from './json-structure.js';
 
 export { MAX_JSON_DEPTH };
 
@@ -60,9 +60,34 @@ function syntaxErrorPlace(text: string): { place: string; reason: string } {
   return { place: `${end.line}:${end.column}`, reason: 'UnexpectedEndOfInput' };
 }
 
-function tooDeep(text: string, file: string, offset: number): Issue {
-  const { line, column } = lineAndColumn(text, offset);
-  return error('too_deep', `${file}:${line}:${column}`, `a JSON document requires arrays and objects nested at most ${MAX_JSON_DEPTH} deep (the documented limit), got deeper`);
+function tooDeep(place: string): Issue {
+  return error('too_deep', place, `a JSON document requires arrays and objects nested at most ${MAX_JSON_DEPTH} deep (the documented limit), got deeper`);
+}
+
+/**
+ * The issue of a structural problem (json-structure.ts) of `text` from `file`.
+ * `fileLine` is given when the text is one line of a longer file (a session
+ * log): places then read `file:line:column` and `file:line:field.path`.
+ */
+export function structureIssue(problem: StructureProblem, text: string, file: string, fileLine?: number): Issue {
+  const found = lineAndColumn(text, problem.offset);
+  const line = fileLine ?? found.line;
+  const column = found.column;
+  if (problem.code === 'too_deep') return tooDeep(`${file}:${line}:${column}`);
+  const place = at(fileLine === undefined ? file : `${file}:${fileLine}`, problem.path);
+  const field = problem.path === '' ? 'the document' : `\`${problem.path}\``;
+  if (problem.code === 'duplicate_key') {
+    return error('duplicate_key', place, `${field} requires each key once in an object (RFC 8259 section 4; RFC 7493 section 2.3), got ${show(problem.key)} again at line ${line}, column ${column}`);
+  }
+  if (problem.code === 'lone_surrogate') {
+    return error('lone_surrogate', place, `${field} requires Unicode text (RFC 8259 section 8.2; RFC 7493 section 2.1), got a \\u escape of half a surrogate pair at line ${line}, column ${column}: it would print as U+FFFD, like any other`);
+  }
+  return error('forbidden_key', place, `keys named \`__proto__\`, \`constructor\` or \`prototype\` are refused, got ${show(problem.key)} at line ${line}, column ${column}`);
+}
+
+/** Throws for a `text` argument that is not a string (a programming error, not a problem of the data). */
+export function checkText(text: unknown, name = 'text'): void {
+  if (typeof text !== 'string') throw new TypeError(`\`${name}\` requires a string (the text of the input), got ${show(text)}`);
 }
 
 /** Whether the text at `line:column` starts a comment (`//` or `/*`). */
@@ -80,6 +105,7 @@ function startsComment(text: string, place: string): boolean {
  * column) and prototype-reaching keys (with their field path).
  */
 export function parseJsonText(text: string, file: string, maxBytes: number = MAX_JSON_BYTES): Result<unknown> {
+  checkText(text);
   const bytes = Buffer.byteLength(text, 'utf8');
   if (bytes > maxBytes) {
     return fail([error('too_large', file, `a JSON input requires at most ${maxBytes} bytes, got ${bytes}`)]);
@@ -89,15 +115,24 @@ export function parseJsonText(text: string, file: string, maxBytes: number = MAX
     return fail([error('empty_file', file, 'a JSON document requires some content, got an empty file')]);
   }
   // Text decoded from UTF-16 as if it were UTF-8 is full of NUL bytes; JSON allows none, even in strings.
-  if (body.includes('\u0000')) {
-    return fail([error('wrong_encoding', file, 'a JSON document requires UTF-8 text, got NUL bytes (as UTF-16 text has): save the file as UTF-8')]);
+  const nul = body.indexOf('\u0000');
+  if (nul >= 0) {
+    const head = body.slice(0, 64);
+    if (head.length - head.replaceAll('\u0000', '').length >= head.length / 4) {
+      return fail([error('wrong_encoding', file, 'a JSON document requires UTF-8 text, got NUL bytes (as UTF-16 text has): save the file as UTF-8')]);
+    }
+    const { line, column } = lineAndColumn(body, nul);
+    return fail([error('invalid_json', `${file}:${line}:${column}`, 'the file requires well-formed JSON, got a NUL character: JSON allows none, not even in strings (write it as \\u0000 there)')]);
   }
   let value: unknown;
   try {
     value = JSON.parse(body);
   } catch (cause) {
     const deep = firstTooDeep(body);
-    if (deep >= 0) return fail([tooDeep(body, file, deep)]);
+    if (deep >= 0) {
+      const { line, column } = lineAndColumn(body, deep);
+      return fail([tooDeep(`${file}:${line}:${column}`)]);
+    }
     const message = cause instanceof Error ? cause.message : String(cause);
     const { place, reason } = syntaxErrorPlace(body);
     if (reason === 'InvalidCommentToken' || /^\d+:\d+$/.test(place) && startsComment(body, place)) {
@@ -106,14 +141,5 @@ export function parseJsonText(text: string, file: string, maxBytes: number = MAX
     return fail([error('invalid_json', `${file}:${place}`, `the file requires well-formed JSON (${reason}): ${message}`)]);
   }
   const problem = scanJsonStructure(body);
-  if (problem !== null) {
-    const { line, column } = lineAndColumn(body, problem.offset);
-    if (problem.code === 'too_deep') return fail([tooDeep(body, file, problem.offset)]);
-    const field = problem.path === '' ? 'the document' : `\`${problem.path}\``;
-    if (problem.code === 'duplicate_key') {
-      return fail([error('duplicate_key', at(file, problem.path), `${field} requires each key once in an object (RFC 8259 section 4; RFC 7493 section 2.3), got ${show(problem.key)} again at line ${line}, column ${column}`)]);
-    }
-    return fail([error('forbidden_key', at(file, problem.path), `keys named \`__proto__\`, \`constructor\` or \`prototype\` are refused, got ${show(problem.key)} at line ${line}, column ${column}`)]);
-  }
-  return ok(value);
+  return problem === null ? ok(value) : fail([structureIssue(problem, body, file)]);
 }

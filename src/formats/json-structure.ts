@@ -9,7 +9,11 @@
  *   silently keeps the last one, so a reviewer and the program could read
  *   two different files);
  * - keys that can reach an object's prototype (`__proto__`, `constructor`,
- *   `prototype`), spelt literally or with \u escapes.
+ *   `prototype`), spelt literally or with \u escapes;
+ * - a string (key or value) holding a lone surrogate, which only a \u escape
+ *   can write in UTF-8 text (RFC 8259 section 8.2: such strings behave
+ *   unpredictably; I-JSON, RFC 7493 section 2.1: MUST NOT): printed, every
+ *   lone surrogate becomes U+FFFD, so two different ids could read the same.
  *
  * `scanJsonStructure` expects text that JSON.parse accepted. `nestingDepth`
  * works on any text (it counts brackets outside strings), for the message of
@@ -21,8 +25,13 @@ export const MAX_JSON_DEPTH = 64;
 
 const FORBIDDEN_KEYS = new Set(['__proto__', 'constructor', 'prototype']);
 
+/** Whether a key is refused anywhere in a document (it can reach an object's prototype). */
+export function isForbiddenKey(key: string): boolean {
+  return FORBIDDEN_KEYS.has(key);
+}
+
 export interface StructureProblem {
-  readonly code: 'too_deep' | 'duplicate_key' | 'forbidden_key';
+  readonly code: 'too_deep' | 'duplicate_key' | 'forbidden_key' | 'lone_surrogate';
   /** Character offset of the bracket or key. */
   readonly offset: number;
   /** Field path of the place (`players[3].latency_ms`). */
@@ -52,6 +61,23 @@ function stringEnd(text: string, start: number): number {
   }
 }
 
+/** Whether a string's raw text (between its quotes) writes a surrogate with a \u escape that is not half of a pair. */
+function hasLoneSurrogate(raw: string): boolean {
+  if (!SURROGATE_ESCAPE.test(raw)) return false;
+  const value = JSON.parse(`"${raw}"`) as string;
+  for (let index = 0; index < value.length; index += 1) {
+    const unit = value.charCodeAt(index);
+    if (unit >= 0xd800 && unit <= 0xdbff) {
+      const next = value.charCodeAt(index + 1);
+      if (next >= 0xdc00 && next <= 0xdfff) index += 1;
+      else return true;
+    } else if (unit >= 0xdc00 && unit <= 0xdfff) return true;
+  }
+  return false;
+}
+
+const SURROGATE_ESCAPE = /\\u[dD][89a-fA-F]/;
+
 interface Frame {
   readonly object: boolean;
   /** The current element's index (arrays) or key (objects). */
@@ -74,11 +100,18 @@ export function scanJsonStructure(text: string): StructureProblem | null {
   const stack: Frame[] = [];
   // In an object, whether the next string is a key.
   let expectKey = false;
+  let backslash = 0;
   for (let at = 0; at < text.length; at += 1) {
     const code = text.charCodeAt(at);
     if (code === QUOTE) {
       const end = stringEnd(text, at);
       const frame = stack[stack.length - 1];
+      // The next backslash, looked up again only once passed (one pass over the text in all).
+      if (backslash >= 0 && backslash <= at) backslash = text.indexOf('\\', at + 1);
+      if (backslash >= 0 && backslash < end && hasLoneSurrogate(text.slice(at + 1, end))) {
+        if (expectKey && frame !== undefined && frame.object) frame.key = JSON.parse(`"${text.slice(at + 1, end)}"`) as string;
+        return { code: 'lone_surrogate', offset: at, path: pathOf(stack), key: null };
+      }
       if (expectKey && frame !== undefined && frame.object) {
         const raw = text.slice(at + 1, end);
         const key = raw.includes('\\') ? (JSON.parse(`"${raw}"`) as string) : raw;

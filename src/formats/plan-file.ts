@@ -110,7 +110,7 @@ function checkIncreasing(values: readonly (number | string)[], field: string, co
 
 export const planFileSchema = z
   .object({
-    format: z.literal(PLAN_FORMAT, { error: `the format tag "${PLAN_FORMAT}"` }),
+    format: z.literal(PLAN_FORMAT, { error: `the format tag "${PLAN_FORMAT}" (a string)` }),
     label: z.string().max(256).nullable().default(null),
     latency_ms: levels(latencyLevel).describe('Latency levels in ms, increasing: the latency each round is played at, as the trials file records it.'),
     scale: levels(scaleLevel).describe('Compensation scale levels, increasing, each above 0 (1 = unscaled).'),

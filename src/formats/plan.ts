@@ -7,7 +7,7 @@
  */
 import { type Issue, type Result, at, error, fail, ok, unwrap } from '../issues.js';
 import { roundsPerParticipant, sessionMinutes } from '../plan/session-length.js';
-import { fromZodIssues } from './zod-issues.js';
+import { parseDocument } from './parse-document.js';
 import { planFileSchema } from './plan-file.js';
 import { PLAN_LIMITS, type PlanFile } from './plan-types.js';
 
@@ -42,13 +42,17 @@ function wholePlanIssues(plan: PlanFile, file: string | undefined): Issue[] {
   return issues;
 }
 
-/** Validate a plan document (already parsed from JSON). `file` names the source in issues. */
+/**
+ * Validate a plan document (already parsed from JSON). `file` names the source
+ * in issues. As the other documents' parsers (parse-document.ts): a document of
+ * another kind gets one `wrong_kind` issue, and a value that throws when read
+ * (a getter, a Proxy) an `unreadable_input` issue.
+ */
 export function safeParsePlan(input: unknown, file?: string): Result<ValidPlan> {
-  const parsed = planFileSchema.safeParse(input);
-  if (!parsed.success) return fail(fromZodIssues(parsed.error.issues, input, file));
-  const issues = wholePlanIssues(parsed.data, file);
-  if (issues.length > 0) return fail(issues);
-  return ok(parsed.data as ValidPlan);
+  return parseDocument(input, file, 'plan', planFileSchema, (data) => {
+    const issues = wholePlanIssues(data, file);
+    return issues.length > 0 ? fail(issues) : ok(data as ValidPlan);
+  });
 }
 
 /** Like `safeParsePlan`, but throws a `LagparityInputError` carrying the issues. */

@@ -14,6 +14,15 @@ export { RULES_FORMAT };
 
 const positive = finiteNumber().positive({ error: 'a number above 0' });
 
+/**
+ * Documented limit: a quantisation step divides the scales up to the cap into
+ * at most this many steps. The solver names grid points by their index (an
+ * integer in a double), so a step of 1e-300 made indices beyond 2^53, where
+ * `index + 1 === index`, and the solve never ended; an engine's scale steps
+ * are a few hundred at most.
+ */
+export const MAX_SCALE_STEPS = 1_000_000;
+
 export const rulesFileSchema = z
   .object({
     format: z.literal(RULES_FORMAT, { error: `the format tag "${RULES_FORMAT}" (a string)` }),
@@ -78,7 +87,9 @@ export const rulesFileSchema = z
       context.addIssue({ code: 'custom', path: ['soft_cap', 'above'], message: `a soft-cap threshold >= \`scale_floor\` (${rules.scale_floor})`, params: { code: 'contradictory_rules' } });
     }
     const step = rules.quantisation_step;
-    if (step !== null) {
+    if (step !== null && rules.scale_cap / step > MAX_SCALE_STEPS) {
+      context.addIssue({ code: 'custom', path: ['quantisation_step'], message: `a step of at least \`scale_cap\` / ${MAX_SCALE_STEPS} (${rules.scale_cap / MAX_SCALE_STEPS}): at most ${MAX_SCALE_STEPS} steps up to the cap (the documented limit)`, params: { code: 'out_of_range' } });
+    } else if (step !== null) {
       const multiple = rules.scale_floor / step;
       if (Math.abs(multiple - Math.round(multiple)) > 1e-9) {
         context.addIssue({ code: 'custom', path: ['quantisation_step'], message: `a step of which \`scale_floor\` (${rules.scale_floor}) is a whole multiple`, params: { code: 'contradictory_rules' } });

@@ -5,9 +5,11 @@ import type { Readable } from 'node:stream';
 import { type Result, error, fail, ok } from '../issues.js';
 import { MAX_JSON_BYTES, parseJsonText } from '../formats/json-input.js';
 import { withLines } from './issue-lines.js';
-import { type ForeignEncoding, foreignEncoding, foreignEncodingMessage } from '../formats/text-encoding.js';
+import { type ForeignEncoding, decodeUtf8, foreignEncoding, foreignEncodingMessage, invalidUtf8Message } from '../formats/text-encoding.js';
 
-async function readLimited(stream: Readable, maxBytes: number): Promise<{ text: string } | { tooLarge: number } | { encoding: ForeignEncoding }> {
+type Read = { text: string } | { tooLarge: number } | { encoding: ForeignEncoding } | { invalid: { line: number; message: string } };
+
+async function readLimited(stream: Readable, maxBytes: number): Promise<Read> {
   const chunks: Buffer[] = [];
   let total = 0;
   for await (const chunk of stream) {
@@ -21,7 +23,9 @@ async function readLimited(stream: Readable, maxBytes: number): Promise<{ text: 
   }
   const bytes = Buffer.concat(chunks);
   const encoding = foreignEncoding(bytes);
-  return encoding === null ? { text: bytes.toString('utf8') } : { encoding };
+  if (encoding !== null) return { encoding };
+  const decoded = decodeUtf8(bytes);
+  return 'text' in decoded ? decoded : { invalid: invalidUtf8Message(bytes, decoded.invalidAt) };
 }
 
 /**
@@ -42,6 +46,7 @@ export async function readTextFile(path: string, maxBytes: number, kind = 'the i
     return { ...fail([error('too_large', file, `${kind} requires at most ${maxBytes} bytes (the documented limit), got more than that`)]), file };
   }
   if ('encoding' in read) return { ...fail([error('wrong_encoding', file, foreignEncodingMessage(read.encoding))]), file };
+  if ('invalid' in read) return { ...fail([error('wrong_encoding', `${file}:${read.invalid.line}`, read.invalid.message)]), file };
   return { ...ok(read.text), file };
 }
 

@@ -28,8 +28,8 @@ export function predictorLine(
   coding: DifficultyCoding,
   difficulty: number | string,
 ): Result<PredictorLine> {
-  if (coding.kind === 'numeric' && typeof difficulty !== 'number') {
-    return fail([error('wrong_difficulty', 'difficulty', `the model requires a numeric difficulty, got ${show(difficulty)}`)]);
+  if (coding.kind === 'numeric' && !(typeof difficulty === 'number' && Number.isFinite(difficulty))) {
+    return fail([error('wrong_difficulty', 'difficulty', `the model requires a numeric difficulty (a finite number), got ${show(difficulty)}`)]);
   }
   if (coding.kind === 'levels' && (typeof difficulty !== 'string' || !coding.levels.includes(difficulty))) {
     return fail([error('wrong_difficulty', 'difficulty', `the model requires a difficulty level among ${coding.levels.map((level) => show(level)).join(', ')}, got ${show(difficulty)}`)]);

@@ -47,7 +47,7 @@ const issueSchema = z.object({ code: z.string(), severity: z.enum(['error', 'war
 
 export const sizeStudySchema = z
   .object({
-    format: z.literal(SIZE_STUDY_FORMAT, { error: `the format tag "${SIZE_STUDY_FORMAT}"` }),
+    format: z.literal(SIZE_STUDY_FORMAT, { error: `the format tag "${SIZE_STUDY_FORMAT}" (a string)` }),
     label: z.string().nullable(),
     seed: z.number().int(),
     studies: z.number().int().min(1),

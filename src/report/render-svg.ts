@@ -15,6 +15,7 @@
  */
 import type { Loader } from 'vega';
 import type { TopLevelSpec } from 'vega-lite';
+import { escapeControlCharacters } from '../formats/control-characters.js';
 
 /**
  * The charting packages are optional peer dependencies: a matchmaker's install
@@ -134,7 +135,8 @@ export async function renderChartSvg(spec: TopLevelSpec, id: string): Promise<Re
   const vegaSpec = vegaLite.compile(spec, { logger: logger as never }).spec;
   const view = new vega.View(vega.parse(vegaSpec), { renderer: 'none', loader: offlineLoader, logger: logger as never, logLevel: WARN });
   try {
-    const svg = await view.toSVG();
+    // Data in labels (player ids, teams) reaches the SVG as Vega writes it: its control characters and bidi marks escaped as the rest of the page's are.
+    const svg = escapeControlCharacters(await view.toSVG());
     return { svg: prefixSvgIds(svg, id), messages: logger.messages };
   } finally {
     view.finalize();

@@ -42,9 +42,10 @@
  * - Logging. Nothing is written to the console; `logger` (the usual
  *   `info/warn/error(object, message)` shape) receives structured events.
  */
-import { LagparityInputError, error, fail, show } from '../issues.js';
+import { LagparityInputError, error, show } from '../issues.js';
 import { compiledInputIssues } from '../solver/entry-checks.js';
 import { readSafely } from '../validated.js';
+import { isForbiddenKey } from '../formats/json-structure.js';
 import { type LobbyFile, MAX_PLAYERS } from '../formats/lobby-types.js';
 import type { CompiledModel } from '../model/compile.js';
 import type { CompiledRules } from '../solver/rules.js';
@@ -125,19 +126,25 @@ export function modelFingerprint(model: CompiledModel): string {
   return JSON.stringify({ link: model.link.name, coefficients: Array.from(model.coefficients) });
 }
 
+/** A player's scale in a map by id (1 when absent), from its own keys only. */
+export function scaleOf(scales: Readonly<Record<string, number>>, id: string): number {
+  return Object.hasOwn(scales, id) ? (scales[id] as number) : 1;
+}
+
 /**
  * The scales after a safe point: `previous` moved towards `answer` (see the
  * module comment). Pure; shared by the session and its replay.
  */
 export function moveScales(previous: Readonly<Record<string, number>>, answer: Readonly<Record<string, number>>, deadband: number, maxStep: number, step: number | null): { applied: Record<string, number>; decision: 'kept' | 'moved' | 'reached' } {
   let largest = 0;
-  for (const [id, target] of Object.entries(answer)) largest = Math.max(largest, Math.abs(target - (previous[id] ?? 1)));
-  const applied: Record<string, number> = { ...previous };
-  for (const id of Object.keys(answer)) if (applied[id] === undefined) applied[id] = 1;
+  for (const [id, target] of Object.entries(answer)) largest = Math.max(largest, Math.abs(target - scaleOf(previous, id)));
+  // Keyed by player id without a prototype: an id "toString" or "__proto__" is a player, not Object's.
+  const applied: Record<string, number> = Object.assign(Object.create(null) as Record<string, number>, previous);
+  for (const id of Object.keys(answer)) if (!Object.hasOwn(applied, id)) applied[id] = 1;
   if (!(largest > deadband)) return { applied, decision: 'kept' };
   const fraction = largest <= maxStep ? 1 : maxStep / largest;
   for (const [id, target] of Object.entries(answer)) {
-    const from = previous[id] ?? 1;
+    const from = scaleOf(previous, id);
     let scale = fraction === 1 ? target : from + fraction * (target - from);
     if (step !== null && fraction < 1) {
       // Towards the previous value: never past the answer.
@@ -162,16 +169,25 @@ export class MatchSession {
   /** Players present now. */
   private present = 0;
 
+  /** The match as read once at the start (a plain copy: the caller's object is not read again). */
+  private readonly match: MatchInfo;
+
   constructor(
     private readonly model: CompiledModel,
     private readonly rules: CompiledRules,
-    private readonly match: MatchInfo,
+    input: MatchInfo,
     private readonly options: SessionOptions = {},
     at = 0,
   ) {
     // The model, the rules and the match are data: wrong ones throw a LagparityInputError carrying issues.
     const issues = compiledInputIssues(model, rules);
-    const line = issues.length === 0 ? readSafely(match, () => model.lineAt(match.difficulty), (message) => fail([error('invalid_match', 'match', `\`match\` requires { match_id, attribute, difficulty }, got a value that throws when read: ${message}`)])) : null;
+    const copied = readSafely<MatchInfo | string>(input, () => ({ match_id: input?.match_id, attribute: input?.attribute, difficulty: input?.difficulty }), (message) => message);
+    if (typeof copied === 'string') {
+      throw new LagparityInputError([...issues, error('invalid_match', 'match', `\`match\` requires { match_id, attribute, difficulty }, got a value that throws when read: ${JSON.stringify(copied)}`)]);
+    }
+    const match = copied;
+    this.match = match;
+    const line = issues.length === 0 ? model.lineAt(match.difficulty) : null;
     if (line !== null && !line.ok) issues.push(...line.issues.map((issue) => ({ ...issue, location: `match.${issue.location}` })));
     if (typeof match?.match_id !== 'string' || match.match_id === '') issues.push(error('invalid_match', 'match.match_id', `\`match.match_id\` requires a non-empty string, got ${show(match?.match_id)}`));
     if (match?.attribute !== 'hit_area' && match?.attribute !== 'timing_window') issues.push(error('invalid_match', 'match.attribute', `\`match.attribute\` requires "hit_area" or "timing_window", got ${show(match?.attribute)}`));
@@ -201,13 +217,18 @@ export class MatchSession {
   /**
    * A player joins (or reconnects: a new estimate, the scale kept). Returns
    * false, and logs a warning, for an id or team that is not 1 to 128
-   * characters, or a match that already has MAX_PLAYERS players present.
+   * characters, an id named `__proto__`, `constructor` or `prototype` (ids
+   * are keys of the log's scales, and a log with such a key is refused, so
+   * the match could not be replayed), or a match that already has
+   * MAX_PLAYERS players present.
    */
   join(id: string, team: string | null = null, at = 0): boolean {
     const known = this.players.get(id);
     const problem = !isName(id)
       ? 'join with an id that is not 1 to 128 characters: ignored'
-      : team !== null && !isName(team)
+      : isForbiddenKey(id)
+        ? `join with the id ${JSON.stringify(id)}, which the session log cannot hold as a key: ignored`
+        : team !== null && !isName(team)
         ? 'join with a team that is not 1 to 128 characters: ignored'
         : known?.present !== true && this.present >= MAX_PLAYERS
           ? `join beyond ${MAX_PLAYERS} players present: ignored`

@@ -8,7 +8,8 @@
  *
  * Read the log with `parseSessionLog` (session-log-file.ts) first.
  */
-import { isCompiledModel } from '../validated.js';
+import { isCompiledModel, readSafely } from '../validated.js';
+import { checkSessionEvents } from './session-log-file.js';
 import { type Result, error, fail, ok } from '../issues.js';
 import type { CompiledModel } from '../model/compile.js';
 import { compileRules } from '../solver/rules.js';
@@ -27,6 +28,17 @@ export interface ReplayReport {
 export function replaySession(events: readonly SessionEvent[], model: CompiledModel): Result<ReplayReport> {
   if (!Array.isArray(events as unknown)) return fail([error('invalid_log', 'events', 'a replay requires the list of events parseSessionLog returns')]);
   if (!isCompiledModel(model)) return fail([error('uncompiled_model', 'model', 'the replay requires the value compileModel() returns')]);
+  // Events built by hand (or edited after parseSessionLog) are checked as a log's lines are; the replay reads the checked copies.
+  const checked = readSafely(
+    events,
+    () => checkSessionEvents(events),
+    (message) => fail<SessionEvent[]>([error('unreadable_input', 'events', `the events require plain data, got a value that throws when read: ${JSON.stringify(message)}`)]),
+  );
+  if (!checked.ok) return checked;
+  return replayChecked(checked.value, model);
+}
+
+function replayChecked(events: readonly SessionEvent[], model: CompiledModel): Result<ReplayReport> {
   const start = events[0];
   if (start === undefined || start.type !== 'start') return fail([error('invalid_log', 'events[0]', 'a session log requires a start event first, got none')]);
   if (modelFingerprint(model) !== start.model) {
@@ -35,13 +47,14 @@ export function replaySession(events: readonly SessionEvent[], model: CompiledMo
   const rules = compileRules(start.rules, 'start.rules');
   if (!rules.ok) return fail(rules.issues);
   const { deadband, maxStep } = start.options;
-  let scales: Record<string, number> = {};
+  // Keyed by player id without a prototype (moveScales says why).
+  let scales: Record<string, number> = Object.create(null) as Record<string, number>;
   let safePoints = 0;
   let settled = false;
   for (let index = 1; index < events.length; index += 1) {
     const event = events[index] as SessionEvent;
     if (event.type === 'join') {
-      if (scales[event.id] === undefined) scales[event.id] = 1;
+      if (!Object.hasOwn(scales, event.id)) scales[event.id] = 1;
       continue;
     }
     if (event.type !== 'safe_point') continue;
@@ -52,7 +65,7 @@ export function replaySession(events: readonly SessionEvent[], model: CompiledMo
     if (difference !== null) {
       return ok({ status: 'differs', match_id: start.match.match_id, events: events.length, safe_points: safePoints, difference: { event: index, at: event.at, ...difference } });
     }
-    scales = { ...replayed.applied };
+    scales = Object.assign(Object.create(null) as Record<string, number>, replayed.applied);
   }
   return ok({ status: 'reproduced', match_id: start.match.match_id, events: events.length, safe_points: safePoints, difference: null });
 }
@@ -63,7 +76,9 @@ function firstDifference(logged: Extract<SessionEvent, { type: 'safe_point' }>, 
   for (const field of ['answer', 'applied'] as const) {
     const ids = new Set([...Object.keys(logged[field]), ...Object.keys(replayed[field])]);
     for (const id of ids) {
-      if (!Object.is(logged[field][id], replayed[field][id])) return { field: `${field}.${id}`, logged: logged[field][id], replayed: replayed[field][id] };
+      const before = Object.hasOwn(logged[field], id) ? logged[field][id] : undefined;
+      const after = Object.hasOwn(replayed[field], id) ? replayed[field][id] : undefined;
+      if (!Object.is(before, after)) return { field: `${field}.${id}`, logged: before, replayed: after };
     }
   }
   return null;

@@ -11,6 +11,8 @@ import { MAX_LATENCY_MS } from '../formats/limits.js';
 import { MAX_PLAYERS } from '../formats/lobby-types.js';
 import { matchFields, playerIdentity } from '../formats/lobby-file.js';
 import { fromZodIssues } from '../formats/zod-issues.js';
+import { checkText, structureIssue } from '../formats/json-input.js';
+import { scanJsonStructure } from '../formats/json-structure.js';
 import { SESSION_FORMAT, type SessionEvent } from './match-session.js';
 
 const finite = finiteNumber();
@@ -64,8 +66,14 @@ const eventSchema = z.discriminatedUnion('type', [startEvent, joinEvent, leaveEv
   error: 'an event whose `type` is one of start, join, leave, safe_point',
 });
 
-/** Parse a session log (JSON lines). `file` names the source in issues. */
+/**
+ * Parse a session log (JSON lines). `file` names the source in issues. Each
+ * line's JSON is checked as a JSON file is (json-structure.ts): nesting, a key
+ * twice in an object, keys that reach a prototype. Throws a TypeError when
+ * `text` is not a string.
+ */
 export function parseSessionLog(text: string, file = 'session.jsonl'): Result<SessionEvent[]> {
+  checkText(text);
   const events: SessionEvent[] = [];
   const lineOf: number[] = [];
   const issues: Issue[] = [];
@@ -79,6 +87,11 @@ export function parseSessionLog(text: string, file = 'session.jsonl'): Result<Se
       value = JSON.parse(line);
     } catch {
       issues.push(error('invalid_json', where, 'a session log requires one JSON event a line, got a line that is not JSON'));
+      continue;
+    }
+    const problem = scanJsonStructure(line);
+    if (problem !== null) {
+      issues.push(structureIssue(problem, line, file, index + 1));
       continue;
     }
     const parsed = eventSchema.safeParse(value);
@@ -96,4 +109,21 @@ export function parseSessionLog(text: string, file = 'session.jsonl'): Result<Se
   const later = events.findIndex((event, index) => index > 0 && event.type === 'start');
   if (later > 0) return fail([error('invalid_log', `${file}:${String(lineOf[later])}`, 'a session log requires exactly one start event (one match a log), got a second one')]);
   return ok(events);
+}
+
+/**
+ * Events given as values rather than read from a log (replaySession's input):
+ * each checked with a log line's schema, issues at `events[i]:field`. The
+ * checked copies are returned, so a value changed after the check is not read.
+ */
+export function checkSessionEvents(events: readonly unknown[]): Result<SessionEvent[]> {
+  const checked: SessionEvent[] = [];
+  const issues: Issue[] = [];
+  for (let index = 0; index < events.length && issues.length < 20; index += 1) {
+    const event = events[index];
+    const parsed = eventSchema.safeParse(event);
+    if (parsed.success) checked.push(parsed.data as SessionEvent);
+    else issues.push(...fromZodIssues(parsed.error.issues, event, `events[${index}]`));
+  }
+  return issues.length > 0 ? fail(issues) : ok(checked);
 }

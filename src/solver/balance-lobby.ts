@@ -168,17 +168,29 @@ function spread(values: readonly TeamFigures[], pick: (team: TeamFigures) => num
   return largest - smallest;
 }
 
-function trainingWarnings(lobby: LobbyFile, solved: LobbySolve, model: CompiledModel, rules: CompiledRules): Issue[] {
-  let warnings: Issue[] | null = null;
-  const { latency_ms: latencyRange, scale: scaleRange, difficulty: difficultyRange } = model.training;
-  // A numeric difficulty and a reference latency are predictions' inputs too: outside the training range they extrapolate.
+/**
+ * A numeric difficulty and a reference latency are predictions' inputs too: outside the training
+ * range they extrapolate. Known before the solve, so a lobby the solve rejects (a difficulty of
+ * 1e308 makes every prediction 0 or 1) still says why its numbers are out of reach.
+ */
+function inputWarnings(lobby: LobbyFile, model: CompiledModel, rules: CompiledRules): Issue[] {
+  const warnings: Issue[] = [];
+  const { latency_ms: latencyRange, difficulty: difficultyRange } = model.training;
   if (typeof lobby.difficulty === 'number' && !Array.isArray(difficultyRange) && (lobby.difficulty < difficultyRange.min || lobby.difficulty > difficultyRange.max)) {
-    (warnings ??= []).push(warning('outside_training_range', 'difficulty', `the difficulty ${show(lobby.difficulty)} is outside the model's training difficulties ${difficultyRange.min}-${difficultyRange.max}: every prediction is an extrapolation`));
+    warnings.push(warning('outside_training_range', 'difficulty', `the difficulty ${show(lobby.difficulty)} is outside the model's training difficulties ${difficultyRange.min}-${difficultyRange.max}: every prediction is an extrapolation`));
   }
   const reference = rules.target.kind === 'reference_latency' ? rules.target.latency_ms : null;
   if (reference !== null && (reference < latencyRange.min || reference > latencyRange.max)) {
-    (warnings ??= []).push(warning('outside_training_range', 'rules.target.latency_ms', `the target's reference latency ${show(reference)} ms is outside the model's training latencies ${latencyRange.min}-${latencyRange.max} ms: the target is an extrapolation`));
+    warnings.push(warning('outside_training_range', 'rules.target.latency_ms', `the target's reference latency ${show(reference)} ms is outside the model's training latencies ${latencyRange.min}-${latencyRange.max} ms: the target is an extrapolation`));
   }
+  return warnings;
+}
+
+function trainingWarnings(lobby: LobbyFile, solved: LobbySolve, model: CompiledModel, rules: CompiledRules): Issue[] {
+  let warnings: Issue[] | null = null;
+  const before = inputWarnings(lobby, model, rules);
+  if (before.length > 0) warnings = before;
+  const { latency_ms: latencyRange, scale: scaleRange } = model.training;
   const { solution, eligible, estimates } = solved;
   for (let slot = 0; slot < solution.count; slot += 1) {
     const index = eligible[slot] as number;
@@ -263,7 +275,7 @@ export function balanceLobby(input: LobbyFile, model: CompiledModel, rules: Comp
   const lineResult = model.lineAt(lobby.difficulty);
   if (!lineResult.ok) return { status: 'rejected', match_id: lobby.match_id, issues: lineResult.issues, warnings: [] };
   const solvedResult = solveLobby(lobby, model, lineResult.value, rules, sharedWorkspace);
-  if (!solvedResult.ok) return { status: 'rejected', match_id: lobby.match_id, issues: solvedResult.issues, warnings: [] };
+  if (!solvedResult.ok) return { status: 'rejected', match_id: lobby.match_id, issues: solvedResult.issues, warnings: inputWarnings(lobby, model, rules) };
   const solved = solvedResult.value;
   const { solution } = solved;
   const players = playersOf(lobby, model, rules, solved);

@@ -14,7 +14,7 @@
  * Cost: one lobby solve per server, plus the full balance of the chosen one.
  */
 import { checkBalanceOptions, compiledInputIssues, parsedServerLobby } from './entry-checks.js';
-import type { Issue } from '../issues.js';
+import { type Issue, show } from '../issues.js';
 import type { LobbyFile } from '../formats/lobby-types.js';
 import type { ServerLobbyFile } from '../formats/server-lobby-types.js';
 import type { CompiledModel } from '../model/compile.js';
@@ -39,15 +39,20 @@ export type ServerChoice =
     }
   | { readonly status: 'rejected'; readonly reason: string; readonly servers: readonly ServerFigures[]; readonly issues: readonly Issue[] };
 
-/** The lobby of one server: each player's latency to it. */
+/**
+ * The lobby of one server: each player's latency to it. Throws a RangeError for a server the lobby
+ * does not list (a programming error: the latencies would be missing, and a server named
+ * "toString" read Object.prototype's function as a latency).
+ */
 export function lobbyOnServer(lobby: ServerLobbyFile, server: string): LobbyFile {
+  if (!lobby.servers.includes(server)) throw new RangeError(`\`server\` requires one of the lobby's servers (${lobby.servers.map((name) => show(name)).join(', ')}), got ${show(server)}`);
   return {
     format: 'lagparity/lobby@1',
     match_id: lobby.match_id,
     attribute: lobby.attribute,
     difficulty: lobby.difficulty,
     players: lobby.players.map((player) => {
-      const latency = player.latency_ms[server] as number | number[];
+      const latency = (Object.hasOwn(player.latency_ms, server) ? player.latency_ms[server] : undefined) as number | number[];
       return player.team === undefined ? { id: player.id, latency_ms: latency } : { id: player.id, team: player.team, latency_ms: latency };
     }),
   };

@@ -33,6 +33,7 @@ import type { CompiledRules } from './rules.js';
 import { type BalanceOptions, type BalanceResult, balanceLobby } from './balance-lobby.js';
 import { ineligiblePrediction, solveLobby, withEstimate } from './solve-lobby.js';
 import { SolveWorkspace, unitSums } from './workspace.js';
+import { readSafely } from '../validated.js';
 
 export interface CandidateFigures {
   /** The candidate's index in the list given. */
@@ -88,8 +89,9 @@ export function compareCandidates(left: CandidateFigures, right: CandidateFigure
  * queued player; its `match_id`, `attribute` and `difficulty` apply to every
  * candidate). Validate the pool with `safeParseLobby` first.
  *
- * @returns `rejected` with issues when a candidate names an id that is not in
- *   the pool, names one twice, or is empty; else every candidate's figures,
+ * @returns `rejected` with issues when `candidates` is not a list of lists
+ *   (or throws when read), a candidate names an id that is not in the pool,
+ *   names one twice, or is empty; else every candidate's figures,
  *   best first, and the full balance of the best.
  * @example
  *   const ranking = rankLobbies(pool, [['ash', 'birch'], ['ash', 'cedar']], model, rules);
@@ -100,7 +102,6 @@ export function rankLobbies(input: LobbyFile, candidates: readonly (readonly str
   const uncompiled = compiledInputIssues(model, rules);
   const parsed = parsedLobby(input);
   if (uncompiled.length > 0 || !parsed.ok) return { status: 'rejected', issues: [...uncompiled, ...(parsed.ok ? [] : parsed.issues.map((issue) => ({ ...issue, location: `pool.${issue.location}` })))] };
-  if (!Array.isArray(candidates as unknown)) throw new TypeError(`\`candidates\` requires a list of lists of player ids, got ${show(candidates)}`);
   const pool = parsed.value;
   // Under a robust estimator a player's samples become one latency, the same in every candidate: take it once.
   const byId = new Map<string, LobbyPlayer>();
@@ -109,32 +110,44 @@ export function rankLobbies(input: LobbyFile, candidates: readonly (readonly str
     original.set(player.id, player);
     byId.set(player.id, withEstimate(player, rules));
   }
+  // Candidates are data from the caller: a list that is not one, or that throws when read, is a rejection.
+  const { lobbies, issues } = readSafely(
+    candidates,
+    () => candidateLobbies(candidates, pool, byId),
+    (message) => ({ lobbies: [], issues: [error('unreadable_input', 'candidates', `\`candidates\` requires plain data (lists of player ids), got a value that throws when read: ${JSON.stringify(message)}`)] }),
+  );
+  if (issues.length > 0) return { status: 'rejected', issues };
+  const ranked = lobbies.map((lobby, index) => candidateFigures(lobby, index, model, rules)).sort(compareCandidates);
+  const chosen = lobbies[(ranked[0] as CandidateFigures).candidate] as LobbyFile;
+  const best = balanceLobby({ ...chosen, players: chosen.players.map((player) => original.get(player.id) as LobbyPlayer) }, model, rules, options);
+  return { status: 'ranked', ranked, best };
+}
+
+/** Each candidate as a lobby of the pool's players, and the issues of candidates that are not lists of the pool's ids. */
+function candidateLobbies(candidates: unknown, pool: LobbyFile, byId: ReadonlyMap<string, LobbyPlayer>): { lobbies: LobbyFile[]; issues: Issue[] } {
   const issues: Issue[] = [];
-  const lobbies: LobbyFile[] = candidates.map((ids, index) => {
+  if (!Array.isArray(candidates)) return { lobbies: [], issues: [error('invalid_candidates', 'candidates', `\`candidates\` requires a list of lists of player ids, got ${show(candidates)}`)] };
+  const lobbies: LobbyFile[] = candidates.map((ids: unknown, index) => {
     const seen = new Set<string>();
     const players: LobbyPlayer[] = [];
-    if (!Array.isArray(ids as unknown)) {
+    if (!Array.isArray(ids)) {
       issues.push(error('invalid_candidate', `candidates[${index}]`, `a candidate requires a list of player ids, got ${show(ids)}`));
       return { ...pool, players };
     }
     if (ids.length === 0) issues.push(error('empty_candidate', `candidates[${index}]`, 'a candidate requires at least one player id, got none'));
-    ids.forEach((id, position) => {
-      const player = byId.get(id);
+    ids.forEach((id: unknown, position) => {
+      const player = typeof id === 'string' ? byId.get(id) : undefined;
       if (player === undefined) issues.push(error('unknown_player', `candidates[${index}][${position}]`, `a candidate requires ids of the pool's players, got ${show(id)}`));
-      else if (seen.has(id)) issues.push(error('duplicate_player', `candidates[${index}][${position}]`, `a player id used once in a candidate, got ${show(id)} again`));
+      else if (seen.has(id as string)) issues.push(error('duplicate_player', `candidates[${index}][${position}]`, `a player id used once in a candidate, got ${show(id)} again`));
       else {
-        seen.add(id);
+        seen.add(id as string);
         players.push(player);
       }
     });
     return { ...pool, players };
   });
   if (candidates.length === 0) issues.push(error('no_candidates', 'candidates', 'ranking requires at least one candidate lobby, got none'));
-  if (issues.length > 0) return { status: 'rejected', issues };
-  const ranked = lobbies.map((lobby, index) => candidateFigures(lobby, index, model, rules)).sort(compareCandidates);
-  const chosen = lobbies[(ranked[0] as CandidateFigures).candidate] as LobbyFile;
-  const best = balanceLobby({ ...chosen, players: chosen.players.map((player) => original.get(player.id) as LobbyPlayer) }, model, rules, options);
-  return { status: 'ranked', ranked, best };
+  return { lobbies, issues };
 }
 
 /** The figures of one candidate, from a solve in the shared workspace. */

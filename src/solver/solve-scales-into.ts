@@ -13,8 +13,18 @@
  *
  * Cost: as `balanceLobby`'s solve: O(n) for the common case (one closed-form
  * inverse per player), more with a binding budget (see solve-scales.ts).
+ *
+ * Inputs are checked as `balanceLobby` checks them (entry-checks.ts): a
+ * model or rules that did not come from compileModel / compileRules, and a
+ * latency or sample that is not a number from 0 to 60,000 ms (NaN, an
+ * infinity, a negative value), give `rejected` with issues; arrays that are
+ * not Float64Arrays, or of mismatched lengths, throw (a programming error).
+ * On `rejected` every entry of `out` is 1 (no compensation), never NaN or a
+ * half-written answer.
  */
 import { type Issue, error, show } from '../issues.js';
+import { MAX_LATENCY_MS } from '../formats/limits.js';
+import { compiledInputIssues } from './entry-checks.js';
 import type { CompiledModel } from '../model/compile.js';
 import type { CompiledRules } from './rules.js';
 import { quantileSelect } from '../stats/quantile-select.js';
@@ -35,6 +45,29 @@ export type BulkSolveResult =
 
 const bulkWorkspace = new SolveWorkspace();
 
+function checkArray(value: unknown, name: string): void {
+  if (!(value instanceof Float64Array)) throw new TypeError(`\`${name}\` requires a Float64Array, got ${show(value)}`);
+}
+
+/** A rejection: `out` holds 1 everywhere (no compensation), whatever the solve had written. */
+function rejected(out: Float64Array, issues: readonly Issue[]): BulkSolveResult {
+  out.fill(1);
+  return { status: 'rejected', issues };
+}
+
+/** Issues of a bulk call's data: the model and rules compiled, and every value a latency (the first bad one named). */
+function bulkInputIssues(model: unknown, rules: unknown, values: Float64Array, name: string): Issue[] {
+  const issues = compiledInputIssues(model, rules);
+  for (let index = 0; index < values.length; index += 1) {
+    const value = values[index] as number;
+    if (!(value >= 0 && value <= MAX_LATENCY_MS)) {
+      issues.push(error('out_of_range', `${name}[${index}]`, `\`${name}[${index}]\` requires a latency in milliseconds between 0 and ${MAX_LATENCY_MS}, got ${show(value)}`));
+      break;
+    }
+  }
+  return issues;
+}
+
 /**
  * Solve one lobby of point latencies into `out` (same length as
  * `latencies`). Same rules and scales as `balanceLobby` on the same players
@@ -52,14 +85,21 @@ const bulkWorkspace = new SolveWorkspace();
  *   const result = solveScalesInto(model, 'veteran', latencies, rules, out);
  */
 export function solveScalesInto(model: CompiledModel, difficulty: number | string, latencies: Float64Array, rules: CompiledRules, out: Float64Array): BulkSolveResult {
+  checkArray(latencies, 'latencies');
+  checkArray(out, 'out');
   if (out.length !== latencies.length) {
     throw new RangeError(`\`out\` requires the length of \`latencies\` (${latencies.length}), got ${out.length}`);
   }
-  if (model.scaleForm === 'none') {
-    return { status: 'rejected', issues: [error('no_scale_term', 'model.terms', 'compensation requires a model with a scale term (scale or log_scale), got none')] };
-  }
+  const inputIssues = bulkInputIssues(model, rules, latencies, 'latencies');
+  if (inputIssues.length > 0) return rejected(out, inputIssues);
+  return solvePoints(model, difficulty, latencies, rules, out);
+}
+
+/** solveScalesInto on checked inputs (solveSampledScalesInto's robust estimates come here too). */
+function solvePoints(model: CompiledModel, difficulty: number | string, latencies: Float64Array, rules: CompiledRules, out: Float64Array): BulkSolveResult {
+  if (model.scaleForm === 'none') return rejected(out, [noScaleTerm()]);
   const lineResult = model.lineAt(difficulty);
-  if (!lineResult.ok) return { status: 'rejected', issues: lineResult.issues };
+  if (!lineResult.ok) return rejected(out, lineResult.issues);
   const line = lineResult.value;
   const logForm = model.scaleForm === 'log';
   const limitLatency = rules.latency_limit_ms ?? Infinity;
@@ -74,15 +114,11 @@ export function solveScalesInto(model: CompiledModel, difficulty: number | strin
     if (latency < lowest) lowest = latency;
     if (latency > highest) highest = latency;
   }
-  if (eligible === 0) {
-    return { status: 'rejected', issues: [error('no_eligible_player', 'players', `a lobby requires at least one player within the latency limit (${String(rules.latency_limit_ms)} ms), got none`)] };
-  }
+  if (eligible === 0) return rejected(out, [noEligiblePlayer(rules)]);
   // The scale coefficient is affine in latency: positive everywhere iff positive at both extremes.
   for (const latency of [lowest, highest]) {
     const slope = line.scaleSlope + line.scaleSlopePerMs * latency;
-    if (!(slope > 0)) {
-      return { status: 'rejected', issues: [error('scale_not_increasing', 'players', `compensation requires hit probability to increase with the scale, but under this model it does not at ${show(latency)} ms (the scale term's coefficient there is ${slope.toPrecision(3)})`)] };
-    }
+    if (!(slope > 0)) return rejected(out, [scaleNotIncreasing(latency, slope)]);
   }
   const link = model.link;
   const unitTerm = logForm ? 0 : 1;
@@ -107,9 +143,14 @@ export function solveScalesInto(model: CompiledModel, difficulty: number | strin
   return finish(solveScales({ curves, before: workspace.before, target, link, form: model.scaleForm, rules, idOf: null }, workspace, true), latencies, limitLatency, out, eligible);
 }
 
+const noScaleTerm = () => error('no_scale_term', 'model.terms', 'compensation requires a model with a scale term (scale or log_scale), got none');
+const noEligiblePlayer = (rules: CompiledRules) => error('no_eligible_player', 'players', `a lobby requires at least one player within the latency limit (${String(rules.latency_limit_ms)} ms), got none`);
+const scaleNotIncreasing = (latency: number, slope: number) =>
+  error('scale_not_increasing', 'players', `compensation requires hit probability to increase with the scale, but under this model it does not at ${show(latency)} ms (the scale term's coefficient there is ${slope.toPrecision(3)})`);
+
 /** Write the eligible players' scales (slot order is input order) and 1 for the others. */
 function finish(solved: ReturnType<typeof solveScales>, latencies: Float64Array, limitLatency: number, out: Float64Array, eligible: number): BulkSolveResult {
-  if (!solved.ok) return { status: 'rejected', issues: solved.issues };
+  if (!solved.ok) return rejected(out, solved.issues);
   const scales = solved.value.scales;
   let slot = 0;
   for (let index = 0; index < latencies.length; index += 1) {
@@ -144,9 +185,13 @@ export function solveSampledScalesInto(
   out: Float64Array,
 ): BulkSolveResult {
   const perPlayer = samplesPerPlayer;
+  checkArray(samples, 'samples');
+  checkArray(out, 'out');
   if (!(Number.isSafeInteger(perPlayer) && perPlayer >= 1) || samples.length !== perPlayer * out.length) {
-    throw new RangeError(`\`samples\` requires \`samplesPerPlayer\` (${String(perPlayer)}) x the length of \`out\` (${out.length}) values, got ${samples.length}`);
+    throw new RangeError(`\`samples\` requires \`samplesPerPlayer\` (${show(perPlayer)}) x the length of \`out\` (${out.length}) values, got ${samples.length}`);
   }
+  const inputIssues = bulkInputIssues(model, rules, samples, 'samples');
+  if (inputIssues.length > 0) return rejected(out, inputIssues);
   const count = out.length;
   const estimator = rules.latency_estimator;
   if (estimator !== 'all_samples' || perPlayer === 1) {
@@ -160,13 +205,11 @@ export function solveSampledScalesInto(
         estimates[player] = quantileSelect(samples.subarray(player * perPlayer, (player + 1) * perPlayer), probability, buffer);
       }
     }
-    return solveScalesInto(model, difficulty, estimates, rules, out);
+    return solvePoints(model, difficulty, estimates, rules, out);
   }
-  if (model.scaleForm === 'none') {
-    return { status: 'rejected', issues: [error('no_scale_term', 'model.terms', 'compensation requires a model with a scale term (scale or log_scale), got none')] };
-  }
+  if (model.scaleForm === 'none') return rejected(out, [noScaleTerm()]);
   const lineResult = model.lineAt(difficulty);
-  if (!lineResult.ok) return { status: 'rejected', issues: lineResult.issues };
+  if (!lineResult.ok) return rejected(out, lineResult.issues);
   const line = lineResult.value;
   const limitLatency = rules.latency_limit_ms ?? Infinity;
   let eligible = 0;
@@ -178,9 +221,7 @@ export function solveSampledScalesInto(
     out[player] = mean <= limitLatency ? 0 : Number.NaN;
     if (mean <= limitLatency) eligible += 1;
   }
-  if (eligible === 0) {
-    return { status: 'rejected', issues: [error('no_eligible_player', 'players', `a lobby requires at least one player within the latency limit (${String(rules.latency_limit_ms)} ms), got none`)] };
-  }
+  if (eligible === 0) return rejected(out, [noEligiblePlayer(rules)]);
   const workspace = bulkWorkspace.reserve(eligible, eligible * perPlayer);
   const { offsets, alphas, betas } = workspace;
   offsets[0] = 0;
@@ -192,9 +233,7 @@ export function solveSampledScalesInto(
       const position = slot * perPlayer + index;
       alphas[position] = line.base + line.basePerMs * latency;
       const beta = line.scaleSlope + line.scaleSlopePerMs * latency;
-      if (!(beta > 0)) {
-        return { status: 'rejected', issues: [error('scale_not_increasing', 'players', `compensation requires hit probability to increase with the scale, but under this model it does not at ${show(latency)} ms (the scale term's coefficient there is ${beta.toPrecision(3)})`)] };
-      }
+      if (!(beta > 0)) return rejected(out, [scaleNotIncreasing(latency, beta)]);
       betas[position] = beta;
     }
     slot += 1;
@@ -211,7 +250,7 @@ export function solveSampledScalesInto(
     target = model.link.inverse(line.base + line.basePerMs * spec.latency_ms + (line.scaleSlope + line.scaleSlopePerMs * spec.latency_ms) * unitTerm);
   } else for (let index = 0; index < eligible; index += 1) target = Math.max(target, before[index] as number);
   const solved = solveScales({ curves, before, target, link: model.link, form, rules, idOf: null }, workspace, true);
-  if (!solved.ok) return { status: 'rejected', issues: solved.issues };
+  if (!solved.ok) return rejected(out, solved.issues);
   slot = 0;
   for (let player = 0; player < count; player += 1) {
     if (Number.isNaN(out[player])) out[player] = 1;

@@ -42,6 +42,15 @@ describe('parseJsonText()', () => {
     );
   });
 
+  it('throws a TypeError naming the argument for text that is not a string (Buffer.byteLength threw from inside)', () => {
+    for (const text of [123, null, undefined, Buffer.from('{}')]) expect(() => parseJsonText(text as unknown as string, 'x.json')).toThrow(/`text` requires a string/);
+  });
+
+  it('refuses a key twice however it is spelt, with its line and column', () => {
+    const result = parseJsonText('{"link": "logit",\n "\\u006cink": "probit"}', 'model.json');
+    expect(result.ok || result.issues[0]).toMatchObject({ code: 'duplicate_key', location: 'model.json:link', message: expect.stringContaining('at line 2, column 2') });
+  });
+
   it('refuses an empty file and one above the size limit', () => {
     const empty = parseJsonText('  \n', 'e.json');
     expect(empty.ok || empty.issues[0]?.code).toBe('empty_file');

@@ -63,4 +63,18 @@ describe('safeParsePlan()', () => {
     expect(issuesOf({ ...good, rounds: 3 })[0]).toMatchObject({ code: 'unknown_field', location: 'plan.json:rounds' });
     expect(issuesOf({ ...good, format: 'lagparity/playtest-plan@2' })[0]).toMatchObject({ code: 'invalid_value', location: 'plan.json:format' });
   });
+
+  it('names a document of another kind with one issue (it listed every plan field the lobby lacks)', () => {
+    expect(issuesOf({ format: 'lagparity/lobby@1', match_id: 'm', attribute: 'hit_area', difficulty: 'veteran', players: [] })).toEqual([
+      expect.objectContaining({ code: 'wrong_kind', location: 'plan.json:format' }),
+    ]);
+  });
+
+  // Before: the exception of a getter or a Proxy trap came out of safeParsePlan.
+  it('turns a getter or a Proxy that throws into an unreadable_input issue', () => {
+    const getter = { ...good };
+    Object.defineProperty(getter, 'participants', { enumerable: true, get: () => { throw new Error('no participants'); } });
+    const trap = new Proxy({ ...good }, { ownKeys: () => { throw new Error('no keys'); } });
+    for (const input of [getter, trap]) expect(issuesOf(input)).toEqual([expect.objectContaining({ code: 'unreadable_input', location: 'plan.json' })]);
+  });
 });

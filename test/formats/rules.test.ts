@@ -31,6 +31,11 @@ describe('compileRules()', () => {
     expect(issues({ quantisation_step: 0.05 })).toEqual([]);
   });
 
+  it.each([1e-300, 5e-324, 1e-7])('refuses a quantisation step of %s, finer than a millionth of the cap (the solve of a 1e-300 step never ended)', (step) => {
+    expect(issues({ quantisation_step: step, scale_floor: step === 1e-7 ? 1 : step })).toEqual([expect.objectContaining({ code: 'out_of_range', location: 'rules.json:quantisation_step' })]);
+    expect(issues({ quantisation_step: 2e-6 })).toEqual([]);
+  });
+
   it('refuses zero, negative and non-finite limits', () => {
     expect(issues({ scale_cap: 0 })[0]?.message).toMatch(/above 0/);
     expect(issues({ latency_limit_ms: -5 })[0]?.location).toBe('rules.json:latency_limit_ms');

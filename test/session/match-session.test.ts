@@ -191,4 +191,27 @@ describe('replaySession()', () => {
       { seed: 16, numRuns: 300 },
     );
   });
+
+  // Before: a key twice kept its last value, and a `__proto__` key became the prototype of the
+  // parsed rules (whose fields zod then read through it): the log was read two ways.
+  it('refuses a line with a key twice, a prototype key or nesting beyond 64, naming the line', () => {
+    const { session, events } = recorded();
+    session.join('ash');
+    const [start, join] = events.map((event) => JSON.stringify(event)) as [string, string];
+    const cases: [string, string, string][] = [
+      [join.replace('"id":"ash"', '"id":"ash","id":"birch"'), 'duplicate_key', 'match.jsonl:2:id'],
+      [start.replace('"rules":{', '"rules":{"__proto__":{"scale_cap":9},'), 'forbidden_key', 'match.jsonl:1:rules.__proto__'],
+      [start.replace('"rules":{', '"rules":{"c\\u006fnstructor":1,'), 'forbidden_key', 'match.jsonl:1:rules.constructor'],
+      [join.replace('"at":0', `"at":${'['.repeat(100)}${']'.repeat(100)}`), 'too_deep', 'match.jsonl:2:'],
+    ];
+    for (const [line, code, location] of cases) {
+      const text = line.startsWith('{"type":"start"') ? `${line}\n${join}` : `${start}\n${line}`;
+      const result = parseSessionLog(text, 'match.jsonl');
+      expect(result.ok || result.issues[0]).toMatchObject({ code, location: expect.stringContaining(location) });
+    }
+  });
+
+  it('throws a TypeError naming the argument when the text is not a string', () => {
+    expect(() => parseSessionLog(42 as unknown as string)).toThrow(/`text` requires a string/);
+  });
 });
