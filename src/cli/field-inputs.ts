@@ -10,6 +10,15 @@ import type { CompiledModel } from '../model/compile.js';
 import type { CompiledRules } from '../solver/rules.js';
 import { progressLine } from './progress.js';
 import { readGrouped } from './read-grouped.js';
+import { needsEngine } from '../engine/needs-engine.js';
+
+/**
+ * The latency resolution at which field-check groups Parquet files and globs (through DuckDB):
+ * 0.001 ms returns any latency recorded to three decimals as the very double the CSV reader
+ * parses (engine/grouping-sql.ts), so every row lands in the band it would from a CSV file.
+ * fit's default of 1 ms would move rows within half a millisecond of a cut across it.
+ */
+export const FIELD_LATENCY_STEP_MS = 0.001;
 
 export interface FieldSettings {
   readonly margin: number;
@@ -35,12 +44,10 @@ export async function checkTelemetry(
   settings: FieldSettings,
   attribute: 'hit_area' | 'timing_window' | undefined,
 ): Promise<Result<FieldCheckReport>> {
-  if (/\.parquet$/i.test(telemetry)) {
-    // The field check's bands need each row's exact latency: it reads one trials CSV file (fit reads Parquet, rounding latency).
-    return fail([error('unsupported_input', telemetry, '`field-check` requires a trials CSV file, got a Parquet file; export the rows as CSV (every row, latencies exact)')]);
-  }
+  // Parquet files and globs are read through DuckDB, as fit reads them, but grouped at
+  // FIELD_LATENCY_STEP_MS: the bands need each row's latency where the CSV reader puts it.
   const progress = progressLine('lagparity field-check');
-  const read = await readGrouped(telemetry, progress, { engine: false });
+  const read = await readGrouped(telemetry, progress, needsEngine(telemetry) ? { latencyStepMs: FIELD_LATENCY_STEP_MS } : { engine: false });
   progress.done();
   if (!read.ok) return read;
   const { grouped, sha256 } = read.value;

@@ -152,10 +152,30 @@ describe('lagparity fit on Parquet and globs: bad input', () => {
     expect(run.stderr).toContain('other.csv:latency_ms: error missing_column');
   });
 
-  it('keeps field-check to one CSV file (its bands need exact latencies)', () => {
-    const run = runCli(['field-check', join(scratch, 'rounds.parquet'), '--model', join(MATCHES, 'model.json')]);
-    expect(run.status).toBe(2);
-    expect(run.stderr).toBe(`${join(scratch, 'rounds.parquet')}: error unsupported_input: \`field-check\` requires a trials CSV file, got a Parquet file; export the rows as CSV (every row, latencies exact)\n`);
+  it('checks live telemetry in Parquet shards as it checks the same rows in one CSV file', async () => {
+    const live = join(MATCHES, 'live-telemetry.csv');
+    // Two shards, rows in another order than the CSV file's; latencies are recorded to 0.1 ms.
+    const source = `read_csv('${live}', header = true, types = {'latency_ms': 'DOUBLE', 'scale': 'DOUBLE'})`;
+    await duck([
+      `COPY (SELECT * FROM ${source} WHERE player < 'm' ORDER BY latency_ms DESC) TO '${join(scratch, 'live-a.parquet')}' (FORMAT parquet)`,
+      `COPY (SELECT * FROM ${source} WHERE player >= 'm') TO '${join(scratch, 'live-b.parquet')}' (FORMAT parquet)`,
+    ]);
+    const args = ['--model', join(MATCHES, 'model.json'), '--rules', join(MATCHES, 'league-rules.json'), '--json'];
+    const fromCsv = runCli(['field-check', live, ...args]);
+    const fromShards = runCli(['field-check', join(scratch, 'live-*.parquet'), ...args]);
+    expect(fromShards.stderr.replaceAll('live-*.parquet', 'live-telemetry.csv')).toBe(fromCsv.stderr); // the same warnings, naming the input
+    expect(fromShards.status).toBe(fromCsv.status);
+    type Band = { label: string; players: number; rounds: number; attempts: number; observed: number | null };
+    type Check = { verdict: string; bands: Band[]; calibration: { recommendation: string; in_the_large: { estimate: number }; slope: { estimate: number } } };
+    const csv = JSON.parse(fromCsv.stdout) as Check;
+    const shards = JSON.parse(fromShards.stdout) as Check;
+    expect(shards.verdict).toBe(csv.verdict);
+    expect(shards.calibration.recommendation).toBe(csv.calibration.recommendation);
+    // Every row in the same band: the same counts; the rates and fits to rounding (the groups come in another order).
+    expect(shards.bands.map(({ label, players, rounds, attempts }) => ({ label, players, rounds, attempts }))).toEqual(csv.bands.map(({ label, players, rounds, attempts }) => ({ label, players, rounds, attempts })));
+    shards.bands.forEach((band, index) => expect(band.observed ?? -1).toBeCloseTo(csv.bands[index]?.observed ?? -1, 12));
+    expect(shards.calibration.in_the_large.estimate).toBeCloseTo(csv.calibration.in_the_large.estimate, 9);
+    expect(shards.calibration.slope.estimate).toBeCloseTo(csv.calibration.slope.estimate, 9);
   });
 
   it('refuses a --latency-step that is not a number above 0', () => {
