@@ -70,7 +70,7 @@ export type { AuditEntry } from './audit/audit-lobbies.js';
 export type { AuditReason, AuditReport, AuditRule, AuditSummary, LobbyAudit, SweepReport } from './audit/audit-types.js';
 export type { BalanceOptions, BalanceResult, LobbySummary, LobbyViews, PlayerBalance, TeamFigures } from './solver/balance-lobby.js';
 export type { Binding } from './solver/solve-scales.js';
-export type { BinomialData, BinomialFit, BinomialFitOptions } from './model/fit-binomial.js';
+export type { BinomialData, BinomialFit, BinomialFitOptions } from './model/binomial-fit-types.js';
 export type { BoxStats, BoxStatsOptions, FiveNumber } from './stats/box-stats.js';
 export type { BulkSolveResult } from './solver/solve-scales-into.js';
 export type { CalibrationCheck, CompensationCheck, FieldBand, FieldCheckReport, FieldRecommendation, FieldVerdict } from './field/field-types.js';
