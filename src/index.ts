@@ -74,7 +74,7 @@ export type { BinomialData, BinomialFit, BinomialFitOptions } from './model/bino
 export type { BoxStats, BoxStatsOptions, FiveNumber } from './stats/box-stats.js';
 export type { BulkSolveResult } from './solver/solve-scales-into.js';
 export type { CalibrationCheck, CompensationCheck, FieldBand, FieldCheckReport, FieldRecommendation, FieldVerdict } from './field/field-types.js';
-export type { CollapsedTrials, GroupedTrials } from './model/collapse.js';
+export type { CollapsedTrials, GroupedTrials } from './model/collapsed-trials.js';
 export type { CompiledModel, PredictorLine } from './model/compile.js';
 export type { CompiledRules } from './solver/rules.js';
 export type { DesignMatrix } from './numeric/design-matrix.js';

@@ -10,7 +10,7 @@
  */
 import type { BinomialFit, BinomialFitEstimated } from '../model/binomial-fit-types.js';
 import { fitBinomial } from '../model/fit-binomial.js';
-import type { CollapsedTrials } from '../model/collapse.js';
+import type { CollapsedTrials } from '../model/collapsed-trials.js';
 import type { LinkName } from '../model/links.js';
 import type { DesignMatrix } from '../numeric/design-matrix.js';
 import { normalQuantile } from '../stats/distributions.js';

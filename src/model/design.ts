@@ -4,7 +4,7 @@
  */
 import type { Trials } from '../formats/trials-csv.js';
 import type { DesignMatrix } from '../numeric/design-matrix.js';
-import type { CollapsedTrials, GroupedTrials } from './collapse.js';
+import type { CollapsedTrials, GroupedTrials } from './collapsed-trials.js';
 import { type DesignColumn, type DifficultyCoding, type TermName, designColumns, scaleForm, scaleTermValue } from './terms.js';
 
 /**
