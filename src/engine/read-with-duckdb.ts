@@ -18,7 +18,7 @@ import { createReadStream } from 'node:fs';
 import { createHash } from 'node:crypto';
 import { basename } from 'node:path';
 import { type Issue, type Result, error, fail, ok, show } from '../issues.js';
-import { parseDecimal } from '../formats/trials-csv.js';
+import { parseDecimal } from '../formats/plain-decimal.js';
 import { mergeGroups } from '../model/collapse.js';
 import type { GroupedTrials } from '../model/collapsed-trials.js';
 import { COLLAPSE_BATCH_ROWS, GroupAccumulator } from '../model/group-accumulator.js';

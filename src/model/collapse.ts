@@ -17,7 +17,7 @@
  * weights or players); the collapsed rows' types are in
  * `collapsed-trials.ts`.
  */
-import type { Trials } from '../formats/trials-csv.js';
+import type { Trials } from '../formats/trials-types.js';
 import type { CollapsedTrials, GroupedTrials } from './collapsed-trials.js';
 import { GroupAccumulator } from './group-accumulator.js';
 

@@ -5,7 +5,7 @@
  * their source (`GroupedTrials`), and the subset of collapsed rows a
  * cross-validation fold fits.
  */
-import type { Trials } from '../formats/trials-csv.js';
+import type { Trials } from '../formats/trials-types.js';
 
 /** Trials reduced to distinct covariate points (and players, when kept apart). */
 export interface CollapsedTrials {

@@ -42,7 +42,7 @@
  * fit's estimates, so they take fewer iterations.
  */
 import { type Issue, error, show, warning } from '../issues.js';
-import type { Trials } from '../formats/trials-csv.js';
+import type { Trials } from '../formats/trials-types.js';
 import { groupTrials } from './collapse.js';
 import type { GroupedTrials } from './collapsed-trials.js';
 import { coefficientRows, square, termsOfColumns } from './coefficient-rows.js';

@@ -3,7 +3,7 @@
  * `fit --json` prints): its options, its rows and sections, and the fields of
  * a report whose fit gave no estimates.
  */
-import type { Trials } from '../formats/trials-csv.js';
+import type { Trials } from '../formats/trials-types.js';
 import type { Issue } from '../issues.js';
 import type { BinomialLikelihood } from './binomial-fit-types.js';
 import type { LinkName } from './links.js';

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import type { Trials } from '../../src/formats/trials-csv.js';
+import type { Trials } from '../../src/formats/trials-types.js';
 import fc from 'fast-check';
 import { collapseTrials } from '../../src/model/collapse.js';
 import type { CollapsedTrials } from '../../src/model/collapsed-trials.js';
