@@ -90,7 +90,7 @@ describe('collapseTrials() on many distinct points', () => {
     expect(differences(expected, got)).toEqual([]);
     expect(collapsed.sourceRows).toBe(trials.rows);
     // Points found through a collision come after the other new points of their batch, so the order
-    // differs from first appearance somewhere: the collision path ran (with the FNV mix of collapse.ts).
+    // differs from first appearance somewhere: the collision path ran (with the FNV mix of covariate-hash.ts).
     const firstAppearance = [...expected.keys()];
     const order = [...got.keys()];
     expect(order.some((key, g) => key !== firstAppearance[g])).toBe(true);
