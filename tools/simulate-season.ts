@@ -16,7 +16,7 @@
  * with probability g^-1(truth(latency, scale, difficulty) + skill) (the logit
  * link), drawn as one binomial count per round by inversion.
  */
-import type { GroupedTrials } from '../src/model/collapse.js';
+import type { GroupedTrials } from '../src/model/collapsed-trials.js';
 import type { CompiledModel } from '../src/model/compile.js';
 import { createRandomSource, type RandomSource, standardNormalDraw } from '../src/random.js';
 import type { CompiledRules } from '../src/solver/rules.js';

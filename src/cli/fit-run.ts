@@ -2,7 +2,8 @@
 import { basename } from 'node:path';
 import { type Issue, LagparityInputError, error, show } from '../issues.js';
 import { writeFileAtomic } from '../io/write-file.js';
-import { type FitFamily, type FitModelOptions, type FitReport, fitModel } from '../model/fit-model.js';
+import { fitModel } from '../model/fit-model.js';
+import type { FitFamily, FitModelOptions, FitReport } from '../model/fit-report-types.js';
 import { LINK_NAMES, type LinkName } from '../model/links.js';
 import { type TermName, parseTermList } from '../model/terms.js';
 import type { Ranked } from './render-fit.js';

@@ -10,7 +10,7 @@ import { readJsonFile } from '../io/read-json.js';
 import { withLines } from '../io/issue-lines.js';
 import { type ValidPlan, safeParsePlan } from '../formats/plan.js';
 import { PLAN_FORMAT } from '../formats/plan-types.js';
-import { parseDecimal } from '../formats/trials-csv.js';
+import { parseDecimal } from '../formats/plain-decimal.js';
 
 /** The options both `plan` commands take: the plan's own fields. */
 export interface PlanFieldOptions {

@@ -9,7 +9,8 @@
 import { createHash } from 'node:crypto';
 import { type Result, ok } from '../issues.js';
 import { readGroupedTrialsFile } from '../io/read-trials.js';
-import { type GroupedTrials, mergeGroups } from '../model/collapse.js';
+import { mergeGroups } from '../model/collapse.js';
+import type { GroupedTrials } from '../model/collapsed-trials.js';
 import { DEFAULT_LATENCY_STEP_MS } from '../engine/grouping-sql.js';
 import type { DuckDbLoader } from '../engine/load-duckdb.js';
 import { needsEngine } from '../engine/needs-engine.js';

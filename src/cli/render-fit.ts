@@ -1,5 +1,5 @@
 /** `lagparity fit` for people: the report and the `--compare` ranking as tables (loaded only when not writing JSON). */
-import type { FitReport } from '../model/fit-model.js';
+import type { FitReport } from '../model/fit-report-types.js';
 import { compactTable } from './table.js';
 import { fixed } from './output.js';
 import { pValueText } from '../stats/p-value-text.js';

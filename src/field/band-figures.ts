@@ -10,7 +10,7 @@
  *
  * All sums are weighted by prior weight x attempts. One pass over the rows.
  */
-import type { CollapsedTrials } from '../model/collapse.js';
+import type { CollapsedTrials } from '../model/collapsed-trials.js';
 import type { CompiledModel } from '../model/compile.js';
 import type { DesignMatrix } from '../numeric/design-matrix.js';
 import { twoSidedCritical } from './field-fit.js';

@@ -37,8 +37,9 @@
  *   if (report.ok) report.value.verdict; // 'holds', 'under_compensates', ...
  */
 import { type Issue, type Result, error, fail, ok, show, warning } from '../issues.js';
-import type { Trials } from '../formats/trials-csv.js';
-import { type GroupedTrials, groupTrials } from '../model/collapse.js';
+import type { Trials } from '../formats/trials-types.js';
+import { groupTrials } from '../model/collapse.js';
+import type { GroupedTrials } from '../model/collapsed-trials.js';
 import type { CompiledModel } from '../model/compile.js';
 import { buildDesign } from '../model/design.js';
 import type { CompiledRules } from '../solver/rules.js';

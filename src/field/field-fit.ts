@@ -8,8 +8,9 @@
  * coefficients, which only the grouped log-likelihood and AIC need), with
  * `observationCount` set to the rounds for a per-round file.
  */
-import { type BinomialFit, type BinomialFitEstimated, fitBinomial } from '../model/fit-binomial.js';
-import type { CollapsedTrials } from '../model/collapse.js';
+import type { BinomialFit, BinomialFitEstimated } from '../model/binomial-fit-types.js';
+import { fitBinomial } from '../model/fit-binomial.js';
+import type { CollapsedTrials } from '../model/collapsed-trials.js';
 import type { LinkName } from '../model/links.js';
 import type { DesignMatrix } from '../numeric/design-matrix.js';
 import { normalQuantile } from '../stats/distributions.js';

@@ -6,7 +6,7 @@
  * make the two not belong together are issues naming the file and column.
  */
 import { type Issue, type Result, error, fail, ok, show, warning } from '../issues.js';
-import type { CollapsedTrials, GroupedTrials } from '../model/collapse.js';
+import type { CollapsedTrials, GroupedTrials } from '../model/collapsed-trials.js';
 import type { CompiledModel, PredictorLine } from '../model/compile.js';
 import { scaleTermValue } from '../model/terms.js';
 

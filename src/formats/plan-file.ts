@@ -11,7 +11,7 @@ import { MAX_LATENCY_MS } from './limits.js';
 import type * as types from './plan-types.js';
 import { DEFAULT_SESSION_LIMIT_MINUTES, PLAN_FORMAT, PLAN_LIMITS } from './plan-types.js';
 import { TERM_NAMES } from '../model/terms.js';
-import { parseDecimal } from './trials-csv.js';
+import { parseDecimal } from './plain-decimal.js';
 import type { Assert, Same } from '../type-equality.js';
 
 export { PLAN_FORMAT };

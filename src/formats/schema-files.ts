@@ -8,7 +8,7 @@ import { lobbyFileSchema, LOBBY_FORMAT } from './lobby-file.js';
 import { serverLobbyFileSchema, SERVER_LOBBY_FORMAT } from './server-lobby-file.js';
 import { modelFileSchema, MODEL_FORMAT } from './model-file.js';
 import { rulesFileSchema, RULES_FORMAT } from './rules-file.js';
-import { TRIALS_FORMAT } from './trials-csv.js';
+import { TRIALS_FORMAT } from './trials-types.js';
 import { trialRowSchema } from './trials-schema.js';
 import { AUDIT_FORMAT, SWEEP_FORMAT, auditReportSchema, sweepReportSchema } from '../audit/audit-schema.js';
 import { planFileSchema, PLAN_FORMAT } from './plan-file.js';

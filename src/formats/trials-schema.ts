@@ -1,6 +1,6 @@
 /**
  * The row grammar of a trials file as a zod schema, for the docs and the
- * JSON Schema; `trials-csv.ts` applies the same rules by hand (a test checks
+ * JSON Schema; `trials-builder.ts` applies the same rules by hand (a test checks
  * the two agree).
  */
 import { z } from 'zod';

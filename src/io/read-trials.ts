@@ -7,8 +7,11 @@
 import { open, stat } from 'node:fs/promises';
 import { basename } from 'node:path';
 import { type Result, error, fail, ok } from '../issues.js';
-import { type Trials, type TrialSinkOptions, MAX_CSV_LINE_BYTES, TrialsReader, detectDelimiter } from '../formats/trials-csv.js';
-import { COLLAPSE_BATCH_ROWS, GroupAccumulator, type GroupedTrials, mergeGroups } from '../model/collapse.js';
+import { MAX_CSV_LINE_BYTES, TrialsReader, detectDelimiter } from '../formats/trials-csv.js';
+import type { Trials, TrialSinkOptions } from '../formats/trials-types.js';
+import { mergeGroups } from '../model/collapse.js';
+import type { GroupedTrials } from '../model/collapsed-trials.js';
+import { COLLAPSE_BATCH_ROWS, GroupAccumulator } from '../model/group-accumulator.js';
 
 /** Bytes read per chunk. */
 const CHUNK_BYTES = 1 << 18;

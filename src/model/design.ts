@@ -2,9 +2,9 @@
  * From grouped trials to the arrays a fit iterates over: a difficulty coding
  * and the design matrix of a term list (collapsing is `collapse.ts`).
  */
-import type { Trials } from '../formats/trials-csv.js';
+import type { Trials } from '../formats/trials-types.js';
 import type { DesignMatrix } from '../numeric/design-matrix.js';
-import type { CollapsedTrials, GroupedTrials } from './collapse.js';
+import type { CollapsedTrials, GroupedTrials } from './collapsed-trials.js';
 import { type DesignColumn, type DifficultyCoding, type TermName, designColumns, scaleForm, scaleTermValue } from './terms.js';
 
 /**

@@ -11,7 +11,7 @@ import { type Result, error, fail, ok } from '../issues.js';
 import type { ModelFile } from '../formats/model-types.js';
 import { MODEL_FORMAT } from '../formats/model-format.js';
 import { compileModelFile } from './compiled-model.js';
-import type { FitReport } from './fit-model.js';
+import type { FitReport } from './fit-report-types.js';
 
 /** Where the fitted data came from. */
 export interface ModelProvenance {

@@ -17,7 +17,7 @@
  * Cost: one fit with (players + terms) columns.
  */
 import { type Result, error, fail, ok, show } from '../issues.js';
-import type { Trials } from '../formats/trials-csv.js';
+import type { Trials } from '../formats/trials-types.js';
 import { groupTrials } from '../model/collapse.js';
 import { buildDesign, difficultyCodingOf } from '../model/design.js';
 import { fitBinomial } from '../model/fit-binomial.js';

@@ -15,7 +15,7 @@
  *
  * Cost: O(participants x rounds) uniforms and O(total hits) arithmetic.
  */
-import type { Trials } from '../formats/trials-csv.js';
+import type { Trials } from '../formats/trials-types.js';
 import { linkFor } from '../model/links.js';
 import { scaleTermValue } from '../model/terms.js';
 import { type RandomSource, standardNormalDraw } from '../random.js';

@@ -1,7 +1,10 @@
 /**
  * The shape of a size study's result (`lagparity/playtest-size@1`) as a zod
  * schema: `lagparity report --size-study` checks its input against it, and
- * docs/schemas/playtest-size.schema.json is generated from it.
+ * docs/schemas/playtest-size.schema.json is generated from it. The check
+ * that turns its failures into issues is `parse-size-study.ts` (kept apart so
+ * that `formats/schema-files.ts` can list this schema without importing the
+ * issue translation, which imports the schema list: no import circle).
  */
 import { z } from 'zod';
 import type * as types from './size-study-types.js';
@@ -9,8 +12,6 @@ import { SIZE_STUDY_FORMAT } from './size-study-types.js';
 import { LINK_NAMES } from '../model/links.js';
 import { TERM_NAMES } from '../model/terms.js';
 import type { Assert, Same } from '../type-equality.js';
-import { type Result, fail, ok } from '../issues.js';
-import { fromZodIssues } from '../formats/zod-issues.js';
 
 export { SIZE_STUDY_FORMAT };
 
@@ -88,10 +89,3 @@ export const sizeStudySchema = z
 
 /** The hand-written types of size-study-types.ts are the schema's (a compile error otherwise). */
 type _SizeStudyTypesAgree = Assert<Same<z.infer<typeof sizeStudySchema>, types.SizeStudy>>;
-
-/** Validate a size study's result (already parsed from JSON), e.g. for the report. `file` names the source in issues. */
-export function safeParseSizeStudy(input: unknown, file?: string): Result<types.SizeStudy> {
-  const parsed = sizeStudySchema.safeParse(input);
-  if (!parsed.success) return fail(fromZodIssues(parsed.error.issues, input, file));
-  return ok(parsed.data);
-}

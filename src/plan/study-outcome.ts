@@ -16,7 +16,7 @@
  * limit, a scale effect that does not increase over the training range, or no
  * scale that makes up for the latency) is recorded with its reason.
  */
-import type { Trials } from '../formats/trials-csv.js';
+import type { Trials } from '../formats/trials-types.js';
 import { fitModel } from '../model/fit-model.js';
 import type { LinkName } from '../model/links.js';
 import { type TermName, designColumns, termFactors } from '../model/terms.js';

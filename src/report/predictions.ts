@@ -13,7 +13,7 @@
  * bends, which a band on the probability scale would not.
  */
 import { type Issue, type Result, error, fail, ok, show } from '../issues.js';
-import type { Trials } from '../formats/trials-csv.js';
+import type { Trials } from '../formats/trials-types.js';
 import type { CompiledModel } from '../model/compile.js';
 import { columnValue, scaleTermValue } from '../model/terms.js';
 import { normalQuantile } from '../stats/distributions.js';

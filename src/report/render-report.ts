@@ -12,7 +12,7 @@
  * access). Asynchronous only because Vega renders asynchronously.
  */
 import { type Issue, type Result, error, fail, ok, warning } from '../issues.js';
-import type { Trials } from '../formats/trials-csv.js';
+import type { Trials } from '../formats/trials-types.js';
 import type { CompiledModel } from '../model/compile.js';
 import { type CompiledRules, defaultRules } from '../solver/rules.js';
 import type { BinSpec } from '../summary/bins.js';

@@ -26,7 +26,7 @@
  * describe the rows as recorded.
  */
 import { type Issue, type Result, error, fail, ok, show, warning } from '../issues.js';
-import type { Trials } from '../formats/trials-csv.js';
+import type { Trials } from '../formats/trials-types.js';
 import { boxStats } from '../stats/box-stats.js';
 import { quantileSorted, sortedCopy } from '../stats/quantile.js';
 import { type BinSpec, type Grouping, groupLevels, groupNumeric } from './bins.js';

@@ -10,9 +10,10 @@
  */
 import { describe, expect, it } from 'vitest';
 import { DuckDBInstance } from '@duckdb/node-api';
-import type { Trials } from '../../src/formats/trials-csv.js';
+import type { Trials } from '../../src/formats/trials-types.js';
 import { groupingSql, roundLatency } from '../../src/engine/grouping-sql.js';
-import { type FitReport, fitModel } from '../../src/model/fit-model.js';
+import { fitModel } from '../../src/model/fit-model.js';
+import type { FitReport } from '../../src/model/fit-report-types.js';
 import { LINK_NAMES } from '../../src/model/links.js';
 import { createRandomSource } from '../../src/random.js';
 

@@ -1,7 +1,8 @@
 import { describe, expect, it } from 'vitest';
 import fc from 'fast-check';
 import { parse } from 'csv-parse/sync';
-import { TrialsReader, detectDelimiter, parseDecimal, parseTrialsCsv } from '../../src/formats/trials-csv.js';
+import { parseDecimal } from '../../src/formats/plain-decimal.js';
+import { TrialsReader, detectDelimiter, parseTrialsCsv } from '../../src/formats/trials-csv.js';
 import { trialRowSchema } from '../../src/formats/trials-schema.js';
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';

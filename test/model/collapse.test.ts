@@ -1,7 +1,9 @@
 import { describe, expect, it } from 'vitest';
-import type { Trials } from '../../src/formats/trials-csv.js';
+import type { Trials } from '../../src/formats/trials-types.js';
 import fc from 'fast-check';
-import { type CollapsedTrials, GRID_MIN_ROWS, GroupAccumulator, collapseTrials } from '../../src/model/collapse.js';
+import { collapseTrials } from '../../src/model/collapse.js';
+import type { CollapsedTrials } from '../../src/model/collapsed-trials.js';
+import { GRID_MIN_ROWS, GroupAccumulator } from '../../src/model/group-accumulator.js';
 
 /** Seeded rows like the bench's: latency at 0.01 ms over 0-150 ms, three scales, three levels, optional weights and players. */
 function seededTrials(rows: number, withWeights: boolean, withPlayers: boolean): Trials {
@@ -88,7 +90,7 @@ describe('collapseTrials() on many distinct points', () => {
     expect(differences(expected, got)).toEqual([]);
     expect(collapsed.sourceRows).toBe(trials.rows);
     // Points found through a collision come after the other new points of their batch, so the order
-    // differs from first appearance somewhere: the collision path ran (with the FNV mix of collapse.ts).
+    // differs from first appearance somewhere: the collision path ran (with the FNV mix of covariate-hash.ts).
     const firstAppearance = [...expected.keys()];
     const order = [...got.keys()];
     expect(order.some((key, g) => key !== firstAppearance[g])).toBe(true);

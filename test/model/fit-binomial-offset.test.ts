@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest';
-import { type BinomialFit, type BinomialFitEstimated, binomialScore, fitBinomial } from '../../src/model/fit-binomial.js';
+import type { BinomialFit, BinomialFitEstimated } from '../../src/model/binomial-fit-types.js';
+import { binomialScore, fitBinomial } from '../../src/model/fit-binomial.js';
 import { designMatrixFromColumns, interceptColumn } from '../../src/numeric/design-matrix.js';
 import { normalQuantile } from '../../src/stats/distributions.js';
 import { fieldValue, liveRounds } from '../helpers/field-fixtures.js';

@@ -1,13 +1,7 @@
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
-import {
-  binomialScore,
-  fitBinomial,
-  type BinomialData,
-  type BinomialFit,
-  type BinomialFitEstimated,
-  type BinomialFitOptions,
-} from '../../src/model/fit-binomial.js';
+import type { BinomialData, BinomialFit, BinomialFitEstimated, BinomialFitOptions } from '../../src/model/binomial-fit-types.js';
+import { binomialScore, fitBinomial } from '../../src/model/fit-binomial.js';
 import type { LinkName } from '../../src/model/links.js';
 import { designMatrixFromColumns, interceptColumn } from '../../src/numeric/design-matrix.js';
 import { numberColumn, readTable, referenceValue, relativeError } from '../helpers/glm-fixtures.js';

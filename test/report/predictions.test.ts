@@ -1,6 +1,7 @@
 import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
-import { parseTrialsCsv, type Trials } from '../../src/formats/trials-csv.js';
+import { parseTrialsCsv } from '../../src/formats/trials-csv.js';
+import type { Trials } from '../../src/formats/trials-types.js';
 import { type CompiledModel, compileModel } from '../../src/model/compile.js';
 import { Z_975, calibrationBins, difficultyForModel, hasCovariance, predictWithBand } from '../../src/report/predictions.js';
 

@@ -1,7 +1,8 @@
 import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import { listOf, numberOf, readBoxplotReferences } from '../helpers/stats-fixtures.js';
-import { parseTrialsCsv, type Trials } from '../../src/formats/trials-csv.js';
+import { parseTrialsCsv } from '../../src/formats/trials-csv.js';
+import type { Trials } from '../../src/formats/trials-types.js';
 import { parseFactorList, summarizeTrials, type TrialsSummary } from '../../src/summary/summarize-trials.js';
 import { createRandomSource } from '../../src/random.js';
 

@@ -1,0 +1,213 @@
+/**
+ * Cross-validation that leaves whole players out (k folds, seeded): held-out
+ * log loss, Brier score and the mean absolute calibration error in ten
+ * equal-width bins of predicted probability (the "expected calibration
+ * error" of Naeini, M. P., Cooper, G. F. and Hauskrecht, M. (2015),
+ * Obtaining well calibrated probabilities using Bayesian binning, AAAI).
+ * Without a player column (or with fewer than two players) collapsed rows
+ * are assigned to folds at random instead. The calibration table of a fit
+ * itself uses the same ten bins.
+ *
+ * Held-out probabilities are clipped to [1e-15, 1 - 1e-15] before the log
+ * loss, so a held-out prediction of exactly 0 or 1 costs 34.5 nats, not
+ * infinity (the clipping scikit-learn's `log_loss` applies).
+ */
+import { type Issue, warning } from '../issues.js';
+import { multiply } from '../numeric/design-matrix.js';
+import { createRandomSource, shuffledIndices } from '../random.js';
+import { type CollapsedTrials, selectCollapsed } from './collapsed-trials.js';
+import { buildDesign } from './design.js';
+import { fitLeastSquares } from './fit-least-squares.js';
+import type { CalibrationBin, CrossValidation, FoldResult } from './fit-report-types.js';
+import { linkFor } from './links.js';
+import { type Prepared, accuracy, leastSquaresWeights, runBinomial } from './prepared-fit.js';
+
+/** Held-out probabilities are clipped to [CLIP, 1 - CLIP] for the log loss. */
+const CLIP = 1e-15;
+
+/**
+ * Fold of each collapsed row: whole players in folds when there are at least
+ * two players, else rows at random. Players (or rows) are shuffled by
+ * Fisher-Yates with the seeded source and dealt round-robin into the folds.
+ */
+export function assignFolds(
+  data: CollapsedTrials,
+  folds: number,
+  seed: number,
+): { readonly fold: Int32Array; readonly folds: number; readonly heldOut: 'players' | 'rows' } {
+  const random = createRandomSource(seed);
+  const fold = new Int32Array(data.rows);
+  const players = data.player === null ? 0 : countAll(data.player);
+  if (data.player !== null && players >= 2) {
+    const count = Math.min(folds, players);
+    const order = shuffledIndices(players, random);
+    const foldOfPlayer = new Int32Array(players);
+    order.forEach((player, position) => (foldOfPlayer[player] = position % count));
+    for (let i = 0; i < data.rows; i += 1) fold[i] = foldOfPlayer[data.player[i] as number] as number;
+    return { fold, folds: count, heldOut: 'players' };
+  }
+  const count = Math.min(folds, data.rows);
+  const order = shuffledIndices(data.rows, random);
+  order.forEach((row, position) => (fold[row] = position % count));
+  return { fold, folds: count, heldOut: 'rows' };
+}
+
+function countAll(codes: Int32Array): number {
+  let largest = -1;
+  for (let i = 0; i < codes.length; i += 1) largest = Math.max(largest, codes[i] as number);
+  return largest + 1;
+}
+
+
+/** Ten equal-width bins of predicted probability: attempts, predicted and observed hits (prior-weighted). */
+class CalibrationBins {
+  readonly binWeight = new Float64Array(10);
+  readonly binPredicted = new Float64Array(10);
+  readonly binObserved = new Float64Array(10);
+
+  addToBin(probability: number, weight: number, observed: number): void {
+    const bin = Math.min(9, Math.max(0, Math.floor(probability * 10)));
+    this.binWeight[bin] = (this.binWeight[bin] as number) + weight;
+    this.binPredicted[bin] = (this.binPredicted[bin] as number) + weight * probability;
+    this.binObserved[bin] = (this.binObserved[bin] as number) + observed;
+  }
+}
+
+/** Held-out predictions accumulated over folds. */
+class HeldOut extends CalibrationBins {
+  logLoss = 0;
+  brier = 0;
+  weight = 0;
+
+  add(probability: number, successes: number, attempts: number, prior: number): { logLoss: number; brier: number; weight: number } {
+    const clipped = Math.min(1 - CLIP, Math.max(CLIP, probability));
+    const failures = attempts - successes;
+    const weight = prior * attempts;
+    const logLoss = -prior * (successes * Math.log(clipped) + failures * Math.log1p(-clipped));
+    const brier = prior * (successes * (1 - probability) ** 2 + failures * probability ** 2);
+    this.logLoss += logLoss;
+    this.brier += brier;
+    this.weight += weight;
+    this.addToBin(probability, weight, prior * successes);
+    return { logLoss, brier, weight };
+  }
+
+  /** Attempt-weighted mean over bins of |observed - mean predicted| (Naeini et al. 2015). */
+  calibrationError(): number {
+    let sum = 0;
+    for (let b = 0; b < 10; b += 1) {
+      const weight = this.binWeight[b] as number;
+      if (weight > 0) sum += Math.abs((this.binObserved[b] as number) - (this.binPredicted[b] as number));
+    }
+    return this.weight > 0 ? sum / this.weight : 0;
+  }
+}
+
+function predictProbabilities(prepared: Prepared, data: CollapsedTrials, coefficients: ArrayLike<number>): Float64Array {
+  const design = buildDesign(data, prepared.terms, prepared.coding);
+  const linear = multiply(design.matrix, coefficients);
+  if (prepared.family === 'least_squares') return linear;
+  const link = linkFor(prepared.link);
+  return linear.map((value) => link.inverse(value));
+}
+
+function fitCoefficients(prepared: Prepared, data: CollapsedTrials, start: Float64Array | null): { status: string; coefficients: Float64Array | null } {
+  const design = buildDesign(data, prepared.terms, prepared.coding);
+  if (prepared.family === 'least_squares') {
+    const fit = fitLeastSquares({ design: design.matrix, response: accuracy(data), weights: leastSquaresWeights(prepared, data) });
+    return { status: fit.status, coefficients: fit.status === 'fitted' ? fit.coefficients : null };
+  }
+  const fit = runBinomial(prepared, data, design, false, start);
+  return { status: fit.status, coefficients: fit.status === 'converged' ? fit.coefficients : null };
+}
+
+export function crossValidate(
+  prepared: Prepared,
+  requestedFolds: number,
+  seed: number,
+  warnings: Issue[],
+  progress: (stage: string) => void,
+  start: Float64Array | null = null,
+): CrossValidation | null {
+  const { data } = prepared;
+  const assignment = assignFolds(data, requestedFolds, seed);
+  const file = prepared.source.file;
+  if (assignment.heldOut === 'rows') {
+    warnings.push(
+      warning('folds_by_row', `${file}:player`, 'cross-validation by player requires a `player` column with at least 2 players; folds hold out collapsed rows at random instead, so held-out scores are optimistic'),
+    );
+  }
+  const total = new HeldOut();
+  const foldResults: FoldResult[] = [];
+  const keep = new Uint8Array(data.rows);
+  for (let fold = 0; fold < assignment.folds; fold += 1) {
+    progress(`fold ${fold + 1} of ${assignment.folds}`);
+    for (let i = 0; i < data.rows; i += 1) keep[i] = assignment.fold[i] === fold ? 0 : 1;
+    const training = selectCollapsed(data, keep);
+    for (let i = 0; i < data.rows; i += 1) keep[i] = 1 - (keep[i] as number);
+    const heldOut = selectCollapsed(data, keep);
+    const players = heldOut.player === null || assignment.heldOut === 'rows' ? null : new Set(heldOut.player).size;
+    let heldAttempts = 0;
+    for (let i = 0; i < heldOut.rows; i += 1) heldAttempts += heldOut.attempts[i] as number;
+    const fitted = fitCoefficients(prepared, training, start);
+    if (fitted.coefficients === null) {
+      foldResults.push({ fold: fold + 1, status: fitted.status, players, held_out_attempts: heldAttempts, log_loss: null, brier: null });
+      continue;
+    }
+    const probabilities = predictProbabilities(prepared, heldOut, fitted.coefficients);
+    let logLoss = 0;
+    let brier = 0;
+    let weight = 0;
+    for (let i = 0; i < heldOut.rows; i += 1) {
+      const added = total.add(probabilities[i] as number, heldOut.successes[i] as number, heldOut.attempts[i] as number, heldOut.weight[i] as number);
+      logLoss += added.logLoss;
+      brier += added.brier;
+      weight += added.weight;
+    }
+    foldResults.push({
+      fold: fold + 1,
+      status: fitted.status,
+      players,
+      held_out_attempts: heldAttempts,
+      log_loss: weight > 0 ? logLoss / weight : null,
+      brier: weight > 0 ? brier / weight : null,
+    });
+  }
+  const failed = foldResults.filter((result) => result.log_loss === null);
+  if (failed.length > 0) {
+    warnings.push(
+      warning('fold_not_fitted', file, `every cross-validation fold requires a converged fit, got ${failed.map((result) => `fold ${result.fold} (${result.status})`).join(', ')}; held-out scores leave those folds out`),
+    );
+  }
+  if (!(total.weight > 0)) return null;
+  return {
+    folds: assignment.folds,
+    seed,
+    held_out: assignment.heldOut,
+    attempts: total.weight,
+    log_loss: total.logLoss / total.weight,
+    brier: total.brier / total.weight,
+    calibration_error: total.calibrationError(),
+    fold_results: foldResults,
+  };
+}
+
+/** Predicted against observed hit rate in ten equal-width bins of predicted probability (prior-weighted attempts). */
+export function calibrationTable(data: CollapsedTrials, probabilities: ArrayLike<number>): CalibrationBin[] {
+  const bins = new CalibrationBins();
+  for (let i = 0; i < data.rows; i += 1) {
+    const prior = data.weight[i] as number;
+    bins.addToBin(probabilities[i] as number, prior * (data.attempts[i] as number), prior * (data.successes[i] as number));
+  }
+  const { binWeight, binPredicted, binObserved } = bins;
+  return Array.from({ length: 10 }, (_, b) => {
+    const weight = binWeight[b] as number;
+    return {
+      lower: b / 10,
+      upper: (b + 1) / 10,
+      attempts: weight,
+      mean_predicted: weight > 0 ? (binPredicted[b] as number) / weight : null,
+      observed: weight > 0 ? (binObserved[b] as number) / weight : null,
+    };
+  });
+}

@@ -1,0 +1,562 @@
+/**
+ * Rows collapsed, batch by batch, into binomial counts at distinct covariate
+ * points (see `collapse.ts` for why collapsing is exact).
+ *
+ * Collapsing uses an open-addressing hash table on the raw covariate bits
+ * (Knuth, TAOCP vol. 3, §6.4, linear probing), grown with the number of
+ * distinct points, so it costs O(rows) time and O(groups) memory, and never an
+ * object or a string per row. Large files without weights or players go
+ * through a direct index first (a latency grid of 0.01 ms, see
+ * {@link GroupAccumulator}), which needs neither a hash nor a key check.
+ * The hash is in `covariate-hash.ts`, the direct index's shape and loops in
+ * `direct-index.ts`.
+ */
+import type { CollapsedTrials } from './collapsed-trials.js';
+import { block, finalise, mix, rehash, touchSlots } from './covariate-hash.js';
+import { GRID_LEVELS, GRID_SCALES, GRID_STEPS, SCALE_SLOTS, addGroupCounts, readCells, scaleSlot } from './direct-index.js';
+
+/**
+ * Records a {@link GroupAccumulator} reserves at most up front, for as many
+ * groups as rows are expected (the groups are at most the rows). The records
+ * are zero pages until written, so what is reserved and never used costs
+ * address space, not memory; reserving spares the copies (and fresh pages)
+ * of growing by doubling: about 20 ms of a million rows.
+ */
+const RESERVED_GROUPS = 1 << 22;
+
+/**
+ * Rows added to a {@link GroupAccumulator} at a time; group order depends on
+ * it (see there), so every caller uses this one. 8,192 rather than more so
+ * that the table slots and records a batch touches ahead of its passes (about
+ * a megabyte) are still in cache when the pass reaches them: a few per cent
+ * faster than 16,384 on a million rows.
+ */
+export const COLLAPSE_BATCH_ROWS = 1 << 13;
+
+/** Rows expected before an accumulator uses the direct index by default (below, the hash table alone is as fast). */
+export const GRID_MIN_ROWS = 1 << 16;
+
+/** Columns of rows to collapse (the first `count` entries of each are read). */
+export interface RowColumns {
+  readonly latency: Float64Array;
+  readonly scale: Float64Array;
+  /** Numeric difficulty or level codes. */
+  readonly difficulty: Float64Array | Int32Array;
+  /** Prior weights, or null for weight 1. */
+  readonly weight: Float64Array | null;
+  /** Player codes, or null when players are not kept apart. */
+  readonly player: Int32Array | null;
+  readonly successes: Float64Array;
+  readonly attempts: Float64Array;
+}
+
+/**
+ * Collapses rows, batch by batch, into groups at distinct (latency, scale,
+ * difficulty[, prior weight][, player]) points. Feed it rows with
+ * {@link addRows} (a file reader does, one batch of at most
+ * {@link COLLAPSE_BATCH_ROWS} rows at a time, so a large file is never held
+ * row by row), then {@link finish}.
+ *
+ * Per batch: the hashes first, in a loop of their own; then pass 1 over an
+ * open-addressing table of (group + 1, 32-bit hash) pairs, kept at most
+ * three-quarters full and doubled as groups appear: a row takes the group
+ * whose stored hash equals its own, and a new point appends its key to
+ * `records`; then pass 2 checks every row's key against its group's exactly
+ * and adds its counts there (one record per group holds the key and the
+ * counts side by side, so a row touches one record). The table holds the
+ * first point of each hash; the rare row whose hash collided with another
+ * point's follows that point's chain of same-hash points (a map from a group
+ * to the next) and is compared exactly there, or starts a new point at the
+ * chain's end. Before each pass a loop of independent loads touches the
+ * slots (pass 1) or records (pass 2) the batch's rows will use, so that their
+ * cache and TLB misses overlap (see `touchRecords`).
+ *
+ * The direct index: when rows carry neither weights nor players and many
+ * rows are expected, a row whose latency is a whole number k of hundredths
+ * of a millisecond (k / 100 is exactly the latency read, 0 <= k < 131,072),
+ * whose scale is one of the first eight distinct scales and whose difficulty
+ * code is below eight takes its group from a cell of a flat table indexed
+ * by (scale code, difficulty code, k), and adds its counts to the group with
+ * no hash and no key check: the cell is the key. With the direct index, the
+ * keys of all groups go to key columns that `finish` hands out as they are
+ * (no copy), and the counts of its groups to a compact array of two doubles
+ * a group (`gridCounts`); the records then hold only the groups the hash
+ * table found. A key either always qualifies or never does (the scale codes
+ * only grow, and stop at eight), so rows that do not qualify go through the
+ * hash table as above and no point is ever in both. About twice as fast as
+ * the hash table on a million rows of 300,000 points, mostly fewer cache
+ * misses.
+ *
+ * Groups come in order of first appearance, except that in a batch the new
+ * points of rows that went through the hash table come after those of rows
+ * that went through the direct index, and a point found only through a hash
+ * collision comes after the other new points of its batch.
+ *
+ * Cost: O(rows) expected time; memory a table of 4/3 to 8/3 slots of 8 bytes
+ * and a record of 5 to 7 doubles per group (reserved for the expected rows,
+ * touched only as groups appear), and 4 bytes per row of a batch; with the
+ * direct index, 5 doubles per group (3 of key, 2 of counts; records only for
+ * the groups the hash table found) and the cells in use (4 bytes each, about
+ * 1.4 MiB for latencies over 5-230 ms at 15 scale-level pairs).
+ */
+export class GroupAccumulator {
+  private readonly weightAt: number;
+  private readonly playerAt: number;
+  /** Record: latency, scale, difficulty, successes, attempts[, weight][, player]. */
+  private readonly stride: number;
+  private readonly hasWeight: boolean;
+  private readonly hasPlayer: boolean;
+  private readonly merge: boolean;
+  private capacity = 1 << 12;
+  private table: Int32Array<ArrayBufferLike> = new Int32Array(2 << 12);
+  private records: Float64Array;
+  private groupOf = new Int32Array(0);
+  /** Group -> the next group whose key has the same 32-bit hash (see the class note). */
+  private sameHash: Map<number, number> | null = null;
+  /** The direct index, cell -> group + 1 (see the class note), or null when not used. */
+  private grid: Int32Array | null = null;
+  /** The scales that have a code in the direct index, in a table of {@link SCALE_SLOTS} slots by their bits (see `scaleSlot`): the scale and its code, -1 for an empty slot. */
+  private readonly scaleSlotValues = new Float64Array(SCALE_SLOTS);
+  private readonly scaleSlotCodes = new Int32Array(SCALE_SLOTS).fill(-1);
+  private gridScaleCount = 0;
+  /**
+   * Successes and attempts of the groups the direct index counted, two doubles a group (a third of a record's
+   * size, so that the counting loop's random accesses span a third of the memory); `finishKeys` turns them into the
+   * count columns.
+   */
+  private gridCounts: Float64Array = new Float64Array(0);
+  /**
+   * With the direct index, every group's key as columns (reserved like the records), which `finish` hands out as
+   * they are; records then hold only the keys and counts of the groups the hash table found (`hashedGroups`).
+   */
+  private keys: { latency: Float64Array; scale: Float64Array; difficulty: Float64Array } | null = null;
+  private readonly hashedGroups: number[] = [];
+  /** Each row's cell of the direct index in a batch (-1 outside it). */
+  private cells = new Int32Array(0);
+  /** Rows of a batch that did not qualify for the direct index, gathered for the hash table. */
+  private rest: { latency: Float64Array; scale: Float64Array; difficulty: Float64Array; successes: Float64Array; attempts: Float64Array } | null = null;
+  groups = 0;
+  sourceRows = 0;
+  /** Sum of the entries the touch loops read (kept so that the loops are not removed as dead code). */
+  private touched = 0;
+
+  /**
+   * `weight` / `player`: whether rows carry prior weights and player codes (part of the key); `merge`: false keeps every row as its own group;
+   * `expectedRows`: about how many rows will come, if known (see {@link RESERVED_GROUPS});
+   * `grid`: whether to use the direct index of the class note (default: when rows are merged, carry neither weights nor players,
+   * and at least {@link GRID_MIN_ROWS} are expected; it is never used with weights or players).
+   */
+  constructor(layout: { readonly weight: boolean; readonly player: boolean; readonly merge: boolean; readonly expectedRows?: number; readonly grid?: boolean }) {
+    this.hasWeight = layout.weight;
+    this.hasPlayer = layout.player;
+    this.merge = layout.merge;
+    this.stride = 5 + (layout.weight ? 1 : 0) + (layout.player ? 1 : 0);
+    this.weightAt = 5;
+    this.playerAt = layout.weight ? 6 : 5;
+    const reserved = Math.min(RESERVED_GROUPS, Math.max(1 << 12, Math.ceil(layout.expectedRows ?? 0)));
+    this.records = new Float64Array(this.stride * reserved);
+    const plain = layout.merge && !layout.weight && !layout.player;
+    if (plain && (layout.grid ?? (layout.expectedRows ?? 0) >= GRID_MIN_ROWS)) {
+      this.grid = new Int32Array(GRID_SCALES * GRID_LEVELS * GRID_STEPS);
+      this.gridCounts = new Float64Array(2 * reserved);
+      this.keys = { latency: new Float64Array(reserved), scale: new Float64Array(reserved), difficulty: new Float64Array(reserved) };
+    }
+  }
+
+  /**
+   * Add the first `count` rows of `columns`, in batches of
+   * {@link COLLAPSE_BATCH_ROWS} counted from the first row (a reader that
+   * hands over full batches gets the same batches, hence the same group order).
+   */
+  addRows(columns: RowColumns, count: number): void {
+    if (count <= COLLAPSE_BATCH_ROWS) return this.addBatch(columns, count);
+    for (let start = 0; start < count; start += COLLAPSE_BATCH_ROWS) {
+      const end = Math.min(count, start + COLLAPSE_BATCH_ROWS);
+      this.addBatch(
+        {
+          latency: columns.latency.subarray(start, end),
+          scale: columns.scale.subarray(start, end),
+          difficulty: columns.difficulty.subarray(start, end),
+          weight: columns.weight === null ? null : columns.weight.subarray(start, end),
+          player: columns.player === null ? null : columns.player.subarray(start, end),
+          successes: columns.successes.subarray(start, end),
+          attempts: columns.attempts.subarray(start, end),
+        },
+        end - start,
+      );
+    }
+  }
+
+  /**
+   * One batch: the hashes, pass 1 and pass 2 of the class note, each loop a
+   * method of its own (a loop that runs once per batch is optimised alone,
+   * instead of the whole batch deoptimising where the next loop starts).
+   */
+  private addBatch(columns: RowColumns, count: number): void {
+    this.sourceRows += count;
+    if (!this.merge) {
+      this.appendAll(columns, count);
+      return;
+    }
+    if (this.groupOf.length < count) {
+      this.groupOf = new Int32Array(Math.max(count, COLLAPSE_BATCH_ROWS));
+      if (this.grid !== null) this.cells = new Int32Array(this.groupOf.length);
+    }
+    let hashed = columns;
+    let rest = count;
+    if (this.grid !== null) {
+      rest = this.gridCells(columns, count);
+      this.addGridCounts(columns, count, this.grid);
+      if (rest === 0) return;
+      if (rest < count) hashed = this.gatherRest(columns, count, rest);
+    }
+    this.hashRows(hashed, rest);
+    this.assignGroups(hashed, rest);
+    this.addCounts(hashed, rest);
+  }
+
+  /** Each row's cell of the direct index into `cells`, or -1 for a row that does not qualify; returns how many do not. */
+  private gridCells(columns: RowColumns, count: number): number {
+    const { latency, scale, difficulty } = columns;
+    const cells = this.cells;
+    const slotValues = this.scaleSlotValues;
+    const slotCodes = this.scaleSlotCodes;
+    let outside = 0;
+    for (let i = 0; i < count; i += 1) {
+      const value = latency[i] as number;
+      const steps = Math.round(value * 100);
+      const level = difficulty[i] as number;
+      const rowScale = scale[i] as number;
+      const slot = scaleSlot(rowScale);
+      let code = slotCodes[slot] as number;
+      if (code < 0 || slotValues[slot] !== rowScale) code = this.newScaleCode(rowScale, slot);
+      if (steps / 100 === value && steps >= 0 && steps < GRID_STEPS && code >= 0 && level >= 0 && level < GRID_LEVELS && (level | 0) === level) {
+        cells[i] = ((code * GRID_LEVELS + level) * GRID_STEPS + steps) | 0;
+      } else {
+        cells[i] = -1;
+        outside += 1;
+      }
+    }
+    return outside;
+  }
+
+  /**
+   * The code of a scale whose slot does not hold it: a new code in an empty slot while codes remain, else -1 (the
+   * scale never qualifies: a slot, once taken, keeps its scale, and codes are never freed, so the answer for a
+   * scale never changes).
+   */
+  private newScaleCode(rowScale: number, slot: number): number {
+    if ((this.scaleSlotCodes[slot] as number) >= 0 || this.gridScaleCount === GRID_SCALES || Number.isNaN(rowScale)) return -1;
+    const code = this.gridScaleCount;
+    this.scaleSlotCodes[slot] = code;
+    this.scaleSlotValues[slot] = rowScale;
+    this.gridScaleCount = code + 1;
+    return code;
+  }
+
+  /**
+   * The direct index's pass, in three loops: each qualifying row's cell read into `groupOf` (independent loads, so
+   * their cache misses overlap), then a group for every row whose cell was empty (about a third of the rows of a large
+   * file start a group, a branch the processor cannot predict, kept out of the loops that miss the cache), then the
+   * counts.
+   */
+  private addGridCounts(columns: RowColumns, count: number, grid: Int32Array): void {
+    const { latency, scale, difficulty, successes, attempts } = columns;
+    const groupOf = this.groupOf;
+    const cells = this.cells;
+    readCells(grid, cells, groupOf, count);
+    // Room for every row of the batch as a new group, so that the loop writes new keys itself.
+    const keys = this.keyRoom(this.groups + count);
+    const { latency: keyLatency, scale: keyScale, difficulty: keyDifficulty } = keys;
+    let groups = this.groups;
+    for (let i = 0; i < count; i += 1) {
+      if ((groupOf[i] as number) >= 0) continue;
+      const cell = cells[i] as number;
+      if (cell < 0) continue;
+      // A cell read empty may have been filled by an earlier row of this batch.
+      let group = (grid[cell] as number) - 1;
+      if (group < 0) {
+        group = groups;
+        groups += 1;
+        grid[cell] = groups;
+        keyLatency[group] = latency[i] as number;
+        keyScale[group] = scale[i] as number;
+        keyDifficulty[group] = difficulty[i] as number;
+      }
+      groupOf[i] = group;
+    }
+    this.groups = groups;
+    this.gridCounts = withRoom(this.gridCounts, 2 * groups);
+    addGroupCounts(this.gridCounts, groupOf, successes, attempts, count);
+  }
+
+  /** The key columns, with room for at least `groups` groups (grown by doubling, keeping those held). */
+  private keyRoom(groups: number): { latency: Float64Array; scale: Float64Array; difficulty: Float64Array } {
+    const keys = this.keys as { latency: Float64Array; scale: Float64Array; difficulty: Float64Array };
+    if (groups <= keys.latency.length) return keys;
+    this.keys = { latency: withRoom(keys.latency, groups), scale: withRoom(keys.scale, groups), difficulty: withRoom(keys.difficulty, groups) };
+    return this.keys;
+  }
+
+  /** The rows `gridCells` marked -1 (still -1 in `groupOf`), in order, as columns of their own (weights and players are never on this path). */
+  private gatherRest(columns: RowColumns, count: number, rest: number): RowColumns {
+    if (this.rest === null || this.rest.latency.length < rest) {
+      const size = Math.max(rest, COLLAPSE_BATCH_ROWS);
+      this.rest = { latency: new Float64Array(size), scale: new Float64Array(size), difficulty: new Float64Array(size), successes: new Float64Array(size), attempts: new Float64Array(size) };
+    }
+    const gathered = this.rest;
+    const groupOf = this.groupOf;
+    let r = 0;
+    for (let i = 0; i < count; i += 1) {
+      if ((groupOf[i] as number) >= 0) continue;
+      gathered.latency[r] = columns.latency[i] as number;
+      gathered.scale[r] = columns.scale[i] as number;
+      gathered.difficulty[r] = columns.difficulty[i] as number;
+      gathered.successes[r] = columns.successes[i] as number;
+      gathered.attempts[r] = columns.attempts[i] as number;
+      r += 1;
+    }
+    return { ...gathered, weight: null, player: null };
+  }
+
+  /** Every row its own group (rows not merged). */
+  private appendAll(columns: RowColumns, count: number): void {
+    const stride = this.stride;
+    for (let i = 0; i < count; i += 1) {
+      const base = this.append(columns, i) * stride;
+      this.records[base + 3] = columns.successes[i] as number;
+      this.records[base + 4] = columns.attempts[i] as number;
+    }
+  }
+
+  /** Each row's 32-bit key hash into `groupOf`. */
+  private hashRows(columns: RowColumns, count: number): void {
+    const { latency, scale, difficulty } = columns;
+    const weights = this.hasWeight ? columns.weight : null;
+    const players = this.hasPlayer ? columns.player : null;
+    const groupOf = this.groupOf;
+    for (let i = 0; i < count; i += 1) {
+      let hash = 0x811c9dc5;
+      hash = mix(hash, latency[i] as number);
+      hash = mix(hash, scale[i] as number);
+      hash = mix(hash, difficulty[i] as number);
+      if (weights !== null) hash = mix(hash, weights[i] as number);
+      if (players !== null) hash = block(hash, players[i] as number);
+      groupOf[i] = finalise(hash) | 0;
+    }
+  }
+
+  /** Pass 1: a group for every row, by its hash (`groupOf` goes from hashes to groups). */
+  private assignGroups(columns: RowColumns, count: number): void {
+    const groupOf = this.groupOf;
+    let table = this.table;
+    let capacity = this.capacity;
+    this.touched += touchSlots(table, groupOf, count, capacity - 1);
+    for (let i = 0; i < count; i += 1) {
+      const full = groupOf[i] as number;
+      let slot = full & (capacity - 1);
+      for (;;) {
+        const stored = table[2 * slot] as number;
+        if (stored === 0) {
+          if (4 * (this.groups + 1) > 3 * capacity) {
+            table = rehash(table, capacity);
+            capacity *= 2;
+            this.table = table;
+            this.capacity = capacity;
+            slot = full & (capacity - 1);
+            while (table[2 * slot] !== 0) slot = (slot + 1) & (capacity - 1);
+          }
+          const group = this.append(columns, i);
+          table[2 * slot] = group + 1;
+          table[2 * slot + 1] = full;
+          groupOf[i] = group;
+          break;
+        }
+        if (table[2 * slot + 1] === full) {
+          groupOf[i] = stored - 1;
+          break;
+        }
+        slot = (slot + 1) & (capacity - 1);
+      }
+    }
+  }
+
+  /** Pass 2: the exact key, then the counts. */
+  private addCounts(columns: RowColumns, count: number): void {
+    const { successes, attempts } = columns;
+    const stride = this.stride;
+    const groupOf = this.groupOf;
+    this.touched += touchRecords(this.records, groupOf, count, stride);
+    for (let i = 0; i < count; i += 1) {
+      const group = groupOf[i] as number;
+      const base = (this.holdsKey(group, columns, i) ? group : this.collidedGroup(columns, i, group)) * stride;
+      const target = this.records;
+      target[base + 3] = (target[base + 3] as number) + (successes[i] as number);
+      target[base + 4] = (target[base + 4] as number) + (attempts[i] as number);
+    }
+  }
+
+  /** Whether `group`'s record holds row `i`'s exact key. */
+  private holdsKey(group: number, columns: RowColumns, i: number): boolean {
+    const records = this.records;
+    const base = group * this.stride;
+    return (
+      records[base] === columns.latency[i] &&
+      records[base + 1] === columns.scale[i] &&
+      records[base + 2] === columns.difficulty[i] &&
+      (!this.hasWeight || records[base + this.weightAt] === (columns.weight?.[i] ?? 1)) &&
+      (!this.hasPlayer || records[base + this.playerAt] === (columns.player?.[i] ?? 0))
+    );
+  }
+
+  /**
+   * The group of row `i`, whose hash matched that of `first` but not its key:
+   * the point with its key along `first`'s chain of same-hash points, or a
+   * new point at the chain's end.
+   */
+  private collidedGroup(columns: RowColumns, i: number, first: number): number {
+    const chains = (this.sameHash ??= new Map());
+    for (let group = first; ; ) {
+      const next = chains.get(group);
+      if (next === undefined) {
+        const created = this.append(columns, i);
+        chains.set(group, created);
+        return created;
+      }
+      if (this.holdsKey(next, columns, i)) return next;
+      group = next;
+    }
+  }
+
+  /**
+   * Add collapsed groups as rows with their counts (e.g. groups whose keys
+   * changed, see {@link mergeGroups}); the source rows they stood for are
+   * counted, not the groups.
+   */
+  addGroups(data: CollapsedTrials): void {
+    const before = this.sourceRows;
+    this.addRows(data, data.rows);
+    this.sourceRows = before + data.sourceRows;
+  }
+
+  /** A new group with row `i`'s key and no counts yet. */
+  private append(columns: RowColumns, i: number): number {
+    const group = this.groups;
+    const stride = this.stride;
+    const base = group * stride;
+    this.records = withRoom(this.records, base + stride);
+    const records = this.records;
+    records[base] = columns.latency[i] as number;
+    records[base + 1] = columns.scale[i] as number;
+    records[base + 2] = columns.difficulty[i] as number;
+    if (this.hasWeight) records[base + this.weightAt] = columns.weight?.[i] ?? 1;
+    if (this.hasPlayer) records[base + this.playerAt] = columns.player?.[i] ?? 0;
+    if (this.keys !== null) {
+      // With the direct index, the key columns hold every group (see `keys`).
+      const keys = this.keyRoom(group + 1);
+      keys.latency[group] = records[base] as number;
+      keys.scale[group] = records[base + 1] as number;
+      keys.difficulty[group] = records[base + 2] as number;
+      this.hashedGroups.push(group);
+    }
+    this.groups = group + 1;
+    return group;
+  }
+
+  /** The groups as columns, in order; `difficultyValue` maps a stored difficulty (a level code) to the value to report. */
+  finish(difficultyValue?: (stored: number) => number): CollapsedTrials {
+    const collapsed = this.keys === null ? this.finishRecords(difficultyValue) : this.finishKeys(this.keys, difficultyValue);
+    this.records = new Float64Array(0);
+    this.table = new Int32Array(0);
+    this.groupOf = new Int32Array(0);
+    this.grid = null;
+    this.cells = new Int32Array(0);
+    this.gridCounts = new Float64Array(0);
+    this.keys = null;
+    this.rest = null;
+    return collapsed;
+  }
+
+  /** `finish` with the direct index: the key columns as they are, the counts from `gridCounts` and, for the groups the hash table found, the records. */
+  private finishKeys(keys: { latency: Float64Array; scale: Float64Array; difficulty: Float64Array }, difficultyValue?: (stored: number) => number): CollapsedTrials {
+    const groups = this.groups;
+    const gridCounts = this.gridCounts;
+    const successes = new Float64Array(groups);
+    const attempts = new Float64Array(groups);
+    const counted = Math.min(groups, gridCounts.length >> 1);
+    for (let g = 0; g < counted; g += 1) {
+      successes[g] = gridCounts[2 * g] as number;
+      attempts[g] = gridCounts[2 * g + 1] as number;
+    }
+    for (const g of this.hashedGroups) {
+      successes[g] = (successes[g] as number) + (this.records[g * this.stride + 3] as number);
+      attempts[g] = (attempts[g] as number) + (this.records[g * this.stride + 4] as number);
+    }
+    const difficulty = keys.difficulty.subarray(0, groups);
+    if (difficultyValue !== undefined) for (let g = 0; g < groups; g += 1) difficulty[g] = difficultyValue(difficulty[g] as number);
+    return {
+      rows: groups,
+      latency: keys.latency.subarray(0, groups),
+      scale: keys.scale.subarray(0, groups),
+      difficulty,
+      player: null,
+      successes,
+      attempts,
+      weight: new Float64Array(groups).fill(1),
+      sourceRows: this.sourceRows,
+    };
+  }
+
+  /** `finish` from the records. */
+  private finishRecords(difficultyValue?: (stored: number) => number): CollapsedTrials {
+    const groups = this.groups;
+    const stride = this.stride;
+    const records = this.records;
+    const column = (offset: number): Float64Array => {
+      const target = new Float64Array(groups);
+      for (let g = 0; g < groups; g += 1) target[g] = records[g * stride + offset] as number;
+      return target;
+    };
+    const difficulty = column(2);
+    if (difficultyValue !== undefined) for (let g = 0; g < groups; g += 1) difficulty[g] = difficultyValue(difficulty[g] as number);
+    let player: Int32Array | null = null;
+    if (this.hasPlayer) {
+      player = new Int32Array(groups);
+      for (let g = 0; g < groups; g += 1) player[g] = records[g * stride + this.playerAt] as number;
+    }
+    const collapsed: CollapsedTrials = {
+      rows: groups,
+      latency: column(0),
+      scale: column(1),
+      difficulty,
+      player,
+      successes: column(3),
+      attempts: column(4),
+      weight: this.hasWeight ? column(this.weightAt) : new Float64Array(groups).fill(1),
+      sourceRows: this.sourceRows,
+    };
+    return collapsed;
+  }
+}
+
+/**
+ * Read each row's record once, in a loop of independent loads and nothing
+ * else, so that the processor has many of these cache and TLB misses in
+ * flight at a time; pass 2 then finds the records in cache (a software
+ * prefetch, which JavaScript lacks). Returns a sum of what it read.
+ */
+function touchRecords(records: Float64Array, groupOf: Int32Array, count: number, stride: number): number {
+  let sum = 0;
+  for (let i = 0; i < count; i += 1) sum += records[(groupOf[i] as number) * stride] as number;
+  return sum;
+}
+
+/** `array` itself when it holds at least `length` entries, else a copy grown by doubling (at least 8,192 entries). */
+function withRoom(array: Float64Array, length: number): Float64Array {
+  if (length <= array.length) return array;
+  let size = Math.max(1 << 13, array.length * 2);
+  while (size < length) size *= 2;
+  const next = new Float64Array(size);
+  next.set(array);
+  return next;
+}
