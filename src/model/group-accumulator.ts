@@ -12,8 +12,9 @@
  * `direct-index.ts`.
  */
 import type { CollapsedTrials } from './collapsed-trials.js';
+import { type RecordLayout, columnsFromKeys, columnsFromRecords } from './group-columns.js';
 import { block, finalise, mix, rehash, touchSlots } from './covariate-hash.js';
-import { GRID_LEVELS, GRID_SCALES, GRID_STEPS, SCALE_SLOTS, addGroupCounts, readCells, scaleSlot } from './direct-index.js';
+import { GRID_LEVELS, GRID_SCALES, GRID_STEPS, type OffGridRows, ScaleCodes, addGroupCounts, gatherOffGrid, gridCells, offGridColumns, readCells } from './direct-index.js';
 
 /**
  * Records a {@link GroupAccumulator} reserves at most up front, for as many
@@ -71,21 +72,10 @@ export interface RowColumns {
  * slots (pass 1) or records (pass 2) the batch's rows will use, so that their
  * cache and TLB misses overlap (see `touchRecords`).
  *
- * The direct index: when rows carry neither weights nor players and many
- * rows are expected, a row whose latency is a whole number k of hundredths
- * of a millisecond (k / 100 is exactly the latency read, 0 <= k < 131,072),
- * whose scale is one of the first eight distinct scales and whose difficulty
- * code is below eight takes its group from a cell of a flat table indexed
- * by (scale code, difficulty code, k), and adds its counts to the group with
- * no hash and no key check: the cell is the key. With the direct index, the
- * keys of all groups go to key columns that `finish` hands out as they are
- * (no copy), and the counts of its groups to a compact array of two doubles
- * a group (`gridCounts`); the records then hold only the groups the hash
- * table found. A key either always qualifies or never does (the scale codes
- * only grow, and stop at eight), so rows that do not qualify go through the
- * hash table as above and no point is ever in both. About twice as fast as
- * the hash table on a million rows of 300,000 points, mostly fewer cache
- * misses.
+ * The direct index (when rows carry neither weights nor players and many
+ * rows are expected; `direct-index.ts` says when a row qualifies and why it
+ * is exact) gives most rows their group from a flat table with no hash and
+ * no key check; rows that do not qualify go through the hash table as above.
  *
  * Groups come in order of first appearance, except that in a batch the new
  * points of rows that went through the hash table come after those of rows
@@ -115,13 +105,11 @@ export class GroupAccumulator {
   private sameHash: Map<number, number> | null = null;
   /** The direct index, cell -> group + 1 (see the class note), or null when not used. */
   private grid: Int32Array | null = null;
-  /** The scales that have a code in the direct index, in a table of {@link SCALE_SLOTS} slots by their bits (see `scaleSlot`): the scale and its code, -1 for an empty slot. */
-  private readonly scaleSlotValues = new Float64Array(SCALE_SLOTS);
-  private readonly scaleSlotCodes = new Int32Array(SCALE_SLOTS).fill(-1);
-  private gridScaleCount = 0;
+  /** The scales that have a code in the direct index (see `ScaleCodes`). */
+  private readonly scaleCodes = new ScaleCodes();
   /**
    * Successes and attempts of the groups the direct index counted, two doubles a group (a third of a record's
-   * size, so that the counting loop's random accesses span a third of the memory); `finishKeys` turns them into the
+   * size, so that the counting loop's random accesses span a third of the memory); `columnsFromKeys` turns them into the
    * count columns.
    */
   private gridCounts: Float64Array = new Float64Array(0);
@@ -134,7 +122,7 @@ export class GroupAccumulator {
   /** Each row's cell of the direct index in a batch (-1 outside it). */
   private cells = new Int32Array(0);
   /** Rows of a batch that did not qualify for the direct index, gathered for the hash table. */
-  private rest: { latency: Float64Array; scale: Float64Array; difficulty: Float64Array; successes: Float64Array; attempts: Float64Array } | null = null;
+  private rest: OffGridRows | null = null;
   groups = 0;
   sourceRows = 0;
   /** Sum of the entries the touch loops read (kept so that the loops are not removed as dead code). */
@@ -205,53 +193,17 @@ export class GroupAccumulator {
     let hashed = columns;
     let rest = count;
     if (this.grid !== null) {
-      rest = this.gridCells(columns, count);
+      rest = gridCells(columns, count, this.cells, this.scaleCodes);
       this.addGridCounts(columns, count, this.grid);
       if (rest === 0) return;
-      if (rest < count) hashed = this.gatherRest(columns, count, rest);
+      if (rest < count) {
+        if (this.rest === null || this.rest.latency.length < rest) this.rest = offGridColumns(Math.max(rest, COLLAPSE_BATCH_ROWS));
+        hashed = { ...gatherOffGrid(columns, count, this.groupOf, this.rest), weight: null, player: null };
+      }
     }
     this.hashRows(hashed, rest);
     this.assignGroups(hashed, rest);
     this.addCounts(hashed, rest);
-  }
-
-  /** Each row's cell of the direct index into `cells`, or -1 for a row that does not qualify; returns how many do not. */
-  private gridCells(columns: RowColumns, count: number): number {
-    const { latency, scale, difficulty } = columns;
-    const cells = this.cells;
-    const slotValues = this.scaleSlotValues;
-    const slotCodes = this.scaleSlotCodes;
-    let outside = 0;
-    for (let i = 0; i < count; i += 1) {
-      const value = latency[i] as number;
-      const steps = Math.round(value * 100);
-      const level = difficulty[i] as number;
-      const rowScale = scale[i] as number;
-      const slot = scaleSlot(rowScale);
-      let code = slotCodes[slot] as number;
-      if (code < 0 || slotValues[slot] !== rowScale) code = this.newScaleCode(rowScale, slot);
-      if (steps / 100 === value && steps >= 0 && steps < GRID_STEPS && code >= 0 && level >= 0 && level < GRID_LEVELS && (level | 0) === level) {
-        cells[i] = ((code * GRID_LEVELS + level) * GRID_STEPS + steps) | 0;
-      } else {
-        cells[i] = -1;
-        outside += 1;
-      }
-    }
-    return outside;
-  }
-
-  /**
-   * The code of a scale whose slot does not hold it: a new code in an empty slot while codes remain, else -1 (the
-   * scale never qualifies: a slot, once taken, keeps its scale, and codes are never freed, so the answer for a
-   * scale never changes).
-   */
-  private newScaleCode(rowScale: number, slot: number): number {
-    if ((this.scaleSlotCodes[slot] as number) >= 0 || this.gridScaleCount === GRID_SCALES || Number.isNaN(rowScale)) return -1;
-    const code = this.gridScaleCount;
-    this.scaleSlotCodes[slot] = code;
-    this.scaleSlotValues[slot] = rowScale;
-    this.gridScaleCount = code + 1;
-    return code;
   }
 
   /**
@@ -296,27 +248,6 @@ export class GroupAccumulator {
     if (groups <= keys.latency.length) return keys;
     this.keys = { latency: withRoom(keys.latency, groups), scale: withRoom(keys.scale, groups), difficulty: withRoom(keys.difficulty, groups) };
     return this.keys;
-  }
-
-  /** The rows `gridCells` marked -1 (still -1 in `groupOf`), in order, as columns of their own (weights and players are never on this path). */
-  private gatherRest(columns: RowColumns, count: number, rest: number): RowColumns {
-    if (this.rest === null || this.rest.latency.length < rest) {
-      const size = Math.max(rest, COLLAPSE_BATCH_ROWS);
-      this.rest = { latency: new Float64Array(size), scale: new Float64Array(size), difficulty: new Float64Array(size), successes: new Float64Array(size), attempts: new Float64Array(size) };
-    }
-    const gathered = this.rest;
-    const groupOf = this.groupOf;
-    let r = 0;
-    for (let i = 0; i < count; i += 1) {
-      if ((groupOf[i] as number) >= 0) continue;
-      gathered.latency[r] = columns.latency[i] as number;
-      gathered.scale[r] = columns.scale[i] as number;
-      gathered.difficulty[r] = columns.difficulty[i] as number;
-      gathered.successes[r] = columns.successes[i] as number;
-      gathered.attempts[r] = columns.attempts[i] as number;
-      r += 1;
-    }
-    return { ...gathered, weight: null, player: null };
   }
 
   /** Every row its own group (rows not merged). */
@@ -465,7 +396,11 @@ export class GroupAccumulator {
 
   /** The groups as columns, in order; `difficultyValue` maps a stored difficulty (a level code) to the value to report. */
   finish(difficultyValue?: (stored: number) => number): CollapsedTrials {
-    const collapsed = this.keys === null ? this.finishRecords(difficultyValue) : this.finishKeys(this.keys, difficultyValue);
+    const layout: RecordLayout = { stride: this.stride, weightAt: this.hasWeight ? this.weightAt : -1, playerAt: this.hasPlayer ? this.playerAt : -1 };
+    const collapsed =
+      this.keys === null
+        ? columnsFromRecords(this.records, this.groups, layout, this.sourceRows, difficultyValue)
+        : columnsFromKeys(this.keys, this.groups, this.gridCounts, this.hashedGroups, this.records, this.stride, this.sourceRows, difficultyValue);
     this.records = new Float64Array(0);
     this.table = new Int32Array(0);
     this.groupOf = new Int32Array(0);
@@ -474,67 +409,6 @@ export class GroupAccumulator {
     this.gridCounts = new Float64Array(0);
     this.keys = null;
     this.rest = null;
-    return collapsed;
-  }
-
-  /** `finish` with the direct index: the key columns as they are, the counts from `gridCounts` and, for the groups the hash table found, the records. */
-  private finishKeys(keys: { latency: Float64Array; scale: Float64Array; difficulty: Float64Array }, difficultyValue?: (stored: number) => number): CollapsedTrials {
-    const groups = this.groups;
-    const gridCounts = this.gridCounts;
-    const successes = new Float64Array(groups);
-    const attempts = new Float64Array(groups);
-    const counted = Math.min(groups, gridCounts.length >> 1);
-    for (let g = 0; g < counted; g += 1) {
-      successes[g] = gridCounts[2 * g] as number;
-      attempts[g] = gridCounts[2 * g + 1] as number;
-    }
-    for (const g of this.hashedGroups) {
-      successes[g] = (successes[g] as number) + (this.records[g * this.stride + 3] as number);
-      attempts[g] = (attempts[g] as number) + (this.records[g * this.stride + 4] as number);
-    }
-    const difficulty = keys.difficulty.subarray(0, groups);
-    if (difficultyValue !== undefined) for (let g = 0; g < groups; g += 1) difficulty[g] = difficultyValue(difficulty[g] as number);
-    return {
-      rows: groups,
-      latency: keys.latency.subarray(0, groups),
-      scale: keys.scale.subarray(0, groups),
-      difficulty,
-      player: null,
-      successes,
-      attempts,
-      weight: new Float64Array(groups).fill(1),
-      sourceRows: this.sourceRows,
-    };
-  }
-
-  /** `finish` from the records. */
-  private finishRecords(difficultyValue?: (stored: number) => number): CollapsedTrials {
-    const groups = this.groups;
-    const stride = this.stride;
-    const records = this.records;
-    const column = (offset: number): Float64Array => {
-      const target = new Float64Array(groups);
-      for (let g = 0; g < groups; g += 1) target[g] = records[g * stride + offset] as number;
-      return target;
-    };
-    const difficulty = column(2);
-    if (difficultyValue !== undefined) for (let g = 0; g < groups; g += 1) difficulty[g] = difficultyValue(difficulty[g] as number);
-    let player: Int32Array | null = null;
-    if (this.hasPlayer) {
-      player = new Int32Array(groups);
-      for (let g = 0; g < groups; g += 1) player[g] = records[g * stride + this.playerAt] as number;
-    }
-    const collapsed: CollapsedTrials = {
-      rows: groups,
-      latency: column(0),
-      scale: column(1),
-      difficulty,
-      player,
-      successes: column(3),
-      attempts: column(4),
-      weight: this.hasWeight ? column(this.weightAt) : new Float64Array(groups).fill(1),
-      sourceRows: this.sourceRows,
-    };
     return collapsed;
   }
 }

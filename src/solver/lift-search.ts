@@ -34,7 +34,7 @@ import { type PlayerRanks, type StepBox, fillSteps } from './step-greedy.js';
 import { type LevelBox, waterLevel } from './water-level.js';
 import { highestLinked, lowestLinked } from './level-bounds.js';
 import type { SolveWorkspace } from './workspace.js';
-import type { ScaleProblem } from './solve-scales.js';
+import type { ScaleProblem } from './scale-problem.js';
 
 export interface LiftTrial {
   /** `infeasible`: the floor of the box costs more than the budget, or someone's top is below the lift; `not_lift`: nobody ends high enough for this lift to be the lift. */

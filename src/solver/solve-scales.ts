@@ -35,7 +35,6 @@
  */
 import { type Result, error, fail, ok } from '../issues.js';
 import type { Link } from '../model/links.js';
-import type { CompiledRules } from './rules.js';
 import { type CurveSet, expectedAtTerm } from './player-curve.js';
 import { type ScaleForm, playerCeilings, termOf } from './player-ceilings.js';
 import { type ScaleGrid, assistanceUnits, budgetUnits, gridValue, scaleGrid, unitsToAssistance } from './scale-grid.js';
@@ -44,6 +43,9 @@ import { highestLinked, lowestLinked } from './level-bounds.js';
 import { type LevelBox, waterLevel } from './water-level.js';
 import { labelPlayers } from './bindings.js';
 import { EXCESS_OVER_ONE, SolveWorkspace, orderFreeSum } from './workspace.js';
+import type { ScaleProblem } from './scale-problem.js';
+
+export type { ScaleProblem } from './scale-problem.js';
 
 export { BINDINGS, type Binding, INELIGIBLE, AT_TARGET_TOLERANCE } from './bindings.js';
 export { type ScaleForm, scaleOf, searchLimit, softCapped, termOf } from './player-ceilings.js';
@@ -65,18 +67,6 @@ export interface ScaleSolution {
   readonly lift: number;
   /** The quantisation step, or null. */
   readonly step: number | null;
-}
-
-export interface ScaleProblem {
-  readonly curves: CurveSet;
-  /** E_i(1) per player (`expectedBefore`). */
-  readonly before: Float64Array;
-  readonly target: number;
-  readonly link: Link;
-  readonly form: ScaleForm;
-  readonly rules: CompiledRules;
-  /** A player's id by slot, for ties between identical curves; null: slot order decides. */
-  readonly idOf: ((slot: number) => string) | null;
 }
 
 /** E_i at scale 1 for every player: the performance before compensation. */
