@@ -10,7 +10,7 @@ import { type Result, error, fail, ok, show } from '../issues.js';
 import type { RulesFile } from '../formats/rules-types.js';
 import type { CompiledModel } from '../model/compile.js';
 import { compileRules } from '../solver/rules.js';
-import { type AuditEntry, auditLobbies, worstGap } from './audit-lobbies.js';
+import { type AuditEntry, auditLobbies } from './audit-lobbies.js';
 import { SWEEP_FORMAT, type SweepReport } from './audit-types.js';
 import { SWEEPABLE_RULES, type SweepableRule } from './sweepable-rules.js';
 
@@ -69,13 +69,10 @@ export function sweepRule(entries: readonly AuditEntry[], model: CompiledModel, 
     if (!compiled.ok) {
       return { value, valid: false, issues: compiled.issues.map((issue) => issue.message), lobbies: entries.length, within_rules: 0, share_within_rules: null, worst_gap: null, failing_rules: {}, most_binding: null, excluded_players: 0 };
     }
-    const report = auditLobbies(entries, model, compiled.value);
+    const summary = auditLobbies(entries, model, compiled.value).summary;
+    // The worst gap of the value: the largest of the lobbies' worst gaps the summary ranked.
     let worst: number | null = null;
-    for (const lobby of report.lobbies) {
-      const gap = worstGap(lobby);
-      if (gap !== null) worst = worst === null ? gap : Math.max(worst, gap);
-    }
-    const summary = report.summary;
+    for (const { worst_gap: gap } of summary.worst_first) if (gap !== null) worst = worst === null ? gap : Math.max(worst, gap);
     const failing = Object.fromEntries(Object.entries(summary.failing_rules).filter(([, count]) => count > 0));
     return {
       value,

@@ -66,7 +66,8 @@ export async function checkTelemetry(
 /** The paths for the refit commands: the model's training file is looked for beside the model, by the name its provenance gives. */
 async function commandInputs(telemetry: string, modelPath: string, model: CompiledModel): Promise<RefitCommandInputs> {
   const trainingPath = join(dirname(modelPath), basename(model.source.provenance.file));
-  const [trainingHeader, liveHeader] = await Promise.all([headerLine(trainingPath), headerLine(telemetry)]);
+  // A Parquet file or glob has no header line to compare: the combined refit is offered for CSV alone.
+  const [trainingHeader, liveHeader] = await Promise.all([headerLine(trainingPath), needsEngine(telemetry) ? Promise.resolve(null) : headerLine(telemetry)]);
   return {
     telemetry,
     model: modelPath,

@@ -4,8 +4,6 @@ import { compactTable } from './table.js';
 import { fixed } from './output.js';
 import { pValueText } from '../stats/p-value-text.js';
 
-const pValue = pValueText;
-
 function number(value: number | null, digits = 4): string {
   if (value === null) return '-';
   const magnitude = Math.abs(value);
@@ -33,7 +31,7 @@ export function renderFit(report: FitReport): string {
   );
   for (const row of report.coefficients) {
     const used = row.robust ?? row;
-    table.push([row.name, number(row.estimate), number(used.std_error), fixed(used.z, 2), pValue(used.p_value), `${number(used.ci_lower)} .. ${number(used.ci_upper)}`, ...(robust ? [number(row.std_error)] : [])]);
+    table.push([row.name, number(row.estimate), number(used.std_error), fixed(used.z, 2), pValueText(used.p_value), `${number(used.ci_lower)} .. ${number(used.ci_upper)}`, ...(robust ? [number(row.std_error)] : [])]);
   }
   lines.push(table.toString());
   lines.push(
@@ -53,7 +51,7 @@ export function renderFit(report: FitReport): string {
   if (report.likelihood_ratio_tests.length > 0) {
     lines.push(
       `likelihood-ratio tests: ${report.likelihood_ratio_tests
-        .map((test) => (test.status === 'tested' ? `${test.factor} chi² ${fixed(test.statistic, 2)} on ${test.df} df, p ${pValue(test.p_value)}` : `${test.factor} not tested (${test.reason})`))
+        .map((test) => (test.status === 'tested' ? `${test.factor} chi² ${fixed(test.statistic, 2)} on ${test.df} df, p ${pValueText(test.p_value)}` : `${test.factor} not tested (${test.reason})`))
         .join('; ')}`,
     );
   }

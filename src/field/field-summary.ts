@@ -32,7 +32,8 @@ function plural(value: number, noun: string): string {
   return `${count(value)} ${noun}${value === 1 ? '' : 's'}`;
 }
 
-const VERDICT_WORDS: Record<CompensationCheck['verdict'], string> = {
+/** Each verdict in words, as the summary and the report's section say it. */
+export const VERDICT_WORDS: Record<CompensationCheck['verdict'], string> = {
   holds: 'Compensation holds',
   under_compensates: 'Compensation falls short (under-compensates)',
   over_compensates: 'Compensation overshoots (over-compensates)',

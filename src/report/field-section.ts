@@ -5,17 +5,9 @@
  * and recommendation, and the caution. Pure: the page text from the check.
  */
 import type { FieldCheckReport } from '../field/field-types.js';
-import { percentagePoints } from '../field/field-summary.js';
+import { VERDICT_WORDS, percentagePoints } from '../field/field-summary.js';
 import { type FieldBandPoint, FIELD_SERIES } from './charts.js';
 import { escapeHtml, formatNumber, htmlTable } from './html.js';
-
-export const VERDICT_TEXT: Record<FieldCheckReport['verdict'], string> = {
-  holds: 'Compensation holds',
-  under_compensates: 'Compensation falls short (under-compensates)',
-  over_compensates: 'Compensation overshoots (over-compensates)',
-  not_enough_data: 'Not enough data to tell',
-  nothing_compensated: 'Nothing was compensated',
-};
 
 /** The chart's points: per band with rows, the model before and after, and the observed rate. */
 export function fieldBandPoints(report: FieldCheckReport): FieldBandPoint[] {
@@ -62,7 +54,7 @@ export function fieldSection(report: FieldCheckReport, chartSvg: string): string
   const others = report.summary.filter((line) => line !== compensation.message && !line.startsWith('Model: ') && !line.startsWith('Refit on') && !line.startsWith('Or on') && line !== report.caution);
   return `<div id="live">
 <p class="caution">${escapeHtml(report.caution)}</p>
-<p><strong>Verdict: ${escapeHtml(VERDICT_TEXT[report.verdict])}</strong> (margin ±${(settings.margin * 100).toFixed(1)} percentage points, two one-sided tests at ${settings.alpha} each).</p>
+<p><strong>Verdict: ${escapeHtml(VERDICT_WORDS[report.verdict])}</strong> (margin ±${(settings.margin * 100).toFixed(1)} percentage points, two one-sided tests at ${settings.alpha} each).</p>
 <p>${escapeHtml(compensation.message)}</p>
 ${others.map((line) => `<p>${escapeHtml(line)}</p>`).join('\n')}
 <figure id="figure-live" class="chart">${chartSvg}<figcaption>Per latency band: the model's hit probability at scale 1 (orange circles: before compensation), at the scales the matchmaker applied (light blue diamonds: after), and the observed hit rate (dark blue squares), with 95% intervals (the model's from its covariance, the observed cluster-robust by player). Compensation works where the observed squares sit level across bands.</figcaption></figure>

@@ -7,7 +7,7 @@
  * defaults and get no verdict.
  */
 import type { TopLevelSpec } from 'vega-lite';
-import { auditLobby } from '../audit/audit-lobbies.js';
+import { auditLobby, worstGap } from '../audit/audit-lobbies.js';
 import type { LobbyAudit } from '../audit/audit-types.js';
 import { rulesFileSchema } from '../formats/rules-file.js';
 import type { LobbyFile } from '../formats/lobby-types.js';
@@ -68,15 +68,8 @@ function balanceOnly(lobby: LobbyFile, model: CompiledModel, rules: CompiledRule
   return { ...audit, reasons: audit.reasons.filter((reason) => reason.rule === 'solvable') };
 }
 
-function worstGapOf(audit: LobbyAudit): number | null {
-  if (audit.figures === null) return null;
-  let worst = 0;
-  for (const player of audit.players) if (player.eligible) worst = Math.max(worst, player.gap_to_target);
-  return worst;
-}
-
-function playerTable(audit: LobbyAudit, judged: boolean): string {
-  const players = [...audit.players].sort((left, right) => left.latency_estimate_ms - right.latency_estimate_ms || (left.id < right.id ? -1 : 1));
+/** The players' table, `players` in the order of the chart (latency estimate, lowest first). */
+function playerTable(players: readonly LobbyAudit['players'][number][], judged: boolean): string {
   const rows = players.map((player) => [
     player.id,
     player.team ?? '–',
@@ -134,7 +127,7 @@ export async function lobbiesSection(
   const sections: string[] = [];
   let worst: { gap: number; matchId: string } | null = null;
   for (const [index, { name, audit }] of outcomes.entries()) {
-    const gap = worstGapOf(audit);
+    const gap = worstGap(audit);
     if (gap !== null && (worst === null || gap > worst.gap)) worst = { gap, matchId: audit.match_id };
     const verdict = judged ? (audit.verdict === 'within_rules' ? '<span class="within">within rules</span>' : `<span class="outside">outside rules</span> (${audit.reasons.length} reason${audit.reasons.length === 1 ? '' : 's'})`) : '';
     const excluded = audit.excluded_players === 0 ? '' : `; ${audit.excluded_players} player${audit.excluded_players === 1 ? '' : 's'} excluded (above the latency limit, never scaled)`;
@@ -166,7 +159,7 @@ export async function lobbiesSection(
           `figure-lobby-${index + 1}`,
           'Orange circles: expected hit probability at scale 1; blue diamonds: with the scale printed above the player; vermillion open triangles and dashed lines: players a rule holds below the target (the legend names the rule) and the gap it leaves; black dashed line: the target. The y-axis is the same in every lobby of this report.',
         ),
-        playerTable(audit, judged),
+        playerTable(players, judged),
         audit.warnings.length > 0 ? `<div class="note">Warnings:<ul>${audit.warnings.map((issue) => `<li><code>${escapeHtml(issue.location)}</code> ${escapeHtml(issue.code)}: ${escapeHtml(issue.message)}</li>`).join('')}</ul></div>` : '',
       ].join('\n'),
     );

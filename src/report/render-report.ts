@@ -23,7 +23,8 @@ import { coefficientTable, fitTables } from './model-section.js';
 import { scaleNeeded } from './scale-needed.js';
 import type { FieldCheckReport } from '../field/field-types.js';
 import { fieldBandsSpec } from './charts.js';
-import { VERDICT_TEXT, fieldBandPoints, fieldSection } from './field-section.js';
+import { fieldBandPoints, fieldSection } from './field-section.js';
+import { VERDICT_WORDS } from '../field/field-summary.js';
 import { escapeHtml, formatGeneral, formatNumber, htmlTable } from './html.js';
 import { calibrationBins, difficultyForModel, hasCovariance, predictWithBand } from './predictions.js';
 import { MissingChartingError, loadCharting, renderChartSvg } from './render-svg.js';
@@ -321,7 +322,7 @@ export async function renderReport(input: ReportInput): Promise<Result<Report>> 
         : `Lobbies: <strong>${lobbies.withinRules} of ${lobbies.lobbies} within rules</strong> under ${escapeHtml(rulesName ?? '')}.`
       : 'No lobbies were given.',
     lobbies.worst === null ? '' : `Worst residual gap after compensation: <strong>${formatNumber(lobbies.worst.gap)}</strong> of hit probability (${escapeHtml(lobbies.worst.matchId)}).`,
-    input.field === undefined ? '' : `Live play: <strong>${escapeHtml(VERDICT_TEXT[input.field.verdict])}</strong>; the model: ${input.field.calibration.recommendation === 'refit' ? 'refit' : 'keep'}.`,
+    input.field === undefined ? '' : `Live play: <strong>${escapeHtml(VERDICT_WORDS[input.field.verdict])}</strong>; the model: ${input.field.calibration.recommendation === 'refit' ? 'refit' : 'keep'}.`,
   ].filter((line) => line !== '');
   const sections: { id: string; title: string; body: string }[] = [
     {
