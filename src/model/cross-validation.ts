@@ -13,7 +13,7 @@
  * infinity (the clipping scikit-learn's `log_loss` applies).
  */
 import { type Issue, warning } from '../issues.js';
-import { multiply } from '../numeric/design-matrix.js';
+import { type DesignMatrix, multiply } from '../numeric/design-matrix.js';
 import { createRandomSource, shuffledIndices } from '../random.js';
 import { type CollapsedTrials, selectCollapsed } from './collapsed-trials.js';
 import { buildDesign } from './design.js';
@@ -21,6 +21,7 @@ import { fitLeastSquares } from './fit-least-squares.js';
 import type { CalibrationBin, CrossValidation, FoldResult } from './fit-report-types.js';
 import { linkFor } from './links.js';
 import { type Prepared, accuracy, leastSquaresWeights, runBinomial } from './prepared-fit.js';
+import { foldStarts } from './refit-starts.js';
 
 /** Held-out probabilities are clipped to [CLIP, 1 - CLIP] for the log loss. */
 const CLIP = 1e-15;
@@ -127,10 +128,16 @@ export function crossValidate(
   seed: number,
   warnings: Issue[],
   progress: (stage: string) => void,
-  start: Float64Array | null = null,
+  full: { readonly design: DesignMatrix; readonly coefficients: Float64Array } | null = null,
 ): CrossValidation | null {
   const { data } = prepared;
   const assignment = assignFolds(data, requestedFolds, seed);
+  // Each fold's fit starts one Newton step from the full fit's estimates towards its own (refit-starts.ts),
+  // else at the full fit's estimates.
+  const starts =
+    full === null || prepared.family !== 'binomial'
+      ? null
+      : foldStarts({ design: full.design, successes: data.successes, trials: data.attempts, priorWeights: data.weight }, linkFor(prepared.link), full.coefficients, assignment.fold, assignment.folds);
   const file = prepared.source.file;
   if (assignment.heldOut === 'rows') {
     warnings.push(
@@ -149,7 +156,7 @@ export function crossValidate(
     const players = heldOut.player === null || assignment.heldOut === 'rows' ? null : new Set(heldOut.player).size;
     let heldAttempts = 0;
     for (let i = 0; i < heldOut.rows; i += 1) heldAttempts += heldOut.attempts[i] as number;
-    const fitted = fitCoefficients(prepared, training, start);
+    const fitted = fitCoefficients(prepared, training, starts?.[fold] ?? full?.coefficients ?? null);
     if (fitted.coefficients === null) {
       foldResults.push({ fold: fold + 1, status: fitted.status, players, held_out_attempts: heldAttempts, log_loss: null, brier: null });
       continue;

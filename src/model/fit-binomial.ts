@@ -51,7 +51,7 @@
  * reduction together; no per-iteration arrays of length n), O(n) memory for a
  * few per-row vectors and O(k^2) for the reduction.
  */
-import { clusterSandwichCovariance, compactClusters } from '../numeric/cluster-sandwich.js';
+import { compactClusters, sandwichOfClusterScores } from '../numeric/cluster-sandwich.js';
 import { hasConstantColumn, selectRows, type DesignMatrix } from '../numeric/design-matrix.js';
 import { inverseCrossProduct } from '../numeric/householder-qr.js';
 import { columnExponents, reduceWeightedRows } from '../numeric/row-reduction.js';
@@ -265,8 +265,9 @@ export function fitBinomial(data: BinomialData, options: BinomialFitOptions = {}
 
   let robust: BinomialRobust | null = null;
   if (data.clusters !== undefined && options.robust !== false) {
-    const { indices, count } = compactClusters(data.clusters, Array.from(keep, (value) => value === 1));
-    const scores = new Float64Array(n * columns);
+    const { indices, count } = compactClusters(data.clusters, keep);
+    // Each cluster's score sum u_g, summed row by row as the scores are computed (no n-by-k array).
+    const clusterScores = new Float64Array(count * columns);
     for (let i = 0; i < n; i += 1) {
       const variance = (state.mu[i] as number) * (state.complement[i] as number);
       if (!(variance > 0)) continue;
@@ -275,12 +276,12 @@ export function fitBinomial(data: BinomialData, options: BinomialFitOptions = {}
           residualOf(rows.proportions[i] as number, state.mu[i] as number, state.complement[i] as number) *
           link.derivative(linearPredictor[i] as number)) /
         variance;
-      for (let j = 0; j < columns; j += 1) scores[i * columns + j] = (kept.values[j * n + i] as number) * factor;
+      const at = (indices[i] as number) * columns;
+      for (let j = 0; j < columns; j += 1) clusterScores[at + j] = (clusterScores[at + j] as number) + (kept.values[j * n + i] as number) * factor;
     }
-    const robustCovariance = clusterSandwichCovariance({
+    const robustCovariance = sandwichOfClusterScores({
       bread: covariance,
-      scores,
-      clusters: indices,
+      clusterScores,
       clusterCount: count,
       observationCount,
       parameterCount,

@@ -158,8 +158,8 @@ export function fitModel(trials: Trials | GroupedTrials, options: FitModelOption
 
   const likelihoodRatioTests = options.likelihoodRatioTests === false ? [] : likelihoodRatios(prepared, fit, progress);
   const folds = options.folds ?? 5;
-  // Each fold's fit starts from the full fit's estimates.
-  const crossValidation = folds >= 2 ? crossValidate(prepared, folds, options.seed ?? 1, warnings, progress, fit.coefficients) : null;
+  // Each fold's fit starts from the full fit's (see refit-starts.ts).
+  const crossValidation = folds >= 2 ? crossValidate(prepared, folds, options.seed ?? 1, warnings, progress, { design: design.matrix, coefficients: fit.coefficients }) : null;
   const calibration = calibrationTable(data, fit.fitted);
 
   return {

@@ -112,6 +112,7 @@ export function runBinomial(
   design: TermDesign,
   clustered = prepared.clustered,
   start: Float64Array | null = null,
+  tolerance?: number,
 ): BinomialFit {
   const clusters = clustered && data.player !== null ? data.player : undefined;
   return fitBinomial(
@@ -122,7 +123,7 @@ export function runBinomial(
       priorWeights: data.weight,
       ...(clusters === undefined ? {} : { clusters }),
     },
-    { link: prepared.link, likelihood: prepared.likelihood, maxIterations: prepared.maxIterations, ...(start === null ? {} : { start }) },
+    { link: prepared.link, likelihood: prepared.likelihood, maxIterations: prepared.maxIterations, ...(start === null ? {} : { start }), ...(tolerance === undefined ? {} : { tolerance }) },
   );
 }
 

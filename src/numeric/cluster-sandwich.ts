@@ -30,9 +30,9 @@ export interface ClusterSandwichInput {
 
 /** The CR1 covariance, K-by-K row-major. Returns null when G < 2 or N <= K. */
 export function clusterSandwichCovariance(input: ClusterSandwichInput): Float64Array | null {
-  const { bread, scores, clusters, clusterCount, observationCount, parameterCount } = input;
+  const { bread, scores, clusters, clusterCount } = input;
   const size = Math.round(Math.sqrt(bread.length));
-  if (clusterCount < 2 || observationCount <= parameterCount) return null;
+  if (clusterCount < 2 || input.observationCount <= input.parameterCount) return null;
   const clusterScores = new Float64Array(clusterCount * size);
   const scoreRows = scores.length / size;
   for (let i = 0; i < scoreRows; i += 1) {
@@ -41,6 +41,18 @@ export function clusterSandwichCovariance(input: ClusterSandwichInput): Float64A
       clusterScores[cluster * size + j] = (clusterScores[cluster * size + j] as number) + (scores[i * size + j] as number);
     }
   }
+  return sandwichOfClusterScores({ ...input, clusterScores });
+}
+
+/**
+ * The CR1 covariance from the score sums u_g of the clusters (G-by-K
+ * row-major), for a caller that sums the scores of its rows per cluster as
+ * it computes them (no N-by-K array of scores). Null when G < 2 or N <= K.
+ */
+export function sandwichOfClusterScores(input: Omit<ClusterSandwichInput, 'scores' | 'clusters'> & { readonly clusterScores: Float64Array }): Float64Array | null {
+  const { bread, clusterScores, clusterCount, observationCount, parameterCount } = input;
+  const size = Math.round(Math.sqrt(bread.length));
+  if (clusterCount < 2 || observationCount <= parameterCount) return null;
   const meat = new Float64Array(size * size);
   for (let g = 0; g < clusterCount; g += 1) {
     for (let a = 0; a < size; a += 1) {
@@ -68,18 +80,19 @@ export function clusterSandwichCovariance(input: ClusterSandwichInput): Float64A
 
 /**
  * Renumber the clusters of the kept rows 0..G-1 in order of first appearance,
- * so that G counts only clusters that occur.
+ * so that G counts only clusters that occur. `keep`: true, or 1 in a byte
+ * mask, for a kept row.
  */
 export function compactClusters(
   clusters: ArrayLike<number>,
-  keep: ArrayLike<boolean>,
+  keep: ArrayLike<boolean> | Uint8Array,
 ): { readonly indices: Int32Array; readonly count: number } {
   // Cluster indices are whole numbers >= 0 (checked by the fits); when they are no larger than a few
   // times the rows (player codes are), a typed table renumbers them, else a map: the same numbering.
   let largest = -1;
   let kept = 0;
   for (let i = 0; i < clusters.length; i += 1) {
-    if (keep[i] !== true) continue;
+    if (!keep[i]) continue;
     kept += 1;
     if ((clusters[i] as number) > largest) largest = clusters[i] as number;
   }
@@ -88,7 +101,7 @@ export function compactClusters(
     const table = new Int32Array(largest + 1).fill(-1);
     let count = 0;
     for (let i = 0, r = 0; i < clusters.length; i += 1) {
-      if (keep[i] !== true) continue;
+      if (!keep[i]) continue;
       const cluster = clusters[i] as number;
       let index = table[cluster] as number;
       if (index < 0) {
@@ -102,7 +115,7 @@ export function compactClusters(
   }
   const renumbered = new Map<number, number>();
   for (let i = 0, r = 0; i < clusters.length; i += 1) {
-    if (keep[i] !== true) continue;
+    if (!keep[i]) continue;
     const cluster = clusters[i] as number;
     let index = renumbered.get(cluster);
     if (index === undefined) {
