@@ -14,7 +14,10 @@
  * is a further chunk loaded only by `lagparity report`; the size study's
  * worker thread script (`src/plan/simulation-worker.ts`) is an entry of its
  * own, `dist/bin/chunks/simulation-worker.js`, beside the chunk that starts
- * it, loaded only when `lagparity plan size` runs; and the charting
+ * it, loaded only when `lagparity plan size` runs; the fit's refit worker
+ * (`src/model/refit-worker.ts`) likewise, `dist/bin/chunks/refit-worker.js`,
+ * loaded only when `lagparity fit` runs its refits on threads, and the field
+ * check's (`src/field/calibration-worker.ts`); and the charting
  * packages (vega, vega-lite) stay outside, imported from node_modules when a
  * report is drawn.
  * The library entries (`dist/index.js`, `dist/report/`) are not bundled: they
@@ -84,14 +87,18 @@ export function licenceNotice(packages: readonly Bundled[], bundle = 'lagparity.
 export async function bundleCli(root: string): Promise<string[]> {
   const entry = join(root, 'dist', 'cli', 'main.js');
   const worker = join(root, 'dist', 'plan', 'simulation-worker.js');
-  for (const file of [entry, worker]) if (!existsSync(file)) throw new Error(`bundle-cli: ${relative(root, file)} is missing; run tsc first`);
+  const refitWorker = join(root, 'dist', 'model', 'refit-worker.js');
+  const calibrationWorker = join(root, 'dist', 'field', 'calibration-worker.js');
+  for (const file of [entry, worker, refitWorker, calibrationWorker]) if (!existsSync(file)) throw new Error(`bundle-cli: ${relative(root, file)} is missing; run tsc first`);
   const outdir = join(root, 'dist', 'bin');
   rmSync(outdir, { recursive: true, force: true });
   const result = await build({
     absWorkingDir: root,
-    // The size study's worker script is an entry of its own, beside the chunk that starts it
-    // (`new URL('./simulation-worker.js', import.meta.url)` in src/plan/run-studies.ts).
-    entryPoints: { lagparity: entry, 'chunks/simulation-worker': worker },
+    // The worker scripts are entries of their own, beside the chunks that start them
+    // (`new URL('./simulation-worker.js', import.meta.url)` in src/plan/run-studies.ts,
+    // `new URL('./refit-worker.js', import.meta.url)` in src/model/fit-model-threads.ts,
+    // `new URL('./calibration-worker.js', import.meta.url)` in src/field/check-field-threads.ts).
+    entryPoints: { lagparity: entry, 'chunks/simulation-worker': worker, 'chunks/refit-worker': refitWorker, 'chunks/calibration-worker': calibrationWorker },
     outdir,
     bundle: true,
     splitting: true,

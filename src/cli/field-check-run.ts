@@ -3,6 +3,7 @@ import { error, show } from '../issues.js';
 import { checkTelemetry, parseFieldSettings } from './field-inputs.js';
 import { loadModel, loadRules } from './inputs.js';
 import { EXIT_BAD_INPUT, EXIT_FAILED_CHECK, EXIT_OK, reportIssues, writeOut } from './output.js';
+import { threadCount } from './thread-count.js';
 
 export interface FieldCheckOptions {
   model: string;
@@ -11,6 +12,7 @@ export interface FieldCheckOptions {
   bands: string;
   attribute?: string;
   json?: boolean;
+  threads?: string;
 }
 
 export async function runFieldCheck(telemetry: string, options: FieldCheckOptions): Promise<number> {
@@ -20,6 +22,7 @@ export async function runFieldCheck(telemetry: string, options: FieldCheckOption
   if (attribute !== undefined && attribute !== 'hit_area' && attribute !== 'timing_window') {
     issues.push(error('invalid_option', '--attribute', `\`--attribute\` requires hit_area or timing_window, got ${show(attribute)}`));
   }
+  const threads = threadCount(options.threads, issues);
   if (issues.length > 0 || !settings.ok) {
     reportIssues(issues);
     return EXIT_BAD_INPUT;
@@ -29,7 +32,7 @@ export async function runFieldCheck(telemetry: string, options: FieldCheckOption
     reportIssues([...(model.ok ? [] : model.issues), ...(rules !== null && !rules.ok ? rules.issues : [])]);
     return EXIT_BAD_INPUT;
   }
-  const report = await checkTelemetry(telemetry, options.model, model.value, rules?.ok ? rules.value : null, settings.value, attribute as 'hit_area' | 'timing_window' | undefined);
+  const report = await checkTelemetry(telemetry, options.model, model.value, rules?.ok ? rules.value : null, settings.value, attribute as 'hit_area' | 'timing_window' | undefined, threads);
   if (!report.ok) {
     reportIssues(report.issues);
     return EXIT_BAD_INPUT;

@@ -2,7 +2,7 @@
 import { open } from 'node:fs/promises';
 import { basename, dirname, join } from 'node:path';
 import { type Issue, type Result, error, fail, ok, show } from '../issues.js';
-import { checkField } from '../field/check-field.js';
+import { checkFieldOnThreads } from '../field/check-field-threads.js';
 import type { FieldCheckReport } from '../field/field-types.js';
 import { parseBandCuts } from '../field/latency-bands.js';
 import type { RefitCommandInputs } from '../field/refit-commands.js';
@@ -43,6 +43,7 @@ export async function checkTelemetry(
   rules: CompiledRules | null,
   settings: FieldSettings,
   attribute: 'hit_area' | 'timing_window' | undefined,
+  threads = 1,
 ): Promise<Result<FieldCheckReport>> {
   // Parquet files and globs are read through DuckDB, as fit reads them, but grouped at
   // FIELD_LATENCY_STEP_MS: the bands need each row's latency where the CSV reader puts it.
@@ -51,7 +52,7 @@ export async function checkTelemetry(
   progress.done();
   if (!read.ok) return read;
   const { grouped, sha256 } = read.value;
-  const report = checkField(grouped, model, {
+  const options = {
     margin: settings.margin,
     bands: settings.bands,
     rules,
@@ -59,7 +60,8 @@ export async function checkTelemetry(
     modelFile: basename(modelPath),
     sha256,
     commands: await commandInputs(telemetry, modelPath, model),
-  });
+  };
+  const report = await checkFieldOnThreads(grouped, model, options, threads);
   return report.ok ? ok(report.value, [...read.warnings, ...report.warnings]) : report;
 }
 

@@ -2,7 +2,7 @@
 import { basename } from 'node:path';
 import { type Issue, LagparityInputError, error, show } from '../issues.js';
 import { writeFileAtomic } from '../io/write-file.js';
-import { fitModel } from '../model/fit-model.js';
+import { fitModelOnThreads } from '../model/fit-model-threads.js';
 import type { FitFamily, FitModelOptions, FitReport } from '../model/fit-report-types.js';
 import { LINK_NAMES, type LinkName } from '../model/links.js';
 import { type TermName, parseTermList } from '../model/terms.js';
@@ -11,6 +11,7 @@ import { EXIT_BAD_INPUT, EXIT_OK, reportIssues, writeOut } from './output.js';
 import { progressLine } from './progress.js';
 import { readGrouped } from './read-grouped.js';
 import { latencyStepOption } from './latency-step-option.js';
+import { threadCount } from './thread-count.js';
 
 export const FIT_RESULT_FORMAT = 'lagparity/fit-result@1';
 
@@ -31,6 +32,7 @@ export interface FitOptions {
   baseline: boolean;
   latencyStep?: string;
   counts: string;
+  threads?: string;
 }
 
 /** One candidate of `--compare`: `MODEL[:TERMS]`, MODEL a link name or `least_squares`. */
@@ -115,6 +117,7 @@ export async function runFit(path: string, options: FitOptions): Promise<number>
   if (options.counts !== 'rounds' && options.counts !== 'attempts') {
     issues.push(error('invalid_option', '--counts', `\`--counts\` requires rounds or attempts, got ${show(options.counts)}`));
   }
+  const threads = threadCount(options.threads, issues);
   if (issues.length > 0) {
     reportIssues(issues);
     return EXIT_BAD_INPUT;
@@ -141,9 +144,9 @@ export async function runFit(path: string, options: FitOptions): Promise<number>
   let report: FitReport;
   const ranked: Ranked[] = [];
   try {
-    report = fitModel(grouped, { ...common, likelihoodRatioTests: options.lrTests === 'all', onProgress: (stage) => progress.update(() => stage) });
+    report = await fitModelOnThreads(grouped, { ...common, likelihoodRatioTests: options.lrTests === 'all', onProgress: (stage) => progress.update(() => stage) }, threads);
     for (const candidate of compare?.candidates ?? []) {
-      const fitted = fitModel(grouped, {
+      const fitted = await fitModelOnThreads(grouped, {
         ...common,
         family: candidate.family,
         link: candidate.link,
@@ -151,7 +154,7 @@ export async function runFit(path: string, options: FitOptions): Promise<number>
         likelihoodRatioTests: false,
         folds: folds >= 2 ? folds : 5,
         onProgress: (stage) => progress.update(() => `${candidate.spec}: ${stage}`),
-      });
+      }, threads);
       ranked.push({
         spec: candidate.spec,
         status: fitted.status,

@@ -1,7 +1,6 @@
 /** `lagparity plan size`, run: simulate playtests of each size, fit each, and recommend the smallest size that meets the goal (options and help: `plan-command.ts`). */
-import { availableParallelism } from 'node:os';
 import { basename } from 'node:path';
-import { type Issue, type Result, error, fail, ok, show, warning } from '../issues.js';
+import { type Issue, type Result, error, fail, ok, warning } from '../issues.js';
 import { readTrialsFile } from '../io/read-trials.js';
 import { writeFileAtomic } from '../io/write-file.js';
 import type { ValidPlan } from '../formats/plan.js';
@@ -13,6 +12,7 @@ import { DEFAULT_PLAYER_SD, type PlayerSpread, assembleSizeStudy, prepareSizeStu
 import { loadModel } from './inputs.js';
 import { EXIT_BAD_INPUT, EXIT_FAILED_CHECK, EXIT_OK, reportIssues, writeOut } from './output.js';
 import { type PlanFieldOptions, type SizeFieldOptions, loadPlan } from './plan-inputs.js';
+import { threadCount } from './thread-count.js';
 import { progressLine } from './progress.js';
 
 export interface SizeOptions extends PlanFieldOptions, SizeFieldOptions {
@@ -51,13 +51,6 @@ async function playerSpread(plan: ValidPlan, where: FieldLocator, truth: Assumed
   const spread = playerSpreadFromTrials(trials.value, truth.terms, truth.link);
   if (!spread.ok) return spread;
   return ok({ value: spread.value.sd, source: 'pilot_trials' }, trials.warnings);
-}
-
-function threadCount(text: string | undefined, issues: Issue[]): number {
-  if (text === undefined) return Math.max(1, availableParallelism());
-  const value = Number(text);
-  if (!Number.isInteger(value) || value < 1 || value > 256) issues.push(error('invalid_option', '--threads', `\`--threads\` requires a whole number from 1 to 256, got ${show(text)}`));
-  return value;
 }
 
 export async function runSize(path: string | undefined, options: SizeOptions): Promise<number> {

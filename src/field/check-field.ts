@@ -45,7 +45,7 @@ import { buildDesign } from '../model/design.js';
 import type { CompiledRules } from '../solver/rules.js';
 import { bandFigures, type BandFigures } from './band-figures.js';
 import { type BandRates, bandRates } from './band-rates.js';
-import { calibrationInTheLarge, calibrationSlope } from './calibration.js';
+import { CALIBRATION_JOBS, type CalibrationFit, type CalibrationInputs, runCalibrationFit } from './calibration-fits.js';
 import { dataFactor } from './data-needed.js';
 import { gapVerdict } from './equivalence-verdict.js';
 import { fieldRows } from './field-fit.js';
@@ -62,7 +62,6 @@ import {
 } from './field-types.js';
 import { DEFAULT_BAND_CUTS, type LatencyBand, bandOf, checkBandCuts, latencyBands, withCut } from './latency-bands.js';
 import { type LiveRows, MAX_STANDARD_DIFFICULTIES, joinLiveRows, rangeWarnings, totalOf } from './live-rows.js';
-import { refitTest } from './refit-test.js';
 import { residualLatencyTrend } from './residual-latency.js';
 import { twoOneSidedTests } from './two-one-sided-tests.js';
 import { extent } from '../stats/extent.js';
@@ -99,6 +98,28 @@ export interface FieldCheckOptions {
 
 /** Check live telemetry against the model its scales came from. See the module comment. */
 export function checkField(input: GroupedTrials | Trials, model: CompiledModel, options: FieldCheckOptions = {}): Result<FieldCheckReport> {
+  const stage = beginFieldCheck(input, model, options);
+  if (!stage.ok) return stage;
+  const rates = stage.value.bandRates();
+  return stage.value.finish(rates, CALIBRATION_JOBS.map((job) => runCalibrationFit(stage.value.calibration, job)));
+}
+
+/** A field check up to its fits: the band fit (run by `bandRates`), the calibration fits as jobs, and `finish` from their results. */
+export interface FieldCheckStage {
+  /** The band fit, on the calling thread (its result holds functions). */
+  bandRates(): BandRates;
+  /** What the calibration fits share (plain data; run each of CALIBRATION_JOBS on it). */
+  readonly calibration: CalibrationInputs;
+  /** The report from the band fit and the calibration fits (`fits[i]` of CALIBRATION_JOBS[i]). */
+  finish(rates: BandRates, fits: readonly CalibrationFit[]): Result<FieldCheckReport>;
+}
+
+/**
+ * Everything of {@link checkField} but its fits, which it returns as work
+ * for the caller: `check-field-threads.ts` runs the calibration fits on
+ * worker threads while the calling thread runs the band fit.
+ */
+export function beginFieldCheck(input: GroupedTrials | Trials, model: CompiledModel, options: FieldCheckOptions = {}): Result<FieldCheckStage> {
   const trials = 'groups' in input ? input : groupTrials(input);
   const settings = checkOptions(options);
   if (!settings.ok) return settings;
@@ -138,77 +159,91 @@ export function checkField(input: GroupedTrials | Trials, model: CompiledModel, 
     else warnings.push(warning('reference_band_empty', `${trials.file}:latency_ms`, `the rules' reference latency ${target.latency_ms} ms requires rows in its band ${(bands[wanted] as LatencyBand).label}, got none; the best-connected band with rows is the reference instead`));
   }
   const reference = target.kind === 'fixed' ? { probability: target.probability } : { band: referenceBand ?? 0 };
-  const rates = bandRates(rows, live.offset, band, bands.length, reference, live.byDifficulty, (b) => (figures[b] as BandFigures).players);
-  if (live.byDifficulty === null) {
-    warnings.push(warning('difficulty_not_standardised', `${trials.file}:difficulty`, `comparing bands at one difficulty mix requires at most ${MAX_STANDARD_DIFFICULTIES} distinct difficulties, got more; bands are compared as played`));
-  }
-  warnings.push(...bandWarnings(trials.file, bands, figures, rates, eligible, [referenceBand, worst]));
-  for (const entry of bands) {
-    const index = entry.index;
-    if (!eligible[index] || (figures[index] as BandFigures).rows === 0 || comparable.includes(index) || (figures[index] as BandFigures).players >= FEW_BAND_PLAYERS) continue;
-    warnings.push(warning('band_not_compared', `${trials.file}:player`, `comparing the band ${(bands[index] as LatencyBand).label} requires at least ${FEW_BAND_PLAYERS} players, got ${(figures[index] as BandFigures).players}; the verdict compares the bands with enough players (it is still in the table)`));
-  }
-
-  const players = live.players.length;
-  if (players < FEW_PLAYERS) {
-    warnings.push(warning('few_clusters', `${trials.file}:player`, `cluster-robust intervals require at least ${FEW_PLAYERS} players to be trusted, got ${players}; with few clusters CR1 errors are biased low (Cameron and Miller 2015)`));
-  }
-  const compensatedPlayers = countOnes(live.compensatedPlayer);
-  const compensation = compensationCheck({ trials, live, bands, figures, rates, reference, referenceBand, worst, margin, alpha, compensatedPlayers });
-  const calibration = calibrationCheck(rows, live, model, design.matrix, alpha, options.commands ?? null);
-  if (calibration.likelihood_ratio.status === 'not_tested' && calibration.in_the_large === null) {
-    warnings.push(warning('calibration_not_tested', trials.file, `the calibration checks require fits on the live rows, got none: ${calibration.likelihood_ratio.reason}`));
-  }
-  const bandRows = bands.map((entry): FieldBand => bandRow(entry, figures[entry.index] as BandFigures, rates, trials.shape, eligible[entry.index] as boolean, margin, alpha, 'band' in reference && entry.index === reference.band));
-  const verdict = compensation.verdict;
-  const recommendation = calibration.recommendation;
-  const passed = verdict === 'holds' && recommendation === 'keep' && calibration.likelihood_ratio.status === 'tested';
-
-  const attempts = totalOf(data.attempts);
-  const controlAttempts = attemptsWhere(data.attempts, data.player as Int32Array, live.compensatedPlayer, 0);
-  const report: FieldCheckReport = {
-    format: FIELD_CHECK_FORMAT,
-    verdict,
-    recommendation,
-    passed,
-    summary: [],
-    data: {
-      file: trials.file,
-      sha256: options.sha256 ?? null,
-      shape: trials.shape,
-      rows: data.sourceRows,
-      attempts,
-      players,
-      control: { players: players - compensatedPlayers, attempts: controlAttempts },
-      compensated: { players: compensatedPlayers, attempts: attempts - controlAttempts },
-      latency_ms: extent(data.latency),
-      scale: extent(data.scale),
-    },
-    model: {
-      file: options.modelFile ?? null,
-      label: model.source.label ?? null,
-      attribute: model.source.attribute ?? null,
-      link: model.link.name,
-      terms: [...model.source.terms],
-      training_latency_ms: { ...model.training.latency_ms },
-      training_scale: { ...model.training.scale },
-      provenance_file: model.source.provenance.file,
-    },
-    settings: {
-      margin,
-      alpha,
-      band_cuts_ms: [...bandCuts],
-      target: target.kind === 'best_connected' ? { kind: 'best_connected' } : target.kind === 'fixed' ? { kind: 'fixed', probability: target.probability } : { kind: 'reference_latency', latency_ms: target.latency_ms },
-      latency_limit_ms: limit,
-      attribute: options.attribute ?? null,
-    },
-    bands: bandRows,
-    compensation,
-    calibration,
-    warnings: warnings.map((issue) => ({ ...issue })),
-    caution: FIELD_CAUTION,
+  const calibrationInputs: CalibrationInputs = {
+    rows,
+    logitPrediction: live.offset,
+    linearPredictor: live.linearPredictor,
+    design: design.matrix,
+    link: model.link.name,
+    coefficients: model.coefficients,
   };
-  return ok({ ...report, summary: summaryLines(report) }, warnings);
+  const finish = (rates: BandRates, fits: readonly CalibrationFit[]): Result<FieldCheckReport> => {
+    if (live.byDifficulty === null) {
+      warnings.push(warning('difficulty_not_standardised', `${trials.file}:difficulty`, `comparing bands at one difficulty mix requires at most ${MAX_STANDARD_DIFFICULTIES} distinct difficulties, got more; bands are compared as played`));
+    }
+    warnings.push(...bandWarnings(trials.file, bands, figures, rates, eligible, [referenceBand, worst]));
+    for (const entry of bands) {
+      const index = entry.index;
+      if (!eligible[index] || (figures[index] as BandFigures).rows === 0 || comparable.includes(index) || (figures[index] as BandFigures).players >= FEW_BAND_PLAYERS) continue;
+      warnings.push(warning('band_not_compared', `${trials.file}:player`, `comparing the band ${(bands[index] as LatencyBand).label} requires at least ${FEW_BAND_PLAYERS} players, got ${(figures[index] as BandFigures).players}; the verdict compares the bands with enough players (it is still in the table)`));
+    }
+
+    const players = live.players.length;
+    if (players < FEW_PLAYERS) {
+      warnings.push(warning('few_clusters', `${trials.file}:player`, `cluster-robust intervals require at least ${FEW_PLAYERS} players to be trusted, got ${players}; with few clusters CR1 errors are biased low (Cameron and Miller 2015)`));
+    }
+    const compensatedPlayers = countOnes(live.compensatedPlayer);
+    const compensation = compensationCheck({ trials, live, bands, figures, rates, reference, referenceBand, worst, margin, alpha, compensatedPlayers });
+    const calibration = calibrationCheck(fits, model, alpha, options.commands ?? null);
+    if (calibration.likelihood_ratio.status === 'not_tested' && calibration.in_the_large === null) {
+      warnings.push(warning('calibration_not_tested', trials.file, `the calibration checks require fits on the live rows, got none: ${calibration.likelihood_ratio.reason}`));
+    }
+    const bandRows = bands.map((entry): FieldBand => bandRow(entry, figures[entry.index] as BandFigures, rates, trials.shape, eligible[entry.index] as boolean, margin, alpha, 'band' in reference && entry.index === reference.band));
+    const verdict = compensation.verdict;
+    const recommendation = calibration.recommendation;
+    const passed = verdict === 'holds' && recommendation === 'keep' && calibration.likelihood_ratio.status === 'tested';
+
+    const attempts = totalOf(data.attempts);
+    const controlAttempts = attemptsWhere(data.attempts, data.player as Int32Array, live.compensatedPlayer, 0);
+    const report: FieldCheckReport = {
+      format: FIELD_CHECK_FORMAT,
+      verdict,
+      recommendation,
+      passed,
+      summary: [],
+      data: {
+        file: trials.file,
+        sha256: options.sha256 ?? null,
+        shape: trials.shape,
+        rows: data.sourceRows,
+        attempts,
+        players,
+        control: { players: players - compensatedPlayers, attempts: controlAttempts },
+        compensated: { players: compensatedPlayers, attempts: attempts - controlAttempts },
+        latency_ms: extent(data.latency),
+        scale: extent(data.scale),
+      },
+      model: {
+        file: options.modelFile ?? null,
+        label: model.source.label ?? null,
+        attribute: model.source.attribute ?? null,
+        link: model.link.name,
+        terms: [...model.source.terms],
+        training_latency_ms: { ...model.training.latency_ms },
+        training_scale: { ...model.training.scale },
+        provenance_file: model.source.provenance.file,
+      },
+      settings: {
+        margin,
+        alpha,
+        band_cuts_ms: [...bandCuts],
+        target: target.kind === 'best_connected' ? { kind: 'best_connected' } : target.kind === 'fixed' ? { kind: 'fixed', probability: target.probability } : { kind: 'reference_latency', latency_ms: target.latency_ms },
+        latency_limit_ms: limit,
+        attribute: options.attribute ?? null,
+      },
+      bands: bandRows,
+      compensation,
+      calibration,
+      warnings: warnings.map((issue) => ({ ...issue })),
+      caution: FIELD_CAUTION,
+    };
+    return ok({ ...report, summary: summaryLines(report) }, warnings);
+  };
+  return ok({
+    bandRates: () => bandRates(rows, live.offset, band, bands.length, reference, live.byDifficulty, (b) => (figures[b] as BandFigures).players),
+    calibration: calibrationInputs,
+    finish,
+  });
 }
 
 function checkOptions(options: FieldCheckOptions): Result<{ margin: number; alpha: number; cuts: readonly number[] }> {
@@ -304,17 +339,16 @@ function compensationCheck(inputs: CompensationInputs): CompensationCheck {
   return { ...check, message: compensationMessage(check, inputs.bands, margin, null) };
 }
 
-function calibrationCheck(
-  rows: ReturnType<typeof fieldRows>,
-  live: LiveRows,
-  model: CompiledModel,
-  design: Parameters<typeof refitTest>[1],
-  alpha: number,
-  commandInputs: RefitCommandInputs | null,
-): CalibrationCheck {
-  const inTheLarge = calibrationInTheLarge(rows, live.offset);
-  const slope = calibrationSlope(rows, live.offset);
-  const refit = refitTest(rows, design, model.link, model.coefficients, live.linearPredictor);
+function calibrationCheck(fits: readonly CalibrationFit[], model: CompiledModel, alpha: number, commandInputs: RefitCommandInputs | null): CalibrationCheck {
+  const figure = (job: 'slope' | 'in_the_large') => {
+    const fit = fits.find((entry) => entry.job === job);
+    return fit !== undefined && 'figure' in fit ? fit.figure : { ok: false as const, reason: `the ${job} fit did not run` };
+  };
+  const inTheLarge = figure('in_the_large');
+  const slope = figure('slope');
+  const refitFit = fits.find((entry) => entry.job === 'refit');
+  if (refitFit === undefined || !('refit' in refitFit)) throw new Error('field check: the refit job gave no result');
+  const refit = refitFit.refit;
   const test = refit.test;
   let recommendation: FieldRecommendation = 'keep';
   if (test.status === 'tested') {

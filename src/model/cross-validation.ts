@@ -13,10 +13,10 @@
  * infinity (the clipping scikit-learn's `log_loss` applies).
  */
 import { type Issue, warning } from '../issues.js';
-import { type DesignMatrix, multiply } from '../numeric/design-matrix.js';
+import { type DesignMatrix, gatherRows, multiply } from '../numeric/design-matrix.js';
 import { createRandomSource, shuffledIndices } from '../random.js';
-import { type CollapsedTrials, selectCollapsed } from './collapsed-trials.js';
-import { buildDesign } from './design.js';
+import { type CollapsedTrials, gatherCollapsed, keptIndices } from './collapsed-trials.js';
+import { type TermDesign, buildDesign } from './design.js';
 import { fitLeastSquares } from './fit-least-squares.js';
 import type { CalibrationBin, CrossValidation, FoldResult } from './fit-report-types.js';
 import { linkFor } from './links.js';
@@ -104,16 +104,14 @@ class HeldOut extends CalibrationBins {
   }
 }
 
-function predictProbabilities(prepared: Prepared, data: CollapsedTrials, coefficients: ArrayLike<number>): Float64Array {
-  const design = buildDesign(data, prepared.terms, prepared.coding);
+function predictProbabilities(prepared: Prepared, design: TermDesign, coefficients: ArrayLike<number>): Float64Array {
   const linear = multiply(design.matrix, coefficients);
   if (prepared.family === 'least_squares') return linear;
   const link = linkFor(prepared.link);
   return linear.map((value) => link.inverse(value));
 }
 
-function fitCoefficients(prepared: Prepared, data: CollapsedTrials, start: Float64Array | null): { status: string; coefficients: Float64Array | null } {
-  const design = buildDesign(data, prepared.terms, prepared.coding);
+function fitCoefficients(prepared: Prepared, data: CollapsedTrials, design: TermDesign, start: Float64Array | null): Omit<FoldFit, 'heldOut'> {
   if (prepared.family === 'least_squares') {
     const fit = fitLeastSquares({ design: design.matrix, response: accuracy(data), weights: leastSquaresWeights(prepared, data) });
     return { status: fit.status, coefficients: fit.status === 'fitted' ? fit.coefficients : null };
@@ -122,22 +120,82 @@ function fitCoefficients(prepared: Prepared, data: CollapsedTrials, start: Float
   return { status: fit.status, coefficients: fit.status === 'converged' ? fit.coefficients : null };
 }
 
-export function crossValidate(
+/** The folds of a cross-validation: each collapsed row's fold, and what they hold out. */
+export type FoldAssignment = ReturnType<typeof assignFolds>;
+
+/** A fold's fit on its training rows: the estimates, or null when the fit gave none (`status` says why). */
+export interface FoldFit {
+  readonly status: string;
+  readonly coefficients: Float64Array | null;
+  /** The fit's predictions for the fold's own (held-out) rows, in row order; null without estimates. */
+  readonly heldOut: Float64Array | null;
+}
+
+/** The rows of fold `fold` (`heldOut`), or its training rows (all rows of other folds). */
+function foldRows(assignment: FoldAssignment, fold: number, heldOut: boolean): Int32Array {
+  const folds = assignment.fold;
+  const keep = new Uint8Array(folds.length);
+  for (let i = 0; i < folds.length; i += 1) keep[i] = (folds[i] === fold) === heldOut ? 1 : 0;
+  return keptIndices(keep, folds.length);
+}
+
+/** Rows `indices` of the data, and of the full design when there is one (the same values buildDesign gives them). */
+function rowsOf(prepared: Prepared, indices: Int32Array, design: TermDesign | undefined): { readonly data: CollapsedTrials; readonly design: TermDesign } {
+  const data = gatherCollapsed(prepared.data, indices);
+  return { data, design: design === undefined ? buildDesign(data, prepared.terms, prepared.coding) : { matrix: gatherRows(design.matrix, indices), columns: design.columns } };
+}
+
+/**
+ * Fit fold `fold` (0-based) on its training rows, from `start` (null: R's
+ * starting values); `design` is the full design when the caller has it (its
+ * rows are taken instead of building the fold's).
+ */
+export function fitFold(prepared: Prepared, assignment: FoldAssignment, fold: number, start: Float64Array | null, design?: TermDesign): FoldFit {
+  const training = rowsOf(prepared, foldRows(assignment, fold, false), design);
+  const fitted = fitCoefficients(prepared, training.data, training.design, start);
+  if (fitted.coefficients === null) return { ...fitted, heldOut: null };
+  const heldOut = rowsOf(prepared, foldRows(assignment, fold, true), design);
+  return { ...fitted, heldOut: predictProbabilities(prepared, heldOut.design, fitted.coefficients) };
+}
+
+/**
+ * Starting values of the folds' fits: one Newton step from the full fit's
+ * estimates towards each fold's own (refit-starts.ts); null for the
+ * least-squares family (solved directly) and without a full fit.
+ */
+export function foldStartsOf(
   prepared: Prepared,
-  requestedFolds: number,
-  seed: number,
-  warnings: Issue[],
-  progress: (stage: string) => void,
-  full: { readonly design: DesignMatrix; readonly coefficients: Float64Array } | null = null,
-): CrossValidation | null {
+  assignment: FoldAssignment,
+  full: { readonly design: DesignMatrix; readonly coefficients: Float64Array } | null,
+): (Float64Array | null)[] | null {
   const { data } = prepared;
-  const assignment = assignFolds(data, requestedFolds, seed);
-  // Each fold's fit starts one Newton step from the full fit's estimates towards its own (refit-starts.ts),
-  // else at the full fit's estimates.
-  const starts =
-    full === null || prepared.family !== 'binomial'
-      ? null
-      : foldStarts({ design: full.design, successes: data.successes, trials: data.attempts, priorWeights: data.weight }, linkFor(prepared.link), full.coefficients, assignment.fold, assignment.folds);
+  if (full === null || prepared.family !== 'binomial') return null;
+  return foldStarts({ design: full.design, successes: data.successes, trials: data.attempts, priorWeights: data.weight }, linkFor(prepared.link), full.coefficients, assignment.fold, assignment.folds);
+}
+
+/**
+ * Cross-validation of a fit without a full estimate to start from (the
+ * least-squares family's report), fold after fold on the calling thread. A
+ * binomial fit's report runs its folds as refit jobs (`refit-jobs.ts`,
+ * {@link fitFold}) and hands them to {@link assembleCrossValidation}.
+ */
+export function crossValidate(prepared: Prepared, requestedFolds: number, seed: number, warnings: Issue[], progress: (stage: string) => void): CrossValidation | null {
+  const assignment = assignFolds(prepared.data, requestedFolds, seed);
+  const fits = Array.from({ length: assignment.folds }, (_, fold) => {
+    progress(`fold ${fold + 1} of ${assignment.folds}`);
+    return fitFold(prepared, assignment, fold, null);
+  });
+  return assembleCrossValidation(prepared, assignment, seed, fits, warnings);
+}
+
+/** The held-out scores of the folds' fits (`fits[f]` of fold f, with its predictions), accumulated in fold order. */
+export function assembleCrossValidation(
+  prepared: Prepared,
+  assignment: FoldAssignment,
+  seed: number,
+  fits: readonly FoldFit[],
+  warnings: Issue[],
+): CrossValidation | null {
   const file = prepared.source.file;
   if (assignment.heldOut === 'rows') {
     warnings.push(
@@ -146,22 +204,17 @@ export function crossValidate(
   }
   const total = new HeldOut();
   const foldResults: FoldResult[] = [];
-  const keep = new Uint8Array(data.rows);
   for (let fold = 0; fold < assignment.folds; fold += 1) {
-    progress(`fold ${fold + 1} of ${assignment.folds}`);
-    for (let i = 0; i < data.rows; i += 1) keep[i] = assignment.fold[i] === fold ? 0 : 1;
-    const training = selectCollapsed(data, keep);
-    for (let i = 0; i < data.rows; i += 1) keep[i] = 1 - (keep[i] as number);
-    const heldOut = selectCollapsed(data, keep);
+    const heldOut = gatherCollapsed(prepared.data, foldRows(assignment, fold, true));
     const players = heldOut.player === null || assignment.heldOut === 'rows' ? null : new Set(heldOut.player).size;
     let heldAttempts = 0;
     for (let i = 0; i < heldOut.rows; i += 1) heldAttempts += heldOut.attempts[i] as number;
-    const fitted = fitCoefficients(prepared, training, starts?.[fold] ?? full?.coefficients ?? null);
-    if (fitted.coefficients === null) {
+    const fitted = fits[fold] as FoldFit;
+    const probabilities = fitted.heldOut;
+    if (probabilities === null) {
       foldResults.push({ fold: fold + 1, status: fitted.status, players, held_out_attempts: heldAttempts, log_loss: null, brier: null });
       continue;
     }
-    const probabilities = predictProbabilities(prepared, heldOut, fitted.coefficients);
     let logLoss = 0;
     let brier = 0;
     let weight = 0;

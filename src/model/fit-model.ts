@@ -38,20 +38,23 @@
  * infinity (the clipping scikit-learn's `log_loss` applies).
  *
  * Cost: (1 + factors + folds) fits, each O(iterations * rows * k^2) on the
- * collapsed rows; the likelihood-ratio and fold refits start from the full
- * fit's estimates, so they take fewer iterations.
+ * collapsed rows; the likelihood-ratio and fold refits start from one-step
+ * estimates computed from the full fit (`refit-starts.ts`), so they take
+ * fewer iterations, and they are jobs (`refit-jobs.ts`) that
+ * `fit-model-threads.ts` can share with worker threads.
  */
 import { type Issue, error, show, warning } from '../issues.js';
 import type { Trials } from '../formats/trials-types.js';
 import { groupTrials } from './collapse.js';
 import type { GroupedTrials } from './collapsed-trials.js';
 import { coefficientRows, square, termsOfColumns } from './coefficient-rows.js';
-import { calibrationTable, crossValidate } from './cross-validation.js';
-import { buildDesign } from './design.js';
+import { assembleCrossValidation, assignFolds, calibrationTable, foldStartsOf } from './cross-validation.js';
+import { type TermDesign, buildDesign } from './design.js';
 import { FIT_REPORT_FORMAT, type FitModelOptions, type FitReport, noEstimates } from './fit-report-types.js';
 import { leastSquaresBaseline, leastSquaresReport } from './least-squares-baseline.js';
-import { likelihoodRatios } from './likelihood-ratio-tests.js';
+import { testedFactors } from './likelihood-ratio-tests.js';
 import { countDistinct, prepare, runBinomial, structuralIssues } from './prepared-fit.js';
+import { type RefitContext, type RefitJob, type RefitResult, refitLabel, runRefit } from './refit-jobs.js';
 import { scaleEffectOf, trainingRanges } from './scale-effect.js';
 
 /** Players below which CR1 errors are flagged as biased low (Cameron & Miller 2015, §VI.C). */
@@ -72,6 +75,40 @@ export const FEW_CLUSTERS = 40;
  * report.coefficients.map((row) => [row.name, row.estimate, row.robust?.std_error]);
  */
 export function fitModel(trials: Trials | GroupedTrials, options: FitModelOptions = {}): FitReport {
+  const stage = beginFitModel(trials, options);
+  if (stage.done) return stage.report;
+  const progress = options.onProgress ?? (() => undefined);
+  const folds = stage.context.assignment?.folds ?? 0;
+  return stage.finish(
+    stage.jobs.map((job) => {
+      progress(refitLabel(job, folds));
+      return runRefit(stage.context, job, stage.design);
+    }),
+  );
+}
+
+/** A fit's report up to its refits: the report itself when there are none to run. */
+export type FitStage =
+  | { readonly done: true; readonly report: FitReport }
+  | {
+      readonly done: false;
+      /** What the refits share (plain data). */
+      readonly context: RefitContext;
+      /** The refits, in the order the report lists them. */
+      readonly jobs: readonly RefitJob[];
+      /** The full design, for refits run on this thread. */
+      readonly design: TermDesign;
+      /** The report, from the jobs' results (`results[i]` of `jobs[i]`). */
+      finish(results: readonly RefitResult[]): FitReport;
+    };
+
+/**
+ * Everything of {@link fitModel} but the refits (the least-squares baseline,
+ * the likelihood-ratio refits, the folds' fits), which it returns as jobs
+ * with a function that finishes the report from their results: a caller can
+ * run them anywhere (`fit-model-threads.ts` runs them on worker threads).
+ */
+export function beginFitModel(trials: Trials | GroupedTrials, options: FitModelOptions = {}): FitStage {
   const prepared = prepare('groups' in trials ? trials : groupTrials(trials), options);
   const { data, terms, coding, source } = prepared;
   const progress = options.onProgress ?? (() => undefined);
@@ -107,15 +144,17 @@ export function fitModel(trials: Trials | GroupedTrials, options: FitModelOption
 
   const structural = structuralIssues(prepared);
   if (structural.issues.length > 0) {
-    return { ...base, ...empty, status: 'rank_deficient', aliased_terms: structural.aliased, warnings: [...warnings, ...structural.issues] };
+    return { done: true, report: { ...base, ...empty, status: 'rank_deficient', aliased_terms: structural.aliased, warnings: [...warnings, ...structural.issues] } };
   }
 
   const design = buildDesign(data, terms, coding);
-  const baseline = options.baseline === false ? null : leastSquaresBaseline(prepared, design);
-  progress('fit');
+  const baselineNow = () => (options.baseline === false ? null : leastSquaresBaseline(prepared, design));
   if (prepared.family === 'least_squares') {
-    return { ...base, ...leastSquaresReport(prepared, design, warnings, progress, options), baseline };
+    const baseline = baselineNow();
+    progress('fit');
+    return { done: true, report: { ...base, ...leastSquaresReport(prepared, design, warnings, progress, options), baseline } };
   }
+  progress('fit');
   const fit = runBinomial(prepared, data, design);
   if (fit.status === 'rank_deficient' || fit.status === 'separation') {
     const aliasedTerms = fit.status === 'rank_deficient' ? termsOfColumns(design, fit.aliased) : [];
@@ -131,7 +170,7 @@ export function fitModel(trials: Trials | GroupedTrials, options: FitModelOption
             file,
             `a maximum-likelihood fit requires data without complete separation, got ${fit.divergingCoefficients.map((name) => `\`${name}\``).join(', ')} diverging with ${fit.boundaryRows} row(s) at fitted probability 0 or 1`,
           );
-    return { ...base, ...empty, status: fit.status, aliased_terms: aliasedTerms, baseline, warnings: [...warnings, issue] };
+    return { done: true, report: { ...base, ...empty, status: fit.status, aliased_terms: aliasedTerms, baseline: baselineNow(), warnings: [...warnings, issue] } };
   }
   if (fit.status === 'iteration_limit') {
     warnings.push(
@@ -156,42 +195,59 @@ export function fitModel(trials: Trials | GroupedTrials, options: FitModelOption
     );
   }
 
-  const likelihoodRatioTests = options.likelihoodRatioTests === false ? [] : likelihoodRatios(prepared, fit, progress);
   const folds = options.folds ?? 5;
-  // Each fold's fit starts from the full fit's (see refit-starts.ts).
-  const crossValidation = folds >= 2 ? crossValidate(prepared, folds, options.seed ?? 1, warnings, progress, { design: design.matrix, coefficients: fit.coefficients }) : null;
-  const calibration = calibrationTable(data, fit.fitted);
-
-  return {
-    ...base,
-    status: fit.status,
-    usable_for_compensation: fit.status === 'converged' && scaleEffect.increasing,
-    covariance_kind: robust === null ? 'model' : 'cluster_robust_cr1',
-    coefficients,
-    covariance: square(fit.covariance, design.matrix.columns),
-    robust_covariance: robust === null ? null : square(robust.covariance, design.matrix.columns),
-    statistics: {
-      iterations: fit.iterations,
-      observations: fit.observationCount,
-      deviance: fit.deviance,
-      null_deviance: fit.nullDeviance,
-      df_residual: fit.dfResidual,
-      df_null: fit.dfNull,
-      log_likelihood: fit.logLikelihood,
-      aic: fit.aic,
-      bic: fit.bic,
-      mcfadden_r2: fit.mcfaddenR2,
-      tjur_r2: fit.tjurR2,
-      brier: fit.brierScore,
-      r_squared: null,
-      residual_sd: null,
-    },
-    likelihood_ratio_tests: likelihoodRatioTests,
-    cross_validation: crossValidation,
-    calibration,
-    scale_effect: scaleEffect,
-    baseline,
-    aliased_terms: [],
-    warnings,
+  const seed = options.seed ?? 1;
+  const assignment = folds >= 2 ? assignFolds(data, folds, seed) : null;
+  const context: RefitContext = {
+    prepared,
+    full: { names: fit.names, coefficients: fit.coefficients, covariance: fit.covariance, deviance: fit.deviance },
+    assignment,
+    // Each fold's fit starts from the full fit's (see refit-starts.ts).
+    foldStarts: assignment === null ? null : foldStartsOf(prepared, assignment, { design: design.matrix, coefficients: fit.coefficients }),
   };
+  const jobs: RefitJob[] = [
+    ...(options.likelihoodRatioTests === false ? [] : testedFactors(prepared).map((factor) => ({ kind: 'reduced' as const, factor }))),
+    ...(options.baseline === false ? [] : [{ kind: 'baseline' as const }]),
+    ...Array.from({ length: assignment?.folds ?? 0 }, (_, fold) => ({ kind: 'fold' as const, fold })),
+  ];
+  const calibration = calibrationTable(data, fit.fitted);
+  const finish = (results: readonly RefitResult[]): FitReport => {
+    const likelihoodRatioTests = results.flatMap((result) => (result.kind === 'reduced' ? [result.test] : []));
+    const baseline = results.find((result) => result.kind === 'baseline')?.baseline ?? null;
+    const foldFits = results.flatMap((result) => (result.kind === 'fold' ? [result.fit] : []));
+    const crossValidation = assignment === null ? null : assembleCrossValidation(prepared, assignment, seed, foldFits, warnings);
+    return {
+      ...base,
+      status: fit.status,
+      usable_for_compensation: fit.status === 'converged' && scaleEffect.increasing,
+      covariance_kind: robust === null ? 'model' : 'cluster_robust_cr1',
+      coefficients,
+      covariance: square(fit.covariance, design.matrix.columns),
+      robust_covariance: robust === null ? null : square(robust.covariance, design.matrix.columns),
+      statistics: {
+        iterations: fit.iterations,
+        observations: fit.observationCount,
+        deviance: fit.deviance,
+        null_deviance: fit.nullDeviance,
+        df_residual: fit.dfResidual,
+        df_null: fit.dfNull,
+        log_likelihood: fit.logLikelihood,
+        aic: fit.aic,
+        bic: fit.bic,
+        mcfadden_r2: fit.mcfaddenR2,
+        tjur_r2: fit.tjurR2,
+        brier: fit.brierScore,
+        r_squared: null,
+        residual_sd: null,
+      },
+      likelihood_ratio_tests: likelihoodRatioTests,
+      cross_validation: crossValidation,
+      calibration,
+      scale_effect: scaleEffect,
+      baseline,
+      aliased_terms: [],
+      warnings,
+    };
+  };
+  return { done: false, context, jobs, design, finish };
 }

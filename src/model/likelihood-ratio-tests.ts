@@ -8,8 +8,7 @@
  * Mathematical Statistics* 9(1), 60-62; McCullagh & Nelder 1989, §4.4.3).
  */
 import { chiSquareUpperTail } from '../stats/distributions.js';
-import type { BinomialFitEstimated } from './binomial-fit-types.js';
-import { buildDesign } from './design.js';
+import { type TermDesign, buildDesign, designColumnsOf } from './design.js';
 import type { LikelihoodRatioTest } from './fit-report-types.js';
 import { type Prepared, runBinomial } from './prepared-fit.js';
 import { reducedStart } from './refit-starts.js';
@@ -27,31 +26,39 @@ const FACTORS = ['latency', 'scale', 'difficulty'] as const;
  */
 const REDUCED_TOLERANCE = 1e-5;
 
-export function likelihoodRatios(prepared: Prepared, full: BinomialFitEstimated, progress: (stage: string) => void): LikelihoodRatioTest[] {
-  const tests: LikelihoodRatioTest[] = [];
-  for (const factor of FACTORS) {
-    const dropped = prepared.terms.filter((term) => term !== 'intercept' && termFactors(term)[factor]);
-    if (dropped.length === 0) continue;
-    const kept = prepared.terms.filter((term) => !dropped.includes(term));
-    if (kept.length === 0) {
-      tests.push({ factor, status: 'not_tested', dropped_terms: dropped, reason: 'no term is left once the factor is dropped' });
-      continue;
-    }
-    progress(`likelihood ratio: ${factor}`);
-    const reducedDesign = buildDesign(prepared.data, kept, prepared.coding);
-    // Started from the constrained one-step estimate (refit-starts.ts), else from the full fit's
-    // estimates of the columns it keeps: closer starts than R's, the same optimum.
-    const start =
-      reducedStart(full, reducedDesign.matrix.names) ??
-      Float64Array.from(reducedDesign.matrix.names, (name) => full.coefficients[full.names.indexOf(name)] ?? 0);
-    const reduced = runBinomial(prepared, prepared.data, reducedDesign, false, start, prepared.link === 'logit' ? REDUCED_TOLERANCE : undefined);
-    if (reduced.status !== 'converged') {
-      tests.push({ factor, status: 'not_tested', dropped_terms: dropped, reason: `the reduced model did not converge (${reduced.status})` });
-      continue;
-    }
-    const df = full.coefficients.length - reduced.coefficients.length;
-    const statistic = Math.max(0, reduced.deviance - full.deviance);
-    tests.push({ factor, status: 'tested', dropped_terms: dropped, df, statistic, p_value: chiSquareUpperTail(statistic, df) });
+/** A factor the tests drop, and the terms that go with it. */
+export type TestedFactor = (typeof FACTORS)[number];
+
+/** The factors the terms contain (in report order): one test, and one refit, each. */
+export function testedFactors(prepared: Prepared): TestedFactor[] {
+  return FACTORS.filter((factor) => prepared.terms.some((term) => term !== 'intercept' && termFactors(term)[factor]));
+}
+
+/** The full fit, as a reduced fit needs it (plain data: it crosses to a worker thread). */
+export interface FullEstimates {
+  readonly names: readonly string[];
+  readonly coefficients: Float64Array;
+  readonly covariance: Float64Array;
+  readonly deviance: number;
+}
+
+/** The likelihood-ratio test of `factor`: the reduced model refitted on the same rows (`design`: the full design, when the caller has it). */
+export function likelihoodRatioTest(prepared: Prepared, full: FullEstimates, factor: TestedFactor, design?: TermDesign): LikelihoodRatioTest {
+  const dropped = prepared.terms.filter((term) => term !== 'intercept' && termFactors(term)[factor]);
+  const kept = prepared.terms.filter((term) => !dropped.includes(term));
+  if (kept.length === 0) return { factor, status: 'not_tested', dropped_terms: dropped, reason: 'no term is left once the factor is dropped' };
+  // The reduced design's columns are the full design's, copied when the caller has it.
+  const reducedDesign = (design === undefined ? null : designColumnsOf(design, kept, prepared.coding)) ?? buildDesign(prepared.data, kept, prepared.coding);
+  // Started from the constrained one-step estimate (refit-starts.ts), else from the full fit's
+  // estimates of the columns it keeps: closer starts than R's, the same optimum.
+  const start =
+    reducedStart(full, reducedDesign.matrix.names) ??
+    Float64Array.from(reducedDesign.matrix.names, (name) => full.coefficients[full.names.indexOf(name)] ?? 0);
+  const reduced = runBinomial(prepared, prepared.data, reducedDesign, false, start, prepared.link === 'logit' ? REDUCED_TOLERANCE : undefined);
+  if (reduced.status !== 'converged') {
+    return { factor, status: 'not_tested', dropped_terms: dropped, reason: `the reduced model did not converge (${reduced.status})` };
   }
-  return tests;
+  const df = full.coefficients.length - reduced.coefficients.length;
+  const statistic = Math.max(0, reduced.deviance - full.deviance);
+  return { factor, status: 'tested', dropped_terms: dropped, df, statistic, p_value: chiSquareUpperTail(statistic, df) };
 }

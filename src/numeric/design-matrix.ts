@@ -86,6 +86,18 @@ export function selectRows(design: DesignMatrix, keep: ArrayLike<boolean>): Desi
   return { rows, columns: design.columns, names: design.names, values };
 }
 
+/** The rows `indices` of `design`, in that order (column-major, like every design). */
+export function gatherRows(design: DesignMatrix, indices: Int32Array): DesignMatrix {
+  const rows = indices.length;
+  const values = new Float64Array(rows * design.columns);
+  for (let j = 0; j < design.columns; j += 1) {
+    const from = j * design.rows;
+    const to = j * rows;
+    for (let r = 0; r < rows; r += 1) values[to + r] = design.values[from + (indices[r] as number)] as number;
+  }
+  return { rows, columns: design.columns, names: design.names, values };
+}
+
 /**
  * Whether the column space of `design` contains the constant vector through
  * a column that is constant and non-zero over every row (R's "model has an

@@ -62,6 +62,15 @@ describe('lagparity field-check', () => {
     expect(document.data.sha256).toMatch(/^[0-9a-f]{64}$/);
   });
 
+  it('gives the same document, byte for byte, with its calibration fits on one thread or on two (--threads)', () => {
+    const one = runCli(['field-check', live, '--model', model, '--rules', rules, '--json', '--threads', '1']);
+    const two = runCli(['field-check', live, '--model', model, '--rules', rules, '--json', '--threads', '2']);
+    expect(one.status).toBe(1);
+    expect(two.status).toBe(1);
+    expect(two.stdout).toBe(one.stdout);
+    expect(runCli(['field-check', live, '--model', model, '--threads', 'many']).stderr).toBe('--threads: error invalid_option: `--threads` requires a whole number from 1 to 256, got "many"\n');
+  });
+
   it('exits 0 when compensation holds and the model is kept', () => {
     const season = holdingSeason();
     const run = runCli(['field-check', season.file, '--model', season.modelFile, '--rules', season.rulesFile, '--bands', '40,80,120']);

@@ -27,6 +27,17 @@ describe('lagparity fit', () => {
     expect(run.stderr).toBe('playtest-trials.csv:player: warning few_clusters: `cluster` by player requires at least 40 players for trustworthy robust errors, got 36; with few clusters CR1 errors are biased low (Cameron and Miller 2015)\n');
   });
 
+  it('gives the same result, byte for byte, with its refits on one thread or on two (--threads), and refuses a bad --threads', () => {
+    const one = runCli(['fit', trials, '--json', '--threads', '1']);
+    const two = runCli(['fit', trials, '--json', '--threads', '2']);
+    expect(one.status, one.stderr).toBe(0);
+    expect(two.status, two.stderr).toBe(0);
+    expect(two.stdout).toBe(one.stdout);
+    const bad = runCli(['fit', trials, '--threads', '0']);
+    expect(bad.status).toBe(2);
+    expect(bad.stderr).toBe('--threads: error invalid_option: `--threads` requires a whole number from 1 to 256, got "0"\n');
+  });
+
   it('writes the whole result as one JSON document with --json', () => {
     const run = runCli(['fit', trials, '--json', '--folds', '0', '--cluster', 'none']);
     expect(run.status, run.stderr).toBe(0);

@@ -1,0 +1,53 @@
+/**
+ * The refits of a fit's report as independent jobs: the least-squares
+ * baseline, one reduced model per likelihood-ratio test, one fit per
+ * cross-validation fold. Each job needs only the {@link RefitContext}
+ * (plain data: it crosses to a worker thread by structured clone) and gives
+ * the same result wherever it runs, so the report does not depend on how
+ * many threads ran them (`fit-model.ts` runs them in turn,
+ * `fit-model-threads.ts` on worker threads as well).
+ */
+import { type FoldAssignment, type FoldFit, fitFold } from './cross-validation.js';
+import { type TermDesign, buildDesign } from './design.js';
+import type { LeastSquaresBaseline, LikelihoodRatioTest } from './fit-report-types.js';
+import { leastSquaresBaseline } from './least-squares-baseline.js';
+import { type FullEstimates, type TestedFactor, likelihoodRatioTest } from './likelihood-ratio-tests.js';
+import type { Prepared } from './prepared-fit.js';
+
+/** What every refit of one report shares. */
+export interface RefitContext {
+  readonly prepared: Prepared;
+  readonly full: FullEstimates;
+  /** The folds, when the report cross-validates. */
+  readonly assignment: FoldAssignment | null;
+  /** Each fold's start (null: the full estimates). */
+  readonly foldStarts: readonly (Float64Array | null)[] | null;
+}
+
+export type RefitJob = { readonly kind: 'baseline' } | { readonly kind: 'reduced'; readonly factor: TestedFactor } | { readonly kind: 'fold'; readonly fold: number };
+
+export type RefitResult =
+  | { readonly kind: 'baseline'; readonly baseline: LeastSquaresBaseline | null }
+  | { readonly kind: 'reduced'; readonly test: LikelihoodRatioTest }
+  | { readonly kind: 'fold'; readonly fold: number; readonly fit: FoldFit };
+
+/** Run one job on the full design (`fullDesign(context)`; a thread builds it once for all its jobs). */
+export function runRefit(context: RefitContext, job: RefitJob, design: TermDesign): RefitResult {
+  const { prepared } = context;
+  if (job.kind === 'baseline') return { kind: 'baseline', baseline: leastSquaresBaseline(prepared, design) };
+  if (job.kind === 'reduced') return { kind: 'reduced', test: likelihoodRatioTest(prepared, context.full, job.factor, design) };
+  const assignment = context.assignment as FoldAssignment;
+  return { kind: 'fold', fold: job.fold, fit: fitFold(prepared, assignment, job.fold, context.foldStarts?.[job.fold] ?? context.full.coefficients, design) };
+}
+
+/** The full fit's design, built from the context's rows (the same values the fit had). */
+export function fullDesign(context: RefitContext): TermDesign {
+  return buildDesign(context.prepared.data, context.prepared.terms, context.prepared.coding);
+}
+
+/** What a job is, for a progress line. */
+export function refitLabel(job: RefitJob, folds: number): string {
+  if (job.kind === 'baseline') return 'least-squares baseline';
+  if (job.kind === 'reduced') return `likelihood ratio: ${job.factor}`;
+  return `fold ${job.fold + 1} of ${folds}`;
+}
