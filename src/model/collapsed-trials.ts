@@ -42,11 +42,6 @@ export interface GroupedTrials {
   readonly groups: CollapsedTrials;
 }
 
-/** The rows of a collapsed set where `keep[i]` is non-zero (for cross-validation folds). */
-export function selectCollapsed(data: CollapsedTrials, keep: Uint8Array): CollapsedTrials {
-  return gatherCollapsed(data, keptIndices(keep, data.rows));
-}
-
 /** Indices i < `rows` with `keep[i]` non-zero, ascending. */
 export function keptIndices(keep: Uint8Array, rows: number): Int32Array {
   let count = 0;
@@ -56,7 +51,7 @@ export function keptIndices(keep: Uint8Array, rows: number): Int32Array {
   return indices;
 }
 
-/** The rows `indices` of a collapsed set, in that order. */
+/** The rows `indices` of a collapsed set, in that order (a fold's training or held-out rows). */
 export function gatherCollapsed(data: CollapsedTrials, indices: Int32Array): CollapsedTrials {
   const count = indices.length;
   return {
