@@ -12,7 +12,7 @@ export function registerFieldCheck(program: Command): void {
     .option('--margin <gap>', 'the largest gap in hit probability, either way, that counts as equal play', '0.02')
     .option('--bands <cuts>', 'latency band cut points in ms (the last band is open)', '40,80,120,160,200')
     .option('--attribute <kind>', 'what the live scales multiplied, hit_area or timing_window (checked against the model\'s attribute)')
-    .option('--threads <n>', 'threads for the calibration fits (default: the processors available); the answer does not depend on it')
+    .option('--threads <n>', 'threads for the calibration fits (default: the processors available, at most 4; each worker holds its own copy of the data); the answer does not depend on it')
     .option('--json', 'write one JSON document (lagparity/field-check@1, schema in docs/schemas/) to stdout')
     .addHelpText(
       'after',

@@ -3,7 +3,7 @@ import { error, show } from '../issues.js';
 import { checkTelemetry, parseFieldSettings } from './field-inputs.js';
 import { loadModel, loadRules } from './inputs.js';
 import { EXIT_BAD_INPUT, EXIT_FAILED_CHECK, EXIT_OK, reportIssues, writeOut } from './output.js';
-import { threadCount } from './thread-count.js';
+import { FIT_THREADS_CAP, threadCount } from './thread-count.js';
 
 export interface FieldCheckOptions {
   model: string;
@@ -22,7 +22,7 @@ export async function runFieldCheck(telemetry: string, options: FieldCheckOption
   if (attribute !== undefined && attribute !== 'hit_area' && attribute !== 'timing_window') {
     issues.push(error('invalid_option', '--attribute', `\`--attribute\` requires hit_area or timing_window, got ${show(attribute)}`));
   }
-  const threads = threadCount(options.threads, issues);
+  const threads = threadCount(options.threads, issues, FIT_THREADS_CAP);
   if (issues.length > 0 || !settings.ok) {
     reportIssues(issues);
     return EXIT_BAD_INPUT;

@@ -21,7 +21,7 @@ export function registerFit(program: Command): void {
     .option('--family <name>', 'binomial, or least_squares (OLS on per-round accuracy; a baseline, not written as a model)', 'binomial')
     .option('--latency-step <ms>', 'group latencies to this resolution in ms before fitting (through DuckDB, as `grouping-sql` prints it); default 1 for Parquet and globs, exact for one CSV file')
     .option('--counts <kind>', '`hits`/`attempts` rows are `rounds` (each a recorded round: grouped likelihood) or `attempts` (counts of independent attempts, e.g. the output of `grouping-sql`: fitted as those attempts)', 'rounds')
-    .option('--threads <n>', 'threads for the refits (likelihood-ratio tests, folds, baseline; default: the processors available); the answer does not depend on it')
+    .option('--threads <n>', 'threads for the refits (likelihood-ratio tests, folds, baseline; default: the processors available, at most 4; each worker holds its own copy of the data); the answer does not depend on it')
     .option('--json', 'write the whole result as one JSON document (lagparity/fit-result@1) to stdout')
     .option('--force', 'replace an existing --out file')
     .addHelpText(

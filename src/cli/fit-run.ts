@@ -11,7 +11,7 @@ import { EXIT_BAD_INPUT, EXIT_OK, reportIssues, writeOut } from './output.js';
 import { progressLine } from './progress.js';
 import { readGrouped } from './read-grouped.js';
 import { latencyStepOption } from './latency-step-option.js';
-import { threadCount } from './thread-count.js';
+import { FIT_THREADS_CAP, threadCount } from './thread-count.js';
 
 export const FIT_RESULT_FORMAT = 'lagparity/fit-result@1';
 
@@ -117,7 +117,7 @@ export async function runFit(path: string, options: FitOptions): Promise<number>
   if (options.counts !== 'rounds' && options.counts !== 'attempts') {
     issues.push(error('invalid_option', '--counts', `\`--counts\` requires rounds or attempts, got ${show(options.counts)}`));
   }
-  const threads = threadCount(options.threads, issues);
+  const threads = threadCount(options.threads, issues, FIT_THREADS_CAP);
   if (issues.length > 0) {
     reportIssues(issues);
     return EXIT_BAD_INPUT;

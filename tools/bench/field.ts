@@ -5,8 +5,8 @@
  * bench's "one fit with SEs", clustered by player and not) and the default
  * `lagparity fit FILE`, measured in the same run. The check runs four fits
  * (band offsets, calibration in the large, calibration slope, the refit;
- * the last three on a worker thread, `--threads` being the processors
- * available by default) where the first reference runs one.
+ * the last three on worker threads, by default as many as the processors
+ * available, at most 4) where the first reference runs one.
  *
  * The rows are per-attempt (`hit`), drawn with a seeded source by
  * tools/simulate-season.ts: 2,000 players (home latency 8-150 ms, skill

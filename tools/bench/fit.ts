@@ -26,8 +26,8 @@
  *    plain fit, a quarter of R's peak memory.
  * 2. "default command": `fit FILE --out ...` with the defaults (CR1 by
  *    player, 3 likelihood-ratio refits, 5 cross-validation refits, the
- *    least-squares baseline, the refits on `--threads` = the processors
- *    available): the target is at most the faster peer's plain fit.
+ *    least-squares baseline, the refits on the default `--threads`: the
+ *    processors available, at most 4): the target is at most the faster peer's plain fit.
  * 3. R glm and 4. statsmodels GLM, plain fits (read, fit, model standard
  *    errors); their cluster-robust errors (sandwich::vcovCL, statsmodels'
  *    cov_type "cluster") are timed with `--peer-cr1` and printed, not judged.
