@@ -23,7 +23,7 @@ interface JobsData<C, J> {
   readonly claims: Int32Array;
 }
 
-type WorkerMessage<R> = { readonly index: number; readonly result: R } | { readonly index: number; readonly error: string } | { readonly done: true };
+type WorkerMessage<R> = { readonly index: number; readonly result: R } | { readonly done: true };
 
 export interface JobThreads {
   /** Threads in all, the calling one included (1: no worker). */
@@ -56,7 +56,7 @@ export async function runJobsOnThreads<C, J, R>(context: C, jobs: readonly J[], 
       new Promise<void>((resolve) => {
         worker.on('message', (message: WorkerMessage<R>) => {
           if ('done' in message) resolve();
-          else if ('result' in message) {
+          else {
             results[message.index] = message.result;
             options.onWorkerResult?.(message.index);
           }
@@ -91,8 +91,8 @@ export function serveJobs<C, J, R>(prepare: (context: C) => (job: J) => R): void
   for (let index = Atomics.add(claims, 0, 1); index < jobs.length; index = Atomics.add(claims, 0, 1)) {
     try {
       parentPort?.postMessage({ index, result: run(jobs[index] as J) });
-    } catch (cause) {
-      parentPort?.postMessage({ index, error: cause instanceof Error ? cause.message : String(cause) });
+    } catch {
+      // No result: the calling thread runs this job again and meets the error itself.
     }
   }
   parentPort?.postMessage({ done: true });

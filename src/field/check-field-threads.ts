@@ -47,5 +47,6 @@ export async function checkFieldOnThreads(
       rates = stage.value.bandRates();
     },
   });
+  // callerFirst always ran by now; the fallback only satisfies the type checker (rates is set in a closure).
   return stage.value.finish(rates ?? stage.value.bandRates(), fits);
 }

@@ -111,7 +111,7 @@ function predictProbabilities(prepared: Prepared, design: TermDesign, coefficien
   return linear.map((value) => link.inverse(value));
 }
 
-function fitCoefficients(prepared: Prepared, data: CollapsedTrials, design: TermDesign, start: Float64Array | null): Omit<FoldFit, 'heldOut'> {
+function fitCoefficients(prepared: Prepared, data: CollapsedTrials, design: TermDesign, start: Float64Array | null): { readonly status: string; readonly coefficients: Float64Array | null } {
   if (prepared.family === 'least_squares') {
     const fit = fitLeastSquares({ design: design.matrix, response: accuracy(data), weights: leastSquaresWeights(prepared, data) });
     return { status: fit.status, coefficients: fit.status === 'fitted' ? fit.coefficients : null };
@@ -126,8 +126,7 @@ export type FoldAssignment = ReturnType<typeof assignFolds>;
 /** A fold's fit on its training rows: the estimates, or null when the fit gave none (`status` says why). */
 export interface FoldFit {
   readonly status: string;
-  readonly coefficients: Float64Array | null;
-  /** The fit's predictions for the fold's own (held-out) rows, in row order; null without estimates. */
+  /** The fit's predictions for the fold's own (held-out) rows, in row order; null when the fit gave no estimates. */
   readonly heldOut: Float64Array | null;
 }
 
@@ -153,24 +152,19 @@ function rowsOf(prepared: Prepared, indices: Int32Array, design: TermDesign | un
 export function fitFold(prepared: Prepared, assignment: FoldAssignment, fold: number, start: Float64Array | null, design?: TermDesign): FoldFit {
   const training = rowsOf(prepared, foldRows(assignment, fold, false), design);
   const fitted = fitCoefficients(prepared, training.data, training.design, start);
-  if (fitted.coefficients === null) return { ...fitted, heldOut: null };
+  if (fitted.coefficients === null) return { status: fitted.status, heldOut: null };
   const heldOut = rowsOf(prepared, foldRows(assignment, fold, true), design);
-  return { ...fitted, heldOut: predictProbabilities(prepared, heldOut.design, fitted.coefficients) };
+  return { status: fitted.status, heldOut: predictProbabilities(prepared, heldOut.design, fitted.coefficients) };
 }
 
 /**
- * Starting values of the folds' fits: one Newton step from the full fit's
- * estimates towards each fold's own (refit-starts.ts); null for the
- * least-squares family (solved directly) and without a full fit.
+ * Starting values of a binomial fit's folds: one Newton step from the full
+ * fit's estimates (`coefficients`, on its `design`) towards each fold's own
+ * (refit-starts.ts); null for a fold without one.
  */
-export function foldStartsOf(
-  prepared: Prepared,
-  assignment: FoldAssignment,
-  full: { readonly design: DesignMatrix; readonly coefficients: Float64Array } | null,
-): (Float64Array | null)[] | null {
+export function foldStartsOf(prepared: Prepared, assignment: FoldAssignment, design: DesignMatrix, coefficients: Float64Array): (Float64Array | null)[] {
   const { data } = prepared;
-  if (full === null || prepared.family !== 'binomial') return null;
-  return foldStarts({ design: full.design, successes: data.successes, trials: data.attempts, priorWeights: data.weight }, linkFor(prepared.link), full.coefficients, assignment.fold, assignment.folds);
+  return foldStarts({ design, successes: data.successes, trials: data.attempts, priorWeights: data.weight }, linkFor(prepared.link), coefficients, assignment.fold, assignment.folds);
 }
 
 /**

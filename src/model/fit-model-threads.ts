@@ -17,7 +17,7 @@ import type { Trials } from '../formats/trials-types.js';
 import type { GroupedTrials } from './collapsed-trials.js';
 import { beginFitModel, fitModel } from './fit-model.js';
 import type { FitModelOptions, FitReport } from './fit-report-types.js';
-import { refitLabel, runRefit } from './refit-jobs.js';
+import { refitLabel } from './refit-jobs.js';
 
 /** The worker script: beside this module, as tsc emits it and as the CLI bundle places it. */
 export const REFIT_WORKER_URL = new URL('./refit-worker.js', import.meta.url);
@@ -38,22 +38,13 @@ export async function fitModelOnThreads(
   if (threads <= 1) return fitModel(trials, options);
   const stage = beginFitModel(trials, options);
   if (stage.done) return stage.report;
-  const { context, jobs, design } = stage;
-  const progress = options.onProgress ?? (() => undefined);
+  const { context, jobs } = stage;
   const folds = context.assignment?.folds ?? 0;
-  const results = await runJobsOnThreads(
-    context,
-    jobs,
-    (job) => {
-      progress(refitLabel(job, folds));
-      return runRefit(context, job, design);
-    },
-    {
-      threads,
-      workerUrl,
-      callerTakesJobs: callerTakesRefits,
-      onWorkerResult: (index) => progress(`${refitLabel(jobs[index] as (typeof jobs)[number], folds)}: done on a worker thread`),
-    },
-  );
+  const results = await runJobsOnThreads(context, jobs, stage.run, {
+    threads,
+    workerUrl,
+    callerTakesJobs: callerTakesRefits,
+    onWorkerResult: (index) => options.onProgress?.(`${refitLabel(jobs[index] as (typeof jobs)[number], folds)}: done on a worker thread`),
+  });
   return stage.finish(results);
 }

@@ -49,7 +49,7 @@ import { groupTrials } from './collapse.js';
 import type { GroupedTrials } from './collapsed-trials.js';
 import { coefficientRows, square, termsOfColumns } from './coefficient-rows.js';
 import { assembleCrossValidation, assignFolds, calibrationTable, foldStartsOf } from './cross-validation.js';
-import { type TermDesign, buildDesign } from './design.js';
+import { buildDesign } from './design.js';
 import { FIT_REPORT_FORMAT, type FitModelOptions, type FitReport, noEstimates } from './fit-report-types.js';
 import { leastSquaresBaseline, leastSquaresReport } from './least-squares-baseline.js';
 import { testedFactors } from './likelihood-ratio-tests.js';
@@ -76,15 +76,7 @@ export const FEW_CLUSTERS = 40;
  */
 export function fitModel(trials: Trials | GroupedTrials, options: FitModelOptions = {}): FitReport {
   const stage = beginFitModel(trials, options);
-  if (stage.done) return stage.report;
-  const progress = options.onProgress ?? (() => undefined);
-  const folds = stage.context.assignment?.folds ?? 0;
-  return stage.finish(
-    stage.jobs.map((job) => {
-      progress(refitLabel(job, folds));
-      return runRefit(stage.context, job, stage.design);
-    }),
-  );
+  return stage.done ? stage.report : stage.finish(stage.jobs.map(stage.run));
 }
 
 /** A fit's report up to its refits: the report itself when there are none to run. */
@@ -96,8 +88,8 @@ export type FitStage =
       readonly context: RefitContext;
       /** The refits, in the order the report lists them. */
       readonly jobs: readonly RefitJob[];
-      /** The full design, for refits run on this thread. */
-      readonly design: TermDesign;
+      /** Run one refit on this thread (on the full design it already has), saying so to `onProgress`. */
+      run(job: RefitJob): RefitResult;
       /** The report, from the jobs' results (`results[i]` of `jobs[i]`). */
       finish(results: readonly RefitResult[]): FitReport;
     };
@@ -203,7 +195,7 @@ export function beginFitModel(trials: Trials | GroupedTrials, options: FitModelO
     full: { names: fit.names, coefficients: fit.coefficients, covariance: fit.covariance, deviance: fit.deviance },
     assignment,
     // Each fold's fit starts from the full fit's (see refit-starts.ts).
-    foldStarts: assignment === null ? null : foldStartsOf(prepared, assignment, { design: design.matrix, coefficients: fit.coefficients }),
+    foldStarts: assignment === null ? null : foldStartsOf(prepared, assignment, design.matrix, fit.coefficients),
   };
   const jobs: RefitJob[] = [
     ...(options.likelihoodRatioTests === false ? [] : testedFactors(prepared).map((factor) => ({ kind: 'reduced' as const, factor }))),
@@ -249,5 +241,9 @@ export function beginFitModel(trials: Trials | GroupedTrials, options: FitModelO
       warnings,
     };
   };
-  return { done: false, context, jobs, design, finish };
+  const run = (job: RefitJob): RefitResult => {
+    progress(refitLabel(job, assignment?.folds ?? 0));
+    return runRefit(context, job, design);
+  };
+  return { done: false, context, jobs, run, finish };
 }

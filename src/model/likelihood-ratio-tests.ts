@@ -42,13 +42,13 @@ export interface FullEstimates {
   readonly deviance: number;
 }
 
-/** The likelihood-ratio test of `factor`: the reduced model refitted on the same rows (`design`: the full design, when the caller has it). */
-export function likelihoodRatioTest(prepared: Prepared, full: FullEstimates, factor: TestedFactor, design?: TermDesign): LikelihoodRatioTest {
+/** The likelihood-ratio test of `factor`: the reduced model refitted on the same rows (`design`: the full fit's). */
+export function likelihoodRatioTest(prepared: Prepared, full: FullEstimates, factor: TestedFactor, design: TermDesign): LikelihoodRatioTest {
   const dropped = prepared.terms.filter((term) => term !== 'intercept' && termFactors(term)[factor]);
   const kept = prepared.terms.filter((term) => !dropped.includes(term));
   if (kept.length === 0) return { factor, status: 'not_tested', dropped_terms: dropped, reason: 'no term is left once the factor is dropped' };
-  // The reduced design's columns are the full design's, copied when the caller has it.
-  const reducedDesign = (design === undefined ? null : designColumnsOf(design, kept, prepared.coding)) ?? buildDesign(prepared.data, kept, prepared.coding);
+  // The reduced design's columns are the full design's, copied (built only should one be missing).
+  const reducedDesign = designColumnsOf(design, kept, prepared.coding) ?? buildDesign(prepared.data, kept, prepared.coding);
   // Started from the constrained one-step estimate (refit-starts.ts), else from the full fit's
   // estimates of the columns it keeps: closer starts than R's, the same optimum.
   const start =
