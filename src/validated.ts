@@ -18,7 +18,13 @@ const models = new WeakSet<object>();
 
 function deepFreeze<T>(value: T): T {
   if (value !== null && typeof value === 'object' && !Object.isFrozen(value)) {
-    for (const key of Object.keys(value)) deepFreeze((value as Record<string, unknown>)[key]);
+    // An array's entries by index (Object.keys would make a string per entry: a lobby's sample
+    // lists made that most of the freezing's cost); a number or string needs no freezing.
+    if (Array.isArray(value)) {
+      for (const entry of value as unknown[]) if (entry !== null && typeof entry === 'object') deepFreeze(entry);
+    } else {
+      for (const key of Object.keys(value)) deepFreeze((value as Record<string, unknown>)[key]);
+    }
     Object.freeze(value);
   }
   return value;

@@ -57,6 +57,18 @@ describe('safeParseLobby()', () => {
   it('refuses a non-object document', () => {
     expect(firstIssue([1, 2])?.location).toBe('lobby.json');
   });
+
+  it('returns a lobby frozen all the way down, sample lists included', () => {
+    const result = safeParseLobby({ ...base, players: [{ id: 'a', latency_ms: 20 }, { id: 'b', latency_ms: [30, 41] }] });
+    if (!result.ok) throw new Error('expected a valid lobby');
+    const players = result.value.players;
+    const samples = players[1]?.latency_ms as number[];
+    expect([Object.isFrozen(result.value), Object.isFrozen(players), Object.isFrozen(players[0]), Object.isFrozen(samples)]).toEqual([true, true, true, true]);
+    expect(() => samples.push(50)).toThrow(TypeError);
+    expect(() => {
+      samples[0] = -1;
+    }).toThrow(TypeError);
+  });
 });
 
 describe('parseLobby()', () => {
