@@ -79,21 +79,3 @@ export function buildDesign(
   });
   return { matrix: { rows: n, columns: columns.length, names: columns.map((column) => column.name), values }, columns };
 }
-
-/**
- * The design of `terms` taken from a design that holds all of their columns
- * (the full design, for a reduced model that drops terms): the same values as
- * {@link buildDesign} gives, copied instead of computed. Null when a column
- * is missing.
- */
-export function designColumnsOf(full: TermDesign, terms: readonly TermName[], coding: DifficultyCoding): TermDesign | null {
-  const columns = designColumns(terms, coding);
-  const { rows } = full.matrix;
-  const values = new Float64Array(rows * columns.length);
-  for (const [j, column] of columns.entries()) {
-    const from = full.matrix.names.indexOf(column.name);
-    if (from < 0) return null;
-    values.set(full.matrix.values.subarray(from * rows, (from + 1) * rows), j * rows);
-  }
-  return { matrix: { rows, columns: columns.length, names: columns.map((column) => column.name), values }, columns };
-}

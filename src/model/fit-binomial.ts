@@ -267,18 +267,7 @@ export function fitBinomial(data: BinomialData, options: BinomialFitOptions = {}
   if (data.clusters !== undefined && options.robust !== false) {
     const { indices, count } = compactClusters(data.clusters, keep);
     // Each cluster's score sum u_g, summed row by row as the scores are computed (no n-by-k array).
-    const clusterScores = new Float64Array(count * columns);
-    for (let i = 0; i < n; i += 1) {
-      const variance = (state.mu[i] as number) * (state.complement[i] as number);
-      if (!(variance > 0)) continue;
-      const factor =
-        ((rows.weights[i] as number) *
-          residualOf(rows.proportions[i] as number, state.mu[i] as number, state.complement[i] as number) *
-          link.derivative(linearPredictor[i] as number)) /
-        variance;
-      const at = (indices[i] as number) * columns;
-      for (let j = 0; j < columns; j += 1) clusterScores[at + j] = (clusterScores[at + j] as number) + (kept.values[j * n + i] as number) * factor;
-    }
+    const clusterScores = clusterScoreSums(kept, rows, state, link, linearPredictor, indices, count);
     const robustCovariance = sandwichOfClusterScores({
       bread: covariance,
       clusterScores,
@@ -336,6 +325,39 @@ export function fitBinomial(data: BinomialData, options: BinomialFitOptions = {}
     observationCount,
     robust,
   };
+}
+
+/**
+ * Each cluster's score sum u_g = sum over its rows of x_i w_i (y_i - mu_i) (dmu/deta)_i / (mu_i (1 - mu_i)),
+ * summed row by row as the scores are computed (no n-by-k array); rows whose variance underflows
+ * carry none. For the logit link dmu/deta is mu (1 - mu) itself, so a row's factor is w (y - mu)
+ * (no exp per row).
+ */
+function clusterScoreSums(
+  design: DesignMatrix,
+  rows: GlmRows,
+  state: { readonly mu: Float64Array; readonly complement: Float64Array },
+  link: Link,
+  linearPredictor: Float64Array,
+  indices: Int32Array,
+  count: number,
+): Float64Array {
+  const { rows: n, columns, values } = design;
+  const { mu, complement } = state;
+  const { weights, proportions } = rows;
+  const logit = link.name === 'logit';
+  const sums = new Float64Array(count * columns);
+  for (let i = 0; i < n; i += 1) {
+    const fitted = mu[i] as number;
+    const other = complement[i] as number;
+    const variance = fitted * other;
+    if (!(variance > 0)) continue;
+    const residual = (weights[i] as number) * residualOf(proportions[i] as number, fitted, other);
+    const factor = logit ? residual : (residual * link.derivative(linearPredictor[i] as number)) / variance;
+    const at = (indices[i] as number) * columns;
+    for (let j = 0; j < columns; j += 1) sums[at + j] = (sums[at + j] as number) + (values[j * n + i] as number) * factor;
+  }
+  return sums;
 }
 
 /**

@@ -52,7 +52,7 @@ import { assembleCrossValidation, assignFolds, calibrationTable, foldStartsOf } 
 import { buildDesign } from './design.js';
 import { FIT_REPORT_FORMAT, type FitModelOptions, type FitReport, noEstimates } from './fit-report-types.js';
 import { leastSquaresBaseline, leastSquaresReport } from './least-squares-baseline.js';
-import { testedFactors } from './likelihood-ratio-tests.js';
+import { bernoulliDeviance, testedFactors } from './likelihood-ratio-tests.js';
 import { countDistinct, prepare, runBinomial, structuralIssues } from './prepared-fit.js';
 import { type RefitContext, type RefitJob, type RefitResult, refitLabel, runRefit } from './refit-jobs.js';
 import { scaleEffectOf, trainingRanges } from './scale-effect.js';
@@ -192,7 +192,7 @@ export function beginFitModel(trials: Trials | GroupedTrials, options: FitModelO
   const assignment = folds >= 2 ? assignFolds(data, folds, seed) : null;
   const context: RefitContext = {
     prepared,
-    full: { names: fit.names, coefficients: fit.coefficients, covariance: fit.covariance, deviance: fit.deviance },
+    full: { names: fit.names, coefficients: fit.coefficients, covariance: fit.covariance, bernoulliDeviance: bernoulliDeviance(prepared, fit.deviance) },
     assignment,
     // Each fold's fit starts from the full fit's (see refit-starts.ts).
     foldStarts: assignment === null ? null : foldStartsOf(prepared, assignment, design.matrix, fit.coefficients),

@@ -3,15 +3,23 @@
  * that contains the factor is dropped, the model refitted on the same rows
  * (from the constrained one-step start of `refit-starts.ts`), and the deviance difference referred to
  * chi-square with the difference in the number of columns as degrees of
- * freedom (Wilks, S. S. (1938), The large-sample distribution of the
+ * freedom. The refit reads only the covariates its terms keep and needs no
+ * clusters, so it runs on the rows merged over the players and the dropped
+ * covariate (`collapseOver`): the same estimates and Bernoulli
+ * log-likelihood on far fewer rows, the statistic being twice the
+ * difference of the two Bernoulli log-likelihoods (the binomial
+ * coefficients and the saturated terms of per-round rows cancel between the
+ * two fits of the same data) (Wilks, S. S. (1938), The large-sample distribution of the
  * likelihood ratio for testing composite hypotheses, *Annals of
  * Mathematical Statistics* 9(1), 60-62; McCullagh & Nelder 1989, §4.4.3).
  */
 import { chiSquareUpperTail } from '../stats/distributions.js';
-import { type TermDesign, buildDesign, designColumnsOf } from './design.js';
+import { collapseOver } from './collapse.js';
+import { buildDesign } from './design.js';
 import type { LikelihoodRatioTest } from './fit-report-types.js';
 import { type Prepared, runBinomial } from './prepared-fit.js';
 import { reducedStart } from './refit-starts.js';
+import { glmRows } from './glm-rows.js';
 import { termFactors } from './terms.js';
 
 const FACTORS = ['latency', 'scale', 'difficulty'] as const;
@@ -39,26 +47,44 @@ export interface FullEstimates {
   readonly names: readonly string[];
   readonly coefficients: Float64Array;
   readonly covariance: Float64Array;
-  readonly deviance: number;
+  /** -2 x the full fit's Bernoulli log-likelihood (its deviance for a per-attempt fit; see {@link bernoulliDeviance}). */
+  readonly bernoulliDeviance: number;
 }
 
-/** The likelihood-ratio test of `factor`: the reduced model refitted on the same rows (`design`: the full fit's). */
-export function likelihoodRatioTest(prepared: Prepared, full: FullEstimates, factor: TestedFactor, design: TermDesign): LikelihoodRatioTest {
+/**
+ * -2 x the Bernoulli log-likelihood sum w [y log mu + (1 - y) log(1 - mu)] of a fit whose deviance
+ * is `deviance`: the deviance itself for the Bernoulli likelihood; for the grouped one, whose
+ * deviance is 2 (saturated - that log-likelihood), the deviance less twice the saturated kernel.
+ */
+export function bernoulliDeviance(prepared: Prepared, deviance: number): number {
+  if (prepared.likelihood === 'bernoulli') return deviance;
+  const { successes, attempts, weight } = prepared.data;
+  return deviance - 2 * glmRows(successes, attempts, weight, null).saturated;
+}
+
+/** The likelihood-ratio test of `factor`: the reduced model refitted on the same rows, merged over what it does not read. */
+export function likelihoodRatioTest(prepared: Prepared, full: FullEstimates, factor: TestedFactor): LikelihoodRatioTest {
   const dropped = prepared.terms.filter((term) => term !== 'intercept' && termFactors(term)[factor]);
   const kept = prepared.terms.filter((term) => !dropped.includes(term));
   if (kept.length === 0) return { factor, status: 'not_tested', dropped_terms: dropped, reason: 'no term is left once the factor is dropped' };
-  // The reduced design's columns are the full design's, copied (built only should one be missing).
-  const reducedDesign = designColumnsOf(design, kept, prepared.coding) ?? buildDesign(prepared.data, kept, prepared.coding);
+  const factors = kept.map(termFactors);
+  const rows = collapseOver(prepared.data, {
+    latency: factors.some((used) => used.latency),
+    scale: factors.some((used) => used.scale),
+    difficulty: factors.some((used) => used.difficulty),
+  });
+  const reducedDesign = buildDesign(rows, kept, prepared.coding);
   // Started from the constrained one-step estimate (refit-starts.ts), else from the full fit's
   // estimates of the columns it keeps: closer starts than R's, the same optimum.
   const start =
     reducedStart(full, reducedDesign.matrix.names) ??
     Float64Array.from(reducedDesign.matrix.names, (name) => full.coefficients[full.names.indexOf(name)] ?? 0);
-  const reduced = runBinomial(prepared, prepared.data, reducedDesign, false, start, prepared.link === 'logit' ? REDUCED_TOLERANCE : undefined);
+  const reduced = runBinomial({ ...prepared, likelihood: 'bernoulli' }, rows, reducedDesign, false, start, prepared.link === 'logit' ? REDUCED_TOLERANCE : undefined);
   if (reduced.status !== 'converged') {
     return { factor, status: 'not_tested', dropped_terms: dropped, reason: `the reduced model did not converge (${reduced.status})` };
   }
   const df = full.coefficients.length - reduced.coefficients.length;
-  const statistic = Math.max(0, reduced.deviance - full.deviance);
+  // The reduced fit's deviance is -2 x its Bernoulli log-likelihood.
+  const statistic = Math.max(0, reduced.deviance - full.bernoulliDeviance);
   return { factor, status: 'tested', dropped_terms: dropped, df, statistic, p_value: chiSquareUpperTail(statistic, df) };
 }

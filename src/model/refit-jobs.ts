@@ -35,7 +35,7 @@ export type RefitResult =
 export function runRefit(context: RefitContext, job: RefitJob, design: TermDesign): RefitResult {
   const { prepared } = context;
   if (job.kind === 'baseline') return { kind: 'baseline', baseline: leastSquaresBaseline(prepared, design) };
-  if (job.kind === 'reduced') return { kind: 'reduced', test: likelihoodRatioTest(prepared, context.full, job.factor, design) };
+  if (job.kind === 'reduced') return { kind: 'reduced', test: likelihoodRatioTest(prepared, context.full, job.factor) };
   const assignment = context.assignment as FoldAssignment;
   return { kind: 'fold', fold: job.fold, fit: fitFold(prepared, assignment, job.fold, context.foldStarts?.[job.fold] ?? context.full.coefficients, design) };
 }
