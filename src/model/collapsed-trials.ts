@@ -42,15 +42,6 @@ export interface GroupedTrials {
   readonly groups: CollapsedTrials;
 }
 
-/** Indices i < `rows` with `keep[i]` non-zero, ascending. */
-export function keptIndices(keep: Uint8Array, rows: number): Int32Array {
-  let count = 0;
-  for (let i = 0; i < rows; i += 1) if (keep[i] !== 0) count += 1;
-  const indices = new Int32Array(count);
-  for (let i = 0, r = 0; i < rows; i += 1) if (keep[i] !== 0) indices[r++] = i;
-  return indices;
-}
-
 /** The rows `indices` of a collapsed set, in that order (a fold's training or held-out rows). */
 export function gatherCollapsed(data: CollapsedTrials, indices: Int32Array): CollapsedTrials {
   const count = indices.length;
@@ -64,6 +55,20 @@ export function gatherCollapsed(data: CollapsedTrials, indices: Int32Array): Col
     attempts: gatherFloats(data.attempts, indices),
     weight: gatherFloats(data.weight, indices),
     sourceRows: count,
+  };
+}
+
+/** The counts a fit of collapsed rows reads besides its design (a fold's training rows, gathered without their covariates). */
+export type CountRows = Pick<CollapsedTrials, 'rows' | 'successes' | 'attempts' | 'weight' | 'player'>;
+
+/** The counts of rows `indices`, in that order, without players (a fit that does not cluster). */
+export function gatherCounts(data: CollapsedTrials, indices: Int32Array): CountRows {
+  return {
+    rows: indices.length,
+    successes: gatherFloats(data.successes, indices),
+    attempts: gatherFloats(data.attempts, indices),
+    weight: gatherFloats(data.weight, indices),
+    player: null,
   };
 }
 

@@ -15,7 +15,7 @@
 import { type Issue, warning } from '../issues.js';
 import { type DesignMatrix, gatherRows, multiply } from '../numeric/design-matrix.js';
 import { createRandomSource, shuffledIndices } from '../random.js';
-import { type CollapsedTrials, gatherCollapsed, keptIndices } from './collapsed-trials.js';
+import { type CollapsedTrials, type CountRows, gatherCollapsed, gatherCounts } from './collapsed-trials.js';
 import { type TermDesign, buildDesign } from './design.js';
 import { fitLeastSquares } from './fit-least-squares.js';
 import type { CalibrationBin, CrossValidation, FoldResult } from './fit-report-types.js';
@@ -105,13 +105,30 @@ class HeldOut extends CalibrationBins {
 }
 
 function predictProbabilities(prepared: Prepared, design: TermDesign, coefficients: ArrayLike<number>): Float64Array {
-  const linear = multiply(design.matrix, coefficients);
+  return probabilitiesOf(prepared, multiply(design.matrix, coefficients));
+}
+
+/** The linear predictor's probabilities (the predictor itself for least squares). */
+function probabilitiesOf(prepared: Prepared, linear: Float64Array): Float64Array {
   if (prepared.family === 'least_squares') return linear;
   const link = linkFor(prepared.link);
   return linear.map((value) => link.inverse(value));
 }
 
-function fitCoefficients(prepared: Prepared, data: CollapsedTrials, design: TermDesign, start: Float64Array | null): { readonly status: string; readonly coefficients: Float64Array | null } {
+/** X b at rows `indices` of `design`, each sum in the order `multiply` takes it (the same bits as multiplying the gathered rows). */
+function predictorAt(design: DesignMatrix, indices: Int32Array, coefficients: ArrayLike<number>): Float64Array {
+  const { rows, columns, values } = design;
+  const product = new Float64Array(indices.length);
+  for (let j = 0; j < columns; j += 1) {
+    const coefficient = coefficients[j] as number;
+    if (coefficient === 0) continue;
+    const offset = j * rows;
+    for (let r = 0; r < indices.length; r += 1) product[r] = (product[r] as number) + (values[offset + (indices[r] as number)] as number) * coefficient;
+  }
+  return product;
+}
+
+function fitCoefficients(prepared: Prepared, data: CountRows, design: TermDesign, start: Float64Array | null): { readonly status: string; readonly coefficients: Float64Array | null } {
   if (prepared.family === 'least_squares') {
     const fit = fitLeastSquares({ design: design.matrix, response: accuracy(data), weights: leastSquaresWeights(prepared, data) });
     return { status: fit.status, coefficients: fit.status === 'fitted' ? fit.coefficients : null };
@@ -130,31 +147,50 @@ export interface FoldFit {
   readonly heldOut: Float64Array | null;
 }
 
-/** The rows of fold `fold` (`heldOut`), or its training rows (all rows of other folds). */
-function foldRows(assignment: FoldAssignment, fold: number, heldOut: boolean): Int32Array {
+/** The rows of fold `fold` (`heldOut`) and its training rows (all rows of other folds), each ascending, from one sweep. */
+function foldSplit(assignment: FoldAssignment, fold: number): { readonly training: Int32Array; readonly heldOut: Int32Array } {
   const folds = assignment.fold;
-  const keep = new Uint8Array(folds.length);
-  for (let i = 0; i < folds.length; i += 1) keep[i] = (folds[i] === fold) === heldOut ? 1 : 0;
-  return keptIndices(keep, folds.length);
+  let held = 0;
+  for (let i = 0; i < folds.length; i += 1) if (folds[i] === fold) held += 1;
+  const training = new Int32Array(folds.length - held);
+  const heldOut = new Int32Array(held);
+  for (let i = 0, t = 0, h = 0; i < folds.length; i += 1) {
+    if (folds[i] === fold) heldOut[h++] = i;
+    else training[t++] = i;
+  }
+  return { training, heldOut };
 }
 
-/** Rows `indices` of the data, and of the full design when there is one (the same values buildDesign gives them). */
-function rowsOf(prepared: Prepared, indices: Int32Array, design: TermDesign | undefined): { readonly data: CollapsedTrials; readonly design: TermDesign } {
-  const data = gatherCollapsed(prepared.data, indices);
-  return { data, design: design === undefined ? buildDesign(data, prepared.terms, prepared.coding) : { matrix: gatherRows(design.matrix, indices), columns: design.columns } };
+/** The rows of fold `fold` alone, ascending. */
+function heldOutRows(assignment: FoldAssignment, fold: number): Int32Array {
+  const folds = assignment.fold;
+  let held = 0;
+  for (let i = 0; i < folds.length; i += 1) if (folds[i] === fold) held += 1;
+  const heldOut = new Int32Array(held);
+  for (let i = 0, h = 0; i < folds.length; i += 1) if (folds[i] === fold) heldOut[h++] = i;
+  return heldOut;
 }
 
 /**
  * Fit fold `fold` (0-based) on its training rows, from `start` (null: R's
- * starting values); `design` is the full design when the caller has it (its
- * rows are taken instead of building the fold's).
+ * starting values); `design` is the full design when the caller has it: the
+ * fold's training rows are then taken from it with their counts alone (a fold
+ * fit does not cluster), and the held-out predictions are computed on its
+ * rows in place. Without it, each set of rows is gathered and its design built.
  */
 export function fitFold(prepared: Prepared, assignment: FoldAssignment, fold: number, start: Float64Array | null, design?: TermDesign): FoldFit {
-  const training = rowsOf(prepared, foldRows(assignment, fold, false), design);
-  const fitted = fitCoefficients(prepared, training.data, training.design, start);
+  const { training, heldOut } = foldSplit(assignment, fold);
+  if (design === undefined) {
+    const trainingRows = gatherCollapsed(prepared.data, training);
+    const fitted = fitCoefficients(prepared, trainingRows, buildDesign(trainingRows, prepared.terms, prepared.coding), start);
+    if (fitted.coefficients === null) return { status: fitted.status, heldOut: null };
+    const heldOutRows = gatherCollapsed(prepared.data, heldOut);
+    return { status: fitted.status, heldOut: predictProbabilities(prepared, buildDesign(heldOutRows, prepared.terms, prepared.coding), fitted.coefficients) };
+  }
+  const trainingDesign: TermDesign = { matrix: gatherRows(design.matrix, training), columns: design.columns };
+  const fitted = fitCoefficients(prepared, gatherCounts(prepared.data, training), trainingDesign, start);
   if (fitted.coefficients === null) return { status: fitted.status, heldOut: null };
-  const heldOut = rowsOf(prepared, foldRows(assignment, fold, true), design);
-  return { status: fitted.status, heldOut: predictProbabilities(prepared, heldOut.design, fitted.coefficients) };
+  return { status: fitted.status, heldOut: probabilitiesOf(prepared, predictorAt(design.matrix, heldOut, fitted.coefficients)) };
 }
 
 /**
@@ -199,10 +235,16 @@ export function assembleCrossValidation(
   const total = new HeldOut();
   const foldResults: FoldResult[] = [];
   for (let fold = 0; fold < assignment.folds; fold += 1) {
-    const heldOut = gatherCollapsed(prepared.data, foldRows(assignment, fold, true));
-    const players = heldOut.player === null || assignment.heldOut === 'rows' ? null : new Set(heldOut.player).size;
+    const rows = heldOutRows(assignment, fold);
+    const { player, successes, attempts, weight: priors } = prepared.data;
+    let players: number | null = null;
+    if (player !== null && assignment.heldOut === 'players') {
+      const seen = new Set<number>();
+      for (let r = 0; r < rows.length; r += 1) seen.add(player[rows[r] as number] as number);
+      players = seen.size;
+    }
     let heldAttempts = 0;
-    for (let i = 0; i < heldOut.rows; i += 1) heldAttempts += heldOut.attempts[i] as number;
+    for (let r = 0; r < rows.length; r += 1) heldAttempts += attempts[rows[r] as number] as number;
     const fitted = fits[fold] as FoldFit;
     const probabilities = fitted.heldOut;
     if (probabilities === null) {
@@ -212,8 +254,9 @@ export function assembleCrossValidation(
     let logLoss = 0;
     let brier = 0;
     let weight = 0;
-    for (let i = 0; i < heldOut.rows; i += 1) {
-      const added = total.add(probabilities[i] as number, heldOut.successes[i] as number, heldOut.attempts[i] as number, heldOut.weight[i] as number);
+    for (let r = 0; r < rows.length; r += 1) {
+      const i = rows[r] as number;
+      const added = total.add(probabilities[r] as number, successes[i] as number, attempts[i] as number, priors[i] as number);
       logLoss += added.logLoss;
       brier += added.brier;
       weight += added.weight;
