@@ -1,11 +1,14 @@
 /**
  * The likelihood-ratio refits run on rows merged over the players and the
- * dropped covariate (`collapseOver`). Reference: the deviance difference of
- * the reduced and the full model each fitted by `fitBinomial` on the rows as
- * read (no merging), with their prior weights; for per-attempt rows the
- * Bernoulli deviance, for per-round rows the grouped one (McCullagh & Nelder
- * 1989, §4.4.3: the binomial coefficients and saturated terms cancel in the
- * difference). Invented data, drawn here from a seeded generator.
+ * dropped covariate, and the cross-validation folds on their training rows
+ * merged over the players (`collapseOver`). References: the deviance
+ * difference of the reduced and the full model each fitted by `fitBinomial`
+ * on the rows as read (no merging), with their prior weights; for
+ * per-attempt rows the Bernoulli deviance, for per-round rows the grouped
+ * one (McCullagh & Nelder 1989, §4.4.3: the binomial coefficients and
+ * saturated terms cancel in the difference); and each fold refitted by
+ * `fitBinomial` on its unmerged training rows, its held-out log loss summed
+ * by hand. Invented data, drawn here from a seeded generator.
  */
 import { describe, expect, it } from 'vitest';
 import { parseTrialsCsv } from '../../src/formats/trials-csv.js';
@@ -13,9 +16,10 @@ import type { Trials } from '../../src/formats/trials-types.js';
 import { unwrap } from '../../src/issues.js';
 import type { BinomialFitEstimated } from '../../src/model/binomial-fit-types.js';
 import { collapseOver, collapseTrials } from '../../src/model/collapse.js';
+import { assignFolds } from '../../src/model/cross-validation.js';
 import { fitBinomial } from '../../src/model/fit-binomial.js';
 import { fitModel } from '../../src/model/fit-model.js';
-import type { LinkName } from '../../src/model/links.js';
+import { type LinkName, linkFor } from '../../src/model/links.js';
 import { designMatrixFromColumns, interceptColumn } from '../../src/numeric/design-matrix.js';
 import { createRandomSource } from '../../src/random.js';
 
@@ -48,17 +52,22 @@ function estimated(fit: ReturnType<typeof fitBinomial>): BinomialFitEstimated {
   return fit;
 }
 
-/** The deviance of the terms' columns (a subset of the five below) fitted to the rows as read. */
-function directDeviance(trials: Trials, link: LinkName, kept: readonly string[]): number {
+/** The design columns of the five terms below, per row as read. */
+function rowColumns(trials: Trials): Record<string, number[]> {
   const latency = Array.from(trials.latency);
   const logScale = Array.from(trials.scale, Math.log);
   const difficulty = trials.difficulty.kind === 'numeric' ? Array.from(trials.difficulty.values) : [];
-  const columns: Record<string, number[]> = {
+  return {
     latency,
     log_scale: logScale,
     difficulty,
     latency_x_log_scale: latency.map((value, i) => value * (logScale[i] as number)),
   };
+}
+
+/** The deviance of the terms' columns (a subset of the five below) fitted to the rows as read. */
+function directDeviance(trials: Trials, link: LinkName, kept: readonly string[]): number {
+  const columns = rowColumns(trials);
   const design = designMatrixFromColumns([interceptColumn(trials.rows), ...kept.map((name) => ({ name, values: columns[name] as number[] }))]);
   const fit = fitBinomial(
     { design, successes: trials.successes, trials: trials.attempts, priorWeights: trials.weight ?? undefined },
@@ -104,4 +113,45 @@ describe('likelihood-ratio tests on merged rows', () => {
     expect(total(merged.successes)).toBe(total(trials.successes));
     expect(new Set(merged.latency)).toEqual(new Set([0]));
   });
+});
+
+describe('cross-validation folds on merged rows', () => {
+  for (const shape of ['attempts', 'rounds'] as const) {
+    it(`give the held-out log loss of each fold refitted on its unmerged rows (${shape}, probit, prior weights)`, () => {
+      const trials = unwrap(parseTrialsCsv(trialsCsv(shape, 2000, shape === 'attempts' ? 44 : 45), `${shape}.csv`));
+      const report = fitModel(trials, { terms: [...TERMS], link: 'probit', folds: 4, seed: 7, likelihoodRatioTests: false, baseline: false });
+      // The folds' rows: the same seeded assignment of players, mapped from the grouped rows back to the rows as read.
+      const grouped = collapseTrials(trials);
+      const foldOfPlayer = new Map<number, number>();
+      const assignment = assignFolds(grouped, 4, 7);
+      for (let g = 0; g < grouped.rows; g += 1) foldOfPlayer.set(grouped.player?.[g] as number, assignment.fold[g] as number);
+      const columns = rowColumns(trials);
+      const names = TERMS.slice(1);
+      const row = (i: number) => [1, ...names.map((name) => (columns[name] as number[])[i] as number)];
+      let loss = 0;
+      let weight = 0;
+      for (let fold = 0; fold < 4; fold += 1) {
+        const train: number[] = [];
+        const test: number[] = [];
+        for (let i = 0; i < trials.rows; i += 1) (foldOfPlayer.get(trials.player?.codes[i] as number) === fold ? test : train).push(i);
+        const design = designMatrixFromColumns(['a', ...names].map((name, j) => ({ name, values: train.map((i) => row(i)[j] as number) })));
+        const fit = estimated(
+          fitBinomial(
+            { design, successes: train.map((i) => trials.successes[i] as number), trials: train.map((i) => trials.attempts[i] as number), priorWeights: train.map((i) => trials.weight?.[i] ?? 1) },
+            { link: 'probit' },
+          ),
+        );
+        for (const i of test) {
+          const eta = row(i).reduce((sum, value, j) => sum + value * (fit.coefficients[j] as number), 0);
+          const p = Math.min(1 - 1e-15, Math.max(1e-15, linkFor('probit').inverse(eta)));
+          const prior = trials.weight?.[i] ?? 1;
+          const hits = trials.successes[i] as number;
+          const tries = trials.attempts[i] as number;
+          loss -= prior * (hits * Math.log(p) + (tries - hits) * Math.log1p(-p));
+          weight += prior * tries;
+        }
+      }
+      expect(report.cross_validation?.log_loss).toBeCloseTo(loss / weight, 9); // each fold refitted by hand with fitBinomial on unmerged rows
+    });
+  }
 });
