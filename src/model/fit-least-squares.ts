@@ -28,6 +28,17 @@ export interface LeastSquaresData {
   readonly weights?: ArrayLike<number>;
   /** Cluster index per row; when given, a CR1 block is reported. */
   readonly clusters?: ArrayLike<number>;
+  /**
+   * Rows that each stand for `counts[i]` observations at one design row
+   * (collapsed 0/1 attempts): `response[i]` is their weighted mean, the
+   * row's weight the sum of theirs, and `withinSumOfSquares[i]` their
+   * weighted sum of squares about that mean. The fit is then that of the
+   * observations themselves: the same coefficients, and a residual sum of
+   * squares, R^2, residual degrees of freedom, residual SD, standard errors
+   * and CR1 N that count observations, not rows (the within sums of squares
+   * added to the residual and total sums).
+   */
+  readonly groups?: { readonly counts: ArrayLike<number>; readonly withinSumOfSquares: ArrayLike<number> };
 }
 
 /** Cluster-robust covariance block (CR1). */
@@ -94,6 +105,14 @@ export function fitLeastSquares(data: LeastSquaresData): LeastSquaresFit {
     issues.push(...checkLength('weights', data.weights, rows), ...checkFinite('weights', data.weights, true));
   }
   if (data.clusters !== undefined) issues.push(...checkClusters(data.clusters, rows));
+  if (data.groups !== undefined) {
+    issues.push(
+      ...checkLength('groups.counts', data.groups.counts, rows),
+      ...checkFinite('groups.counts', data.groups.counts, true),
+      ...checkLength('groups.withinSumOfSquares', data.groups.withinSumOfSquares, rows),
+      ...checkFinite('groups.withinSumOfSquares', data.groups.withinSumOfSquares, true),
+    );
+  }
   if (issues.length > 0) throw new LagparityInputError(issues);
 
   const keep = Array.from({ length: rows }, (_, i) => (data.weights?.[i] ?? 1) > 0);
@@ -139,7 +158,19 @@ export function fitLeastSquares(data: LeastSquaresData): LeastSquaresFit {
     fitted[i] = (response[i] as number) - residual;
     residualSumOfSquares += (weights[i] as number) * residual * residual;
   }
-  const dfResidual = n - qr.rank;
+  // Summarised rows: the observations they stand for, and their spread about each row's mean.
+  let observations = n;
+  let within = 0;
+  if (data.groups !== undefined) {
+    observations = 0;
+    for (let i = 0; i < rows; i += 1) {
+      if (!keep[i]) continue;
+      observations += data.groups.counts[i] as number;
+      within += data.groups.withinSumOfSquares[i] as number;
+    }
+    residualSumOfSquares += within;
+  }
+  const dfResidual = observations - qr.rank;
   const unscaled = inverseCrossProduct(qr);
   const warnings: string[] = [];
   let covariance: Float64Array | null = null;
@@ -154,7 +185,7 @@ export function fitLeastSquares(data: LeastSquaresData): LeastSquaresFit {
     warnings.push('no residual degrees of freedom: standard errors are not defined');
   }
 
-  const rSquared = coefficientOfDetermination(response, weights, residualSumOfSquares, hasConstantColumn(kept));
+  const rSquared = coefficientOfDetermination(response, weights, residualSumOfSquares, within, hasConstantColumn(kept));
 
   let robust: LeastSquaresRobust | null = null;
   if (data.clusters !== undefined) {
@@ -169,7 +200,7 @@ export function fitLeastSquares(data: LeastSquaresData): LeastSquaresFit {
       scores,
       clusters: indices,
       clusterCount: count,
-      observationCount: n,
+      observationCount: observations,
       parameterCount: qr.rank,
     });
     if (robustCovariance === null) {
@@ -196,7 +227,7 @@ export function fitLeastSquares(data: LeastSquaresData): LeastSquaresFit {
     residualSumOfSquares,
     rSquared,
     dfResidual,
-    observations: n,
+    observations,
     fitted,
     residuals,
     robust,
@@ -216,12 +247,15 @@ function diagonalRoots(matrix: Float64Array, size: number): Float64Array {
 
 /**
  * R^2 = 1 - RSS / TSS, with TSS about the weighted mean when the model has an
- * intercept and about 0 otherwise (R `summary.lm`). Two-pass mean for accuracy.
+ * intercept and about 0 otherwise (R `summary.lm`), plus the spread `within`
+ * summarised rows (see `groups`) have about their own means. Two-pass mean
+ * for accuracy.
  */
 function coefficientOfDetermination(
   response: Float64Array,
   weights: Float64Array,
   residualSumOfSquares: number,
+  within: number,
   centred: boolean,
 ): number | null {
   let mean = 0;
@@ -233,7 +267,7 @@ function coefficientOfDetermination(
     }
     mean /= weightSum;
   }
-  let total = 0;
+  let total = within;
   for (let i = 0; i < response.length; i += 1) {
     const deviation = (response[i] as number) - mean;
     total += (weights[i] as number) * deviation * deviation;

@@ -14,10 +14,11 @@ import { calibrationTable, crossValidate } from './cross-validation.js';
 import type { TermDesign } from './design.js';
 import { fitLeastSquares } from './fit-least-squares.js';
 import { type CoefficientRow, type FitModelOptions, type FitReport, type LeastSquaresBaseline, noEstimates } from './fit-report-types.js';
-import { type Prepared, accuracy, leastSquaresWeights } from './prepared-fit.js';
+import { type Prepared, accuracy, leastSquaresGroups, leastSquaresWeights } from './prepared-fit.js';
 
 export function leastSquaresBaseline(prepared: Prepared, design: TermDesign): LeastSquaresBaseline | null {
-  const fit = fitLeastSquares({ design: design.matrix, response: accuracy(prepared.data), weights: leastSquaresWeights(prepared, prepared.data) });
+  const groups = leastSquaresGroups(prepared, prepared.data);
+  const fit = fitLeastSquares({ design: design.matrix, response: accuracy(prepared.data), weights: leastSquaresWeights(prepared, prepared.data), ...(groups === undefined ? {} : { groups }) });
   if (fit.status !== 'fitted') return null;
   return {
     family: 'least_squares',
@@ -42,11 +43,13 @@ export function leastSquaresReport(
 ): Omit<FitReport, 'format' | 'family' | 'link' | 'likelihood' | 'terms' | 'difficulty' | 'data' | 'training' | 'cluster' | 'baseline'> {
   const { data } = prepared;
   const clusters = prepared.clustered && data.player !== null ? data.player : undefined;
+  const groups = leastSquaresGroups(prepared, data);
   const fit = fitLeastSquares({
     design: design.matrix,
     response: accuracy(data),
     weights: leastSquaresWeights(prepared, data),
     ...(clusters === undefined ? {} : { clusters }),
+    ...(groups === undefined ? {} : { groups }),
   });
   if (fit.status !== 'fitted' || fit.standardErrors === null || fit.covariance === null) {
     const aliased = fit.status === 'fitted' ? [] : termsOfColumns(design, fit.aliased);

@@ -145,3 +145,20 @@ export function accuracy(data: CountRows): Float64Array {
 export function leastSquaresWeights(prepared: Prepared, data: CountRows): Float64Array {
   return prepared.likelihood === 'bernoulli' ? data.weight.map((value, i) => value * (data.attempts[i] as number)) : data.weight;
 }
+
+/**
+ * Per-attempt files: each collapsed row stands for its attempts, 0/1 outcomes whose weighted sum
+ * of squares about the row's accuracy y = s / k is w (s - s^2 / k) (s hits of k, prior weight w),
+ * so that least squares on the rows is least squares on the attempts (`fitLeastSquares`'s
+ * `groups`); per-round files: none (the rounds are the observations).
+ */
+export function leastSquaresGroups(prepared: Prepared, data: CountRows): { readonly counts: Float64Array; readonly withinSumOfSquares: Float64Array } | undefined {
+  if (prepared.likelihood !== 'bernoulli') return undefined;
+  const within = new Float64Array(data.rows);
+  for (let i = 0; i < data.rows; i += 1) {
+    const hits = data.successes[i] as number;
+    const attempts = data.attempts[i] as number;
+    within[i] = attempts > 0 ? (data.weight[i] as number) * (hits - (hits * hits) / attempts) : 0;
+  }
+  return { counts: data.attempts, withinSumOfSquares: within };
+}
