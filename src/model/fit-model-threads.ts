@@ -7,9 +7,12 @@
  * report places them in its own order, so the report is the same, bit for
  * bit, for any number of threads (tests compare them).
  *
- * The workers receive the prepared rows by structured clone (a copy: about
- * 50 MB on a million distinct rows) and build their own designs, so memory
- * grows by that and their fits' arrays while they run. CLI only: the
+ * The workers start before the full fit, so that their start (the prepared
+ * rows by structured clone, their own designs) and the least-squares
+ * baseline overlap it; the refits that need the full estimates or a fold's
+ * start wait for the calling thread to publish them (`shared-estimates.ts`).
+ * The copy is about 50 MB on a million distinct rows, so memory grows by
+ * that and the workers' fits' arrays while they run. CLI only: the
  * library's entry point never starts a thread.
  */
 import { runJobsOnThreads } from '../job-threads.js';
@@ -36,15 +39,21 @@ export async function fitModelOnThreads(
   { workerUrl = REFIT_WORKER_URL, callerTakesRefits = true }: RefitThreads = {},
 ): Promise<FitReport> {
   if (threads <= 1) return fitModel(trials, options);
-  const stage = beginFitModel(trials, options);
+  const stage = beginFitModel(trials, options, { shared: true });
   if (stage.done) return stage.report;
   const { context, jobs } = stage;
   const folds = context.assignment?.folds ?? 0;
+  // The workers start before the full fit: their start and the baseline overlap it, and the
+  // refits that need its estimates wait for them (shared-estimates.ts).
+  let ended: FitReport | null = null;
   const results = await runJobsOnThreads(context, jobs, stage.run, {
     threads,
     workerUrl,
     callerTakesJobs: callerTakesRefits,
+    callerFirst: () => {
+      ended = stage.fitFull();
+    },
     onWorkerResult: (index) => options.onProgress?.(`${refitLabel(jobs[index] as (typeof jobs)[number], folds)}: done on a worker thread`),
   });
-  return stage.finish(results);
+  return ended ?? stage.finish(results);
 }

@@ -53,6 +53,7 @@ import { buildDesign } from './design.js';
 import { FIT_REPORT_FORMAT, type FitModelOptions, type FitReport, noEstimates } from './fit-report-types.js';
 import { leastSquaresBaseline, leastSquaresReport } from './least-squares-baseline.js';
 import { bernoulliDeviance, testedFactors } from './likelihood-ratio-tests.js';
+import { abandonEstimates, publishFoldStarts, publishFull, sharedEstimates } from './shared-estimates.js';
 import { countDistinct, prepare, runBinomial, structuralIssues } from './prepared-fit.js';
 import { type RefitContext, type RefitJob, type RefitResult, refitLabel, runRefit } from './refit-jobs.js';
 import { scaleEffectOf, trainingRanges } from './scale-effect.js';
@@ -76,21 +77,28 @@ export const FEW_CLUSTERS = 40;
  */
 export function fitModel(trials: Trials | GroupedTrials, options: FitModelOptions = {}): FitReport {
   const stage = beginFitModel(trials, options);
-  return stage.done ? stage.report : stage.finish(stage.jobs.map(stage.run));
+  if (stage.done) return stage.report;
+  return stage.fitFull() ?? stage.finish(stage.jobs.map(stage.run));
 }
 
-/** A fit's report up to its refits: the report itself when there are none to run. */
+/** A fit's report up to its full fit and refits: the report itself when there is nothing to fit. */
 export type FitStage =
   | { readonly done: true; readonly report: FitReport }
   | {
       readonly done: false;
-      /** What the refits share (plain data). */
+      /** What the refits share (plain data, and the estimates they wait for). */
       readonly context: RefitContext;
-      /** The refits, in the order the report lists them. */
+      /** The refits: the baseline (which needs no estimate) first. */
       readonly jobs: readonly RefitJob[];
+      /**
+       * The full fit, its estimates and the folds' starts published to the refits as each is
+       * ready; the report itself when the fit ends it (separation, rank deficiency: no refits
+       * then, and jobs still waiting return at once), else null.
+       */
+      fitFull(): FitReport | null;
       /** Run one refit on this thread (on the full design it already has), saying so to `onProgress`. */
       run(job: RefitJob): RefitResult;
-      /** The report, from the jobs' results (`results[i]` of `jobs[i]`). */
+      /** The report, from the jobs' results (`results[i]` of `jobs[i]`), once `fitFull` gave null. */
       finish(results: readonly RefitResult[]): FitReport;
     };
 
@@ -100,7 +108,7 @@ export type FitStage =
  * with a function that finishes the report from their results: a caller can
  * run them anywhere (`fit-model-threads.ts` runs them on worker threads).
  */
-export function beginFitModel(trials: Trials | GroupedTrials, options: FitModelOptions = {}): FitStage {
+export function beginFitModel(trials: Trials | GroupedTrials, options: FitModelOptions = {}, { shared = false }: { readonly shared?: boolean } = {}): FitStage {
   const prepared = prepare('groups' in trials ? trials : groupTrials(trials), options);
   const { data, terms, coding, source } = prepared;
   const progress = options.onProgress ?? (() => undefined);
@@ -146,104 +154,133 @@ export function beginFitModel(trials: Trials | GroupedTrials, options: FitModelO
     progress('fit');
     return { done: true, report: { ...base, ...leastSquaresReport(prepared, design, warnings, progress, options), baseline } };
   }
-  progress('fit');
-  const fit = runBinomial(prepared, data, design);
-  if (fit.status === 'rank_deficient' || fit.status === 'separation') {
-    const aliasedTerms = fit.status === 'rank_deficient' ? termsOfColumns(design, fit.aliased) : [];
-    const issue =
-      fit.status === 'rank_deficient'
-        ? error(
-            'rank_deficient',
-            file,
-            `the terms require linearly independent design columns, got ${fit.aliased.map((name) => `\`${name}\``).join(', ')} aliased with earlier columns (terms ${aliasedTerms.map((term) => `\`${term}\``).join(', ')})`,
-          )
-        : error(
-            'separation',
-            file,
-            `a maximum-likelihood fit requires data without complete separation, got ${fit.divergingCoefficients.map((name) => `\`${name}\``).join(', ')} diverging with ${fit.boundaryRows} row(s) at fitted probability 0 or 1`,
-          );
-    return { done: true, report: { ...base, ...empty, status: fit.status, aliased_terms: aliasedTerms, baseline: baselineNow(), warnings: [...warnings, issue] } };
-  }
-  if (fit.status === 'iteration_limit') {
-    warnings.push(
-      warning('iteration_limit', file, `the fit requires convergence within ${prepared.maxIterations} iterations, got none; estimates are the last iterate and are not written as a model`),
-    );
-  }
-  for (const note of fit.warnings) {
-    if (!note.startsWith('`maxIterations`')) warnings.push(warning('fit_note', file, note));
-  }
-  const robust = fit.robust;
-  const coefficients = coefficientRows(design, fit);
-  const scaleEffect = scaleEffectOf(prepared, design, fit.coefficients, training);
-  if (!scaleEffect.increasing) {
-    warnings.push(
-      warning(
-        'scale_not_increasing',
-        file,
-        scaleEffect.smallest_slope === null
-          ? 'compensation requires a scale term, got terms without one; this model cannot be used for compensation'
-          : `compensation requires hit probability to increase with the scale over the training range, but the fitted scale effect is ${scaleEffect.smallest_slope.toPrecision(3)} at ${show(scaleEffect.at_latency_ms)} ms (difficulty ${show(scaleEffect.at_difficulty)}); this model cannot be used for compensation`,
-      ),
-    );
-  }
-
   const folds = options.folds ?? 5;
   const seed = options.seed ?? 1;
   const assignment = folds >= 2 ? assignFolds(data, folds, seed) : null;
-  const context: RefitContext = {
-    prepared,
-    full: { names: fit.names, coefficients: fit.coefficients, covariance: fit.covariance, bernoulliDeviance: bernoulliDeviance(prepared, fit.deviance) },
-    assignment,
-    // Each fold's fit starts from the full fit's (see refit-starts.ts).
-    foldStarts: assignment === null ? null : foldStartsOf(prepared, assignment, design.matrix, fit.coefficients),
-  };
+  const estimates = sharedEstimates(design.matrix.columns, assignment?.folds ?? 0, shared);
+  const context: RefitContext = { prepared, names: design.matrix.names, assignment, estimates };
   const jobs: RefitJob[] = [
-    ...(options.likelihoodRatioTests === false ? [] : testedFactors(prepared).map((factor) => ({ kind: 'reduced' as const, factor }))),
     ...(options.baseline === false ? [] : [{ kind: 'baseline' as const }]),
+    ...(options.likelihoodRatioTests === false ? [] : testedFactors(prepared).map((factor) => ({ kind: 'reduced' as const, factor }))),
     ...Array.from({ length: assignment?.folds ?? 0 }, (_, fold) => ({ kind: 'fold' as const, fold })),
   ];
-  const calibration = calibrationTable(data, fit.fitted);
-  const finish = (results: readonly RefitResult[]): FitReport => {
-    const likelihoodRatioTests = results.flatMap((result) => (result.kind === 'reduced' ? [result.test] : []));
-    const baseline = results.find((result) => result.kind === 'baseline')?.baseline ?? null;
-    const foldFits = results.flatMap((result) => (result.kind === 'fold' ? [result.fit] : []));
-    const crossValidation = assignment === null ? null : assembleCrossValidation(prepared, assignment, seed, foldFits, warnings);
-    return {
-      ...base,
-      status: fit.status,
-      usable_for_compensation: fit.status === 'converged' && scaleEffect.increasing,
-      covariance_kind: robust === null ? 'model' : 'cluster_robust_cr1',
-      coefficients,
-      covariance: square(fit.covariance, design.matrix.columns),
-      robust_covariance: robust === null ? null : square(robust.covariance, design.matrix.columns),
-      statistics: {
-        iterations: fit.iterations,
-        observations: fit.observationCount,
-        deviance: fit.deviance,
-        null_deviance: fit.nullDeviance,
-        df_residual: fit.dfResidual,
-        df_null: fit.dfNull,
-        log_likelihood: fit.logLikelihood,
-        aic: fit.aic,
-        bic: fit.bic,
-        mcfadden_r2: fit.mcfaddenR2,
-        tjur_r2: fit.tjurR2,
-        brier: fit.brierScore,
-        r_squared: null,
-        residual_sd: null,
-      },
-      likelihood_ratio_tests: likelihoodRatioTests,
-      cross_validation: crossValidation,
-      calibration,
-      scale_effect: scaleEffect,
-      baseline,
-      aliased_terms: [],
-      warnings,
-    };
-  };
   const run = (job: RefitJob): RefitResult => {
     progress(refitLabel(job, assignment?.folds ?? 0));
     return runRefit(context, job, design);
   };
-  return { done: false, context, jobs, run, finish };
+  let finish: ((results: readonly RefitResult[]) => FitReport) | null = null;
+  const fitFull = (): FitReport | null => {
+    let full: ReturnType<typeof fullReport>;
+    try {
+      full = fullReport();
+    } catch (cause) {
+      // Jobs waiting on another thread return at once; the error goes on to the caller.
+      abandonEstimates(estimates);
+      throw cause;
+    }
+    if (full.done) {
+      abandonEstimates(estimates);
+      return full.report;
+    }
+    finish = full.finish;
+    return null;
+  };
+  const fullReport = (): { readonly done: true; readonly report: FitReport } | { readonly done: false; readonly finish: (results: readonly RefitResult[]) => FitReport } => {
+    progress('fit');
+    const fit = runBinomial(prepared, data, design);
+    if (fit.status === 'rank_deficient' || fit.status === 'separation') {
+      const aliasedTerms = fit.status === 'rank_deficient' ? termsOfColumns(design, fit.aliased) : [];
+      const issue =
+        fit.status === 'rank_deficient'
+          ? error(
+              'rank_deficient',
+              file,
+              `the terms require linearly independent design columns, got ${fit.aliased.map((name) => `\`${name}\``).join(', ')} aliased with earlier columns (terms ${aliasedTerms.map((term) => `\`${term}\``).join(', ')})`,
+            )
+          : error(
+              'separation',
+              file,
+              `a maximum-likelihood fit requires data without complete separation, got ${fit.divergingCoefficients.map((name) => `\`${name}\``).join(', ')} diverging with ${fit.boundaryRows} row(s) at fitted probability 0 or 1`,
+            );
+      return { done: true, report: { ...base, ...empty, status: fit.status, aliased_terms: aliasedTerms, baseline: baselineNow(), warnings: [...warnings, issue] } };
+    }
+    if (fit.status === 'iteration_limit') {
+      warnings.push(
+        warning('iteration_limit', file, `the fit requires convergence within ${prepared.maxIterations} iterations, got none; estimates are the last iterate and are not written as a model`),
+      );
+    }
+    for (const note of fit.warnings) {
+      if (!note.startsWith('`maxIterations`')) warnings.push(warning('fit_note', file, note));
+    }
+    const robust = fit.robust;
+    const coefficients = coefficientRows(design, fit);
+    const scaleEffect = scaleEffectOf(prepared, design, fit.coefficients, training);
+    if (!scaleEffect.increasing) {
+      warnings.push(
+        warning(
+          'scale_not_increasing',
+          file,
+          scaleEffect.smallest_slope === null
+            ? 'compensation requires a scale term, got terms without one; this model cannot be used for compensation'
+            : `compensation requires hit probability to increase with the scale over the training range, but the fitted scale effect is ${scaleEffect.smallest_slope.toPrecision(3)} at ${show(scaleEffect.at_latency_ms)} ms (difficulty ${show(scaleEffect.at_difficulty)}); this model cannot be used for compensation`,
+        ),
+      );
+    }
+
+    // The refits may already be running (fit-model-threads.ts): the reduced models need the full
+    // estimates, the folds their starts (one Newton step from them, see refit-starts.ts).
+    publishFull(estimates, { coefficients: fit.coefficients, covariance: fit.covariance, bernoulliDeviance: bernoulliDeviance(prepared, fit.deviance) });
+    if (assignment !== null) publishFoldStarts(estimates, foldStartsOf(prepared, assignment, design.matrix, fit.coefficients));
+    const calibration = calibrationTable(data, fit.fitted);
+    const finishReport = (results: readonly RefitResult[]): FitReport => {
+      const likelihoodRatioTests = results.flatMap((result) => (result.kind === 'reduced' ? [result.test] : []));
+      const baseline = results.find((result) => result.kind === 'baseline')?.baseline ?? null;
+      const foldFits = results.flatMap((result) => (result.kind === 'fold' ? [result.fit] : []));
+      const crossValidation = assignment === null ? null : assembleCrossValidation(prepared, assignment, seed, foldFits, warnings);
+      return {
+        ...base,
+        status: fit.status,
+        usable_for_compensation: fit.status === 'converged' && scaleEffect.increasing,
+        covariance_kind: robust === null ? 'model' : 'cluster_robust_cr1',
+        coefficients,
+        covariance: square(fit.covariance, design.matrix.columns),
+        robust_covariance: robust === null ? null : square(robust.covariance, design.matrix.columns),
+        statistics: {
+          iterations: fit.iterations,
+          observations: fit.observationCount,
+          deviance: fit.deviance,
+          null_deviance: fit.nullDeviance,
+          df_residual: fit.dfResidual,
+          df_null: fit.dfNull,
+          log_likelihood: fit.logLikelihood,
+          aic: fit.aic,
+          bic: fit.bic,
+          mcfadden_r2: fit.mcfaddenR2,
+          tjur_r2: fit.tjurR2,
+          brier: fit.brierScore,
+          r_squared: null,
+          residual_sd: null,
+        },
+        likelihood_ratio_tests: likelihoodRatioTests,
+        cross_validation: crossValidation,
+        calibration,
+        scale_effect: scaleEffect,
+        baseline,
+        aliased_terms: [],
+        warnings,
+      };
+    };
+    return { done: false, finish: finishReport };
+  };
+  return {
+    done: false,
+    context,
+    jobs,
+    fitFull,
+    run,
+    finish: (results) => {
+      if (finish === null) throw new Error('finish requires fitFull to have returned null');
+      return finish(results);
+    },
+  };
 }

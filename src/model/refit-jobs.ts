@@ -11,17 +11,22 @@ import { type FoldAssignment, type FoldFit, fitFold } from './cross-validation.j
 import { type TermDesign, buildDesign } from './design.js';
 import type { LeastSquaresBaseline, LikelihoodRatioTest } from './fit-report-types.js';
 import { leastSquaresBaseline } from './least-squares-baseline.js';
-import { type FullEstimates, type TestedFactor, likelihoodRatioTest } from './likelihood-ratio-tests.js';
+import { type TestedFactor, likelihoodRatioTest } from './likelihood-ratio-tests.js';
 import type { Prepared } from './prepared-fit.js';
+import { type SharedEstimates, awaitFoldStart, awaitFull } from './shared-estimates.js';
 
 /** What every refit of one report shares. */
 export interface RefitContext {
   readonly prepared: Prepared;
-  readonly full: FullEstimates;
+  /** The full design's column names. */
+  readonly names: readonly string[];
   /** The folds, when the report cross-validates. */
   readonly assignment: FoldAssignment | null;
-  /** Each fold's start (null: the full estimates). */
-  readonly foldStarts: readonly (Float64Array | null)[] | null;
+  /**
+   * The full fit's estimates and each fold's start, published by the calling thread once it has
+   * them (`shared-estimates.ts`): a job that needs them waits for them.
+   */
+  readonly estimates: SharedEstimates;
 }
 
 export type RefitJob = { readonly kind: 'baseline' } | { readonly kind: 'reduced'; readonly factor: TestedFactor } | { readonly kind: 'fold'; readonly fold: number };
@@ -31,13 +36,22 @@ export type RefitResult =
   | { readonly kind: 'reduced'; readonly test: LikelihoodRatioTest }
   | { readonly kind: 'fold'; readonly fold: number; readonly fit: FoldFit };
 
-/** Run one job on the full design (`fullDesign(context)`; a thread builds it once for all its jobs). */
+/**
+ * Run one job on the full design (`fullDesign(context)`; a thread builds it once for all its jobs),
+ * waiting for the estimates it needs. When the full fit ended the report (no estimates will come),
+ * a job that needs them returns at once with a result nobody reads.
+ */
 export function runRefit(context: RefitContext, job: RefitJob, design: TermDesign): RefitResult {
   const { prepared } = context;
   if (job.kind === 'baseline') return { kind: 'baseline', baseline: leastSquaresBaseline(prepared, design) };
-  if (job.kind === 'reduced') return { kind: 'reduced', test: likelihoodRatioTest(prepared, context.full, job.factor) };
-  const assignment = context.assignment as FoldAssignment;
-  return { kind: 'fold', fold: job.fold, fit: fitFold(prepared, assignment, job.fold, context.foldStarts?.[job.fold] ?? context.full.coefficients, design) };
+  if (job.kind === 'reduced') {
+    const full = awaitFull(context.estimates, context.names);
+    if (full === null) return { kind: 'reduced', test: { factor: job.factor, status: 'not_tested', dropped_terms: [], reason: 'the full fit gave no estimates' } };
+    return { kind: 'reduced', test: likelihoodRatioTest(prepared, full, job.factor) };
+  }
+  const start = awaitFoldStart(context.estimates, job.fold);
+  if (start === null) return { kind: 'fold', fold: job.fold, fit: { status: 'not_fitted', heldOut: null } };
+  return { kind: 'fold', fold: job.fold, fit: fitFold(prepared, context.assignment as FoldAssignment, job.fold, start, design) };
 }
 
 /** The full fit's design, built from the context's rows (the same values the fit had). */

@@ -39,4 +39,16 @@ describe('fitModelOnThreads()', () => {
     expect(await fitModelOnThreads(trials, { ...options, onProgress: (stage) => stages.push(stage) }, 2, { workerUrl: missing, callerTakesRefits: false })).toEqual(sequential);
     expect(stages.some((stage) => stage.endsWith('on a worker thread'))).toBe(false);
   });
+
+  it('returns the report of a full fit that ends it (separation) without waiting on the started worker', async () => {
+    // Every hit above 100 ms, every miss below: latency separates the outcomes, so there are no refits.
+    const lines = ['player,latency_ms,scale,difficulty,hit'];
+    for (let i = 0; i < 400; i += 1) lines.push(`p${i % 20},${20 + (i % 200)},${[1, 1.5][i % 2]},${i % 3 === 0 ? 'hard' : 'easy'},${20 + (i % 200) > 100 ? 1 : 0}`);
+    const separated = groupTrials(unwrap(parseTrialsCsv(`${lines.join('\n')}\n`, 'separated.csv')));
+    const started = performance.now();
+    const threaded = await fitModelOnThreads(separated, options, 2, { workerUrl: builtWorker, callerTakesRefits: false });
+    expect(threaded.status).toBe('separation');
+    expect(threaded).toEqual(fitModel(separated, options));
+    expect(performance.now() - started).toBeLessThan(20_000);
+  });
 });
