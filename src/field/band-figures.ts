@@ -54,8 +54,12 @@ export function bandFigures(
   const before = new Float64Array(bandCount);
   const after = new Float64Array(bandCount);
   const gradient = new Float64Array(bandCount * k);
-  const playerSets = Array.from({ length: bandCount }, () => new Set<number>());
+  // Each band's players, counted as they are first met (a mark per band and player, not a set).
   const player = data.player as Int32Array;
+  const playerCount = live.compensatedPlayer.length;
+  const met = new Uint8Array(bandCount * playerCount);
+  const players = new Float64Array(bandCount);
+  const controlPlayers = new Float64Array(bandCount);
   for (let i = 0; i < data.rows; i += 1) {
     const b = band[i] as number;
     const w = (data.weight[i] as number) * (data.attempts[i] as number);
@@ -67,7 +71,12 @@ export function bandFigures(
     latency[b] = (latency[b] as number) + w * (data.latency[i] as number);
     before[b] = (before[b] as number) + w * (live.predictedBefore[i] as number);
     after[b] = (after[b] as number) + w * (live.predicted[i] as number);
-    playerSets[b]?.add(player[i] as number);
+    const code = player[i] as number;
+    if (met[b * playerCount + code] === 0) {
+      met[b * playerCount + code] = 1;
+      players[b] = (players[b] as number) + 1;
+      if (live.compensatedPlayer[code] === 0) controlPlayers[b] = (controlPlayers[b] as number) + 1;
+    }
     if (design !== null) {
       const slope = w * model.link.derivative(live.linearPredictor[i] as number);
       for (let j = 0; j < k; j += 1) gradient[b * k + j] = (gradient[b * k + j] as number) + slope * (design.values[j * data.rows + i] as number);
@@ -76,10 +85,7 @@ export function bandFigures(
   const critical = twoSidedCritical(0.95);
   return Array.from({ length: bandCount }, (_, b) => {
     const total = weight[b] as number;
-    const players = playerSets[b] as Set<number>;
-    let controlPlayers = 0;
-    for (const code of players) if (live.compensatedPlayer[code] === 0) controlPlayers += 1;
-    const base = { rows: rows[b] as number, attempts: attempts[b] as number, weight: total, hits: hits[b] as number, players: players.size, controlPlayers };
+    const base = { rows: rows[b] as number, attempts: attempts[b] as number, weight: total, hits: hits[b] as number, players: players[b] as number, controlPlayers: controlPlayers[b] as number };
     if (!(total > 0)) return { ...base, meanScale: null, meanLatency: null, predictedBefore: null, predicted: null, predictedLower: null, predictedUpper: null };
     const predicted = (after[b] as number) / total;
     let variance = 0;

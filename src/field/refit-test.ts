@@ -21,8 +21,8 @@
  * a scale that never varied) are held at the model's values (an offset) and
  * left out of the degrees of freedom.
  *
- * Cost: one fit of the model's columns (two when some are held), one pass
- * for each log-likelihood.
+ * Cost: one fit of the model's columns (two when some are held) and one
+ * pass for the model's log-likelihood (the refit's is the fit's own).
  */
 import type { LikelihoodRatioCheck, RefitCoefficient } from './field-types.js';
 import type { Link } from '../model/links.js';
@@ -54,12 +54,8 @@ export function refitTest(rows: FieldRows, design: DesignMatrix, link: Link, coe
   });
   if (!result.ok) return unfitted(`the refit gave no estimate: ${result.reason}`);
   const { fit } = result;
-  const refitPredictor = multiply(withoutColumns(design, held), fit.coefficients);
-  if (held.length > 0) {
-    const offset = heldOffset(design, held, coefficients);
-    for (let i = 0; i < refitPredictor.length; i += 1) refitPredictor[i] = (refitPredictor[i] as number) + (offset[i] as number);
-  }
-  const statistic = Math.max(0, 2 * (logLikelihood(rows, link, refitPredictor) - logLikelihood(rows, link, linearPredictor)));
+  // The refit's own log-likelihood (a field fit's is the Bernoulli kernel of these rows, the held columns in its offset).
+  const statistic = Math.max(0, 2 * (fit.logLikelihood - logLikelihood(rows, link, linearPredictor)));
   const df = fit.coefficients.length;
   const adjusted = fit.robust === null ? null : raoScott(statistic, fit.covariance, fit.robust.covariance, df);
   let fitted = 0;
@@ -96,8 +92,14 @@ export function raoScott(statistic: number, modelCovariance: Float64Array, robus
   return { statistic: adjusted, df, p_value: chiSquareUpperTail(adjusted, df), mean_design_effect: mean, a_squared: aSquared };
 }
 
-/** sum prior [s log mu + (n - s) log(1 - mu)] at the linear predictors (1 - mu from the link's complement). */
+/**
+ * sum prior [s log mu + (n - s) log(1 - mu)] at the linear predictors (1 - mu from the link's
+ * complement). For the logit link log mu and log(1 - mu) come from one log1p(exp(-|eta|)), as in
+ * the fit's own passes (`irls-passes.ts`), so that the statistic, a difference of this and the
+ * refit's log-likelihood, has both sides computed alike.
+ */
 function logLikelihood(rows: FieldRows, link: Link, linearPredictor: Float64Array): number {
+  const logit = link.name === 'logit';
   let sum = 0;
   for (let i = 0; i < linearPredictor.length; i += 1) {
     const prior = rows.priorWeights[i] as number;
@@ -105,8 +107,18 @@ function logLikelihood(rows: FieldRows, link: Link, linearPredictor: Float64Arra
     if (!(prior * trials > 0)) continue;
     const successes = rows.successes[i] as number;
     const eta = linearPredictor[i] as number;
-    if (successes > 0) sum += prior * successes * Math.log(link.inverse(eta));
-    if (successes < trials) sum += prior * (trials - successes) * Math.log(link.inverseComplement(eta));
+    let logMu: number;
+    let logComplement: number;
+    if (logit) {
+      const softplus = Math.log1p(Math.exp(-Math.abs(eta)));
+      logMu = eta >= 0 ? -softplus : eta - softplus;
+      logComplement = eta >= 0 ? -eta - softplus : -softplus;
+    } else {
+      logMu = Math.log(link.inverse(eta));
+      logComplement = Math.log(link.inverseComplement(eta));
+    }
+    if (successes > 0) sum += prior * successes * logMu;
+    if (successes < trials) sum += prior * (trials - successes) * logComplement;
   }
   return sum;
 }
