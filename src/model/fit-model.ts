@@ -52,8 +52,8 @@ import { assembleCrossValidation, assignFolds, calibrationTable, foldStartsOf } 
 import { buildDesign } from './design.js';
 import { FIT_REPORT_FORMAT, type FitModelOptions, type FitReport, noEstimates } from './fit-report-types.js';
 import { leastSquaresBaseline, leastSquaresReport } from './least-squares-baseline.js';
-import { bernoulliDeviance, testedFactors } from './likelihood-ratio-tests.js';
-import { abandonEstimates, publishFoldStarts, publishFull, sharedEstimates } from './shared-estimates.js';
+import { bernoulliDeviance, likelihoodRatioTest, testedFactors } from './likelihood-ratio-tests.js';
+import { abandonEstimates, publishFoldStarts, sharedEstimates } from './shared-estimates.js';
 import { countDistinct, prepare, runBinomial, structuralIssues } from './prepared-fit.js';
 import { type RefitContext, type RefitJob, type RefitResult, refitLabel, runRefit } from './refit-jobs.js';
 import { scaleEffectOf, trainingRanges } from './scale-effect.js';
@@ -158,7 +158,7 @@ export function beginFitModel(trials: Trials | GroupedTrials, options: FitModelO
   const seed = options.seed ?? 1;
   const assignment = folds >= 2 ? assignFolds(data, folds, seed) : null;
   const estimates = sharedEstimates(design.matrix.columns, assignment?.folds ?? 0, shared);
-  const context: RefitContext = { prepared, names: design.matrix.names, assignment, estimates };
+  const context: RefitContext = { prepared, assignment, estimates };
   const jobs: RefitJob[] = [
     ...(options.baseline === false ? [] : [{ kind: 'baseline' as const }]),
     ...(options.likelihoodRatioTests === false ? [] : testedFactors(prepared).map((factor) => ({ kind: 'reduced' as const, factor }))),
@@ -227,13 +227,13 @@ export function beginFitModel(trials: Trials | GroupedTrials, options: FitModelO
       );
     }
 
-    // The refits may already be running (fit-model-threads.ts): the reduced models need the full
-    // estimates, the folds their starts (one Newton step from them, see refit-starts.ts).
-    publishFull(estimates, { coefficients: fit.coefficients, covariance: fit.covariance, bernoulliDeviance: bernoulliDeviance(prepared, fit.deviance) });
-    if (assignment !== null) publishFoldStarts(estimates, foldStartsOf(prepared, assignment, design.matrix, fit.coefficients));
+    // The refits may already be running (fit-model-threads.ts): the folds wait for their starts
+    // (one Newton step from the full estimates, see refit-starts.ts).
+    publishFoldStarts(estimates, fit.coefficients, assignment === null ? [] : foldStartsOf(prepared, assignment, design.matrix, fit.coefficients));
+    const full = { columns: design.matrix.columns, bernoulliDeviance: bernoulliDeviance(prepared, fit.deviance) };
     const calibration = calibrationTable(data, fit.fitted);
     const finishReport = (results: readonly RefitResult[]): FitReport => {
-      const likelihoodRatioTests = results.flatMap((result) => (result.kind === 'reduced' ? [result.test] : []));
+      const likelihoodRatioTests = results.flatMap((result) => (result.kind === 'reduced' ? [likelihoodRatioTest(result.reduced, full)] : []));
       const baseline = results.find((result) => result.kind === 'baseline')?.baseline ?? null;
       const foldFits = results.flatMap((result) => (result.kind === 'fold' ? [result.fit] : []));
       const crossValidation = assignment === null ? null : assembleCrossValidation(prepared, assignment, seed, foldFits, warnings);

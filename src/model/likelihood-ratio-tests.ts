@@ -1,7 +1,7 @@
 /**
  * A likelihood-ratio test per factor (latency, scale, difficulty): every term
  * that contains the factor is dropped, the model refitted on the same rows
- * (from the constrained one-step start of `refit-starts.ts`), and the deviance difference referred to
+ * (from R's starting values), and the deviance difference referred to
  * chi-square with the difference in the number of columns as degrees of
  * freedom. The refit reads only the covariates its terms keep and needs no
  * clusters, so it runs on the rows merged over the players and the dropped
@@ -18,9 +18,8 @@ import { collapseOver } from './collapse.js';
 import { buildDesign } from './design.js';
 import type { LikelihoodRatioTest } from './fit-report-types.js';
 import { type Prepared, runBinomial } from './prepared-fit.js';
-import { reducedStart } from './refit-starts.js';
 import { glmRows } from './glm-rows.js';
-import { termFactors } from './terms.js';
+import { type TermName, termFactors } from './terms.js';
 
 const FACTORS = ['latency', 'scale', 'difficulty'] as const;
 
@@ -42,11 +41,10 @@ export function testedFactors(prepared: Prepared): TestedFactor[] {
   return FACTORS.filter((factor) => prepared.terms.some((term) => term !== 'intercept' && termFactors(term)[factor]));
 }
 
-/** The full fit, as a reduced fit needs it (plain data: it crosses to a worker thread). */
-export interface FullEstimates {
-  readonly names: readonly string[];
-  readonly coefficients: Float64Array;
-  readonly covariance: Float64Array;
+/** What the statistic needs of the full fit. */
+export interface FullDeviance {
+  /** The full design's columns. */
+  readonly columns: number;
   /** -2 x the full fit's Bernoulli log-likelihood (its deviance for a per-attempt fit; see {@link bernoulliDeviance}). */
   readonly bernoulliDeviance: number;
 }
@@ -62,8 +60,17 @@ export function bernoulliDeviance(prepared: Prepared, deviance: number): number 
   return deviance - 2 * glmRows(successes, attempts, weight, null).saturated;
 }
 
-/** The likelihood-ratio test of `factor`: the reduced model refitted on the same rows, merged over what it does not read. */
-export function likelihoodRatioTest(prepared: Prepared, full: FullEstimates, factor: TestedFactor): LikelihoodRatioTest {
+/** A reduced model refitted: its columns and -2 x its Bernoulli log-likelihood, or why it was not. */
+export type ReducedFit =
+  | { readonly factor: TestedFactor; readonly status: 'fitted'; readonly dropped_terms: readonly TermName[]; readonly columns: number; readonly bernoulliDeviance: number }
+  | { readonly factor: TestedFactor; readonly status: 'not_tested'; readonly dropped_terms: readonly TermName[]; readonly reason: string };
+
+/**
+ * The reduced model without `factor`, refitted on the rows merged over what it does not read, from
+ * R's starting values: it needs nothing of the full fit, so it can run while that fit does
+ * (`fit-model-threads.ts`).
+ */
+export function fitReduced(prepared: Prepared, factor: TestedFactor): ReducedFit {
   const dropped = prepared.terms.filter((term) => term !== 'intercept' && termFactors(term)[factor]);
   const kept = prepared.terms.filter((term) => !dropped.includes(term));
   if (kept.length === 0) return { factor, status: 'not_tested', dropped_terms: dropped, reason: 'no term is left once the factor is dropped' };
@@ -74,17 +81,18 @@ export function likelihoodRatioTest(prepared: Prepared, full: FullEstimates, fac
     difficulty: factors.some((used) => used.difficulty),
   });
   const reducedDesign = buildDesign(rows, kept, prepared.coding);
-  // Started from the constrained one-step estimate (refit-starts.ts), else from the full fit's
-  // estimates of the columns it keeps: closer starts than R's, the same optimum.
-  const start =
-    reducedStart(full, reducedDesign.matrix.names) ??
-    Float64Array.from(reducedDesign.matrix.names, (name) => full.coefficients[full.names.indexOf(name)] ?? 0);
-  const reduced = runBinomial({ ...prepared, likelihood: 'bernoulli' }, rows, reducedDesign, false, start, prepared.link === 'logit' ? REDUCED_TOLERANCE : undefined);
+  const reduced = runBinomial({ ...prepared, likelihood: 'bernoulli' }, rows, reducedDesign, false, null, prepared.link === 'logit' ? REDUCED_TOLERANCE : undefined);
   if (reduced.status !== 'converged') {
     return { factor, status: 'not_tested', dropped_terms: dropped, reason: `the reduced model did not converge (${reduced.status})` };
   }
-  const df = full.coefficients.length - reduced.coefficients.length;
-  // The reduced fit's deviance is -2 x its Bernoulli log-likelihood.
-  const statistic = Math.max(0, reduced.deviance - full.bernoulliDeviance);
-  return { factor, status: 'tested', dropped_terms: dropped, df, statistic, p_value: chiSquareUpperTail(statistic, df) };
+  // A Bernoulli fit's deviance is -2 x its log-likelihood.
+  return { factor, status: 'fitted', dropped_terms: dropped, columns: reduced.coefficients.length, bernoulliDeviance: reduced.deviance };
+}
+
+/** The likelihood-ratio test of a reduced model against the full fit. */
+export function likelihoodRatioTest(reduced: ReducedFit, full: FullDeviance): LikelihoodRatioTest {
+  if (reduced.status === 'not_tested') return reduced;
+  const df = full.columns - reduced.columns;
+  const statistic = Math.max(0, reduced.bernoulliDeviance - full.bernoulliDeviance);
+  return { factor: reduced.factor, status: 'tested', dropped_terms: reduced.dropped_terms, df, statistic, p_value: chiSquareUpperTail(statistic, df) };
 }

@@ -9,23 +9,18 @@
  */
 import { type FoldAssignment, type FoldFit, fitFold } from './cross-validation.js';
 import { type TermDesign, buildDesign } from './design.js';
-import type { LeastSquaresBaseline, LikelihoodRatioTest } from './fit-report-types.js';
+import type { LeastSquaresBaseline } from './fit-report-types.js';
 import { leastSquaresBaseline } from './least-squares-baseline.js';
-import { type TestedFactor, likelihoodRatioTest } from './likelihood-ratio-tests.js';
+import { type ReducedFit, type TestedFactor, fitReduced } from './likelihood-ratio-tests.js';
 import type { Prepared } from './prepared-fit.js';
-import { type SharedEstimates, awaitFoldStart, awaitFull } from './shared-estimates.js';
+import { type SharedEstimates, awaitFoldStart } from './shared-estimates.js';
 
 /** What every refit of one report shares. */
 export interface RefitContext {
   readonly prepared: Prepared;
-  /** The full design's column names. */
-  readonly names: readonly string[];
   /** The folds, when the report cross-validates. */
   readonly assignment: FoldAssignment | null;
-  /**
-   * The full fit's estimates and each fold's start, published by the calling thread once it has
-   * them (`shared-estimates.ts`): a job that needs them waits for them.
-   */
+  /** Each fold's start, published by the calling thread once it has it (`shared-estimates.ts`): a fold's job waits for it. */
   readonly estimates: SharedEstimates;
 }
 
@@ -33,22 +28,19 @@ export type RefitJob = { readonly kind: 'baseline' } | { readonly kind: 'reduced
 
 export type RefitResult =
   | { readonly kind: 'baseline'; readonly baseline: LeastSquaresBaseline | null }
-  | { readonly kind: 'reduced'; readonly test: LikelihoodRatioTest }
+  | { readonly kind: 'reduced'; readonly reduced: ReducedFit }
   | { readonly kind: 'fold'; readonly fold: number; readonly fit: FoldFit };
 
 /**
- * Run one job on the full design (`fullDesign(context)`; a thread builds it once for all its jobs),
- * waiting for the estimates it needs. When the full fit ended the report (no estimates will come),
- * a job that needs them returns at once with a result nobody reads.
+ * Run one job on the full design (`fullDesign(context)`; a thread builds it once for all its jobs).
+ * The baseline and the reduced models need nothing of the full fit; a fold waits for its start.
+ * When the full fit ended the report (no start will come), a fold returns at once with a result
+ * nobody reads.
  */
 export function runRefit(context: RefitContext, job: RefitJob, design: TermDesign): RefitResult {
   const { prepared } = context;
   if (job.kind === 'baseline') return { kind: 'baseline', baseline: leastSquaresBaseline(prepared, design) };
-  if (job.kind === 'reduced') {
-    const full = awaitFull(context.estimates, context.names);
-    if (full === null) return { kind: 'reduced', test: { factor: job.factor, status: 'not_tested', dropped_terms: [], reason: 'the full fit gave no estimates' } };
-    return { kind: 'reduced', test: likelihoodRatioTest(prepared, full, job.factor) };
-  }
+  if (job.kind === 'reduced') return { kind: 'reduced', reduced: fitReduced(prepared, job.factor) };
   const start = awaitFoldStart(context.estimates, job.fold);
   if (start === null) return { kind: 'fold', fold: job.fold, fit: { status: 'not_fitted', heldOut: null } };
   return { kind: 'fold', fold: job.fold, fit: fitFold(prepared, context.assignment as FoldAssignment, job.fold, start, design) };

@@ -1,64 +1,33 @@
 /**
- * Starting values for the refits of a fit report, from the full fit: a
- * start changes how many IRLS passes a refit takes, never its estimate (the
- * fixed point of the iteration does not depend on where it starts, and every
+ * Starting values for the folds of a fit report, from the full fit: a start
+ * changes how many IRLS passes a refit takes, never its estimate (the fixed
+ * point of the iteration does not depend on where it starts, and every
  * refit still iterates to its own tolerance from there).
  *
- * - A reduced model (a likelihood-ratio test drops the columns D): the
- *   maximum under b_D = 0 of the quadratic approximation of the full
- *   log-likelihood around its estimate, b_K = bhat_K - V_KD V_DD^{-1} bhat_D,
- *   V the full fit's covariance (the conditional mean of a normal with
- *   covariance V; a standard identity, written from memory). Dropping a
- *   strong factor moves the kept estimates far, so the approximation is
- *   rough there, but far closer than the full estimates of the kept columns
- *   (the start before it): on the 1M-row bench file the reduced fits' first
- *   steps shrank from 57-166 standard errors to a few.
- * - A cross-validation fold (its training rows are all rows but the fold's):
- *   one Newton step from the full estimate on the training rows,
- *   b_f = bhat + (I - I_f)^{-1} (U - U_f), with the expected information I
- *   and score U of all rows at bhat and I_f, U_f those of the fold's rows
- *   (McCullagh, P. and Nelder, J. A. (1989), *Generalized Linear Models*,
- *   2nd ed., §2.5), all folds' sums from one sweep of the rows. The full
- *   estimate is about a standard error from a fold's, and the step leaves
- *   the fold's fit about the square of that away, so the fold's fit ends a
- *   pass sooner (on the 1M-row bench file, 2 passes instead of 3).
+ * A cross-validation fold (its training rows are all rows but the fold's)
+ * starts one Newton step from the full estimate on the training rows,
+ * b_f = bhat + (I - I_f)^{-1} (U - U_f), with the expected information I and
+ * score U of all rows at bhat and I_f, U_f those of the fold's rows
+ * (McCullagh, P. and Nelder, J. A. (1989), *Generalized Linear Models*, 2nd
+ * ed., §2.5), all folds' sums from one sweep of the rows. The full estimate
+ * is about a standard error from a fold's, and the step leaves the fold's
+ * fit about the square of that away, so the fold's fit ends a pass sooner
+ * (on the 1M-row bench file, 2 passes instead of 3).
+ *
+ * (The reduced models of the likelihood-ratio tests once started from the
+ * full fit's constrained one-step estimate; they now run on rows merged over
+ * the players and the dropped covariate, few enough that R's starting values
+ * cost little, and so they need nothing of the full fit and run while it
+ * does.)
  *
  * The k-by-k systems are solved by Cholesky after scaling to a unit diagonal
  * (`numeric/cholesky.ts`): a start needs no more accuracy than that, and a
- * system that is not positive definite gives no start (null), so the refit
- * starts where it did before (the full estimate).
+ * system that is not positive definite gives no start (null), so the fold
+ * starts from the full estimate.
  */
 import { choleskySolve } from '../numeric/cholesky.js';
 import type { DesignMatrix } from '../numeric/design-matrix.js';
 import type { Link } from './links.js';
-
-/**
- * The constrained one-step start of the model that keeps `kept` (names of
- * the full fit's columns, in the reduced design's order): null when a kept
- * name is not a full column, nothing is dropped, or V_DD is not positive
- * definite.
- */
-export function reducedStart(
-  full: { readonly names: readonly string[]; readonly coefficients: ArrayLike<number>; readonly covariance: ArrayLike<number> },
-  kept: readonly string[],
-): Float64Array | null {
-  const size = full.names.length;
-  const keptIndices = kept.map((name) => full.names.indexOf(name));
-  if (keptIndices.some((index) => index < 0)) return null;
-  const dropped = full.names.map((_, index) => index).filter((index) => !keptIndices.includes(index));
-  if (dropped.length === 0) return null;
-  const covarianceAt = (row: number, column: number) => full.covariance[row * size + column] as number;
-  const droppedBlock = new Float64Array(dropped.length * dropped.length);
-  dropped.forEach((row, a) => dropped.forEach((column, b) => (droppedBlock[a * dropped.length + b] = covarianceAt(row, column))));
-  const solved = scaledCholeskySolve(droppedBlock, Float64Array.from(dropped, (index) => full.coefficients[index] as number));
-  if (solved === null) return null;
-  const start = Float64Array.from(keptIndices, (row) => {
-    let shift = 0;
-    dropped.forEach((column, b) => (shift += covarianceAt(row, column) * (solved[b] as number)));
-    return (full.coefficients[row] as number) - shift;
-  });
-  return start.every(Number.isFinite) ? start : null;
-}
 
 /** The rows of a fit, as the fold starts need them. */
 export interface FoldStartRows {

@@ -1,9 +1,9 @@
-import { inv, lusolve, multiply, subtract } from 'mathjs';
+import { lusolve } from 'mathjs';
 import { describe, expect, it } from 'vitest';
 import type { BinomialFitEstimated } from '../../src/model/binomial-fit-types.js';
 import { fitBinomial } from '../../src/model/fit-binomial.js';
 import { linkFor } from '../../src/model/links.js';
-import { foldStarts, reducedStart } from '../../src/model/refit-starts.js';
+import { foldStarts } from '../../src/model/refit-starts.js';
 import { type DesignMatrix, designMatrixFromColumns, interceptColumn } from '../../src/numeric/design-matrix.js';
 import { createRandomSource } from '../../src/random.js';
 
@@ -25,46 +25,6 @@ function estimated(fit: ReturnType<typeof fitBinomial>): BinomialFitEstimated {
   if (fit.status !== 'converged') throw new Error(`expected convergence, got ${fit.status}`);
   return fit;
 }
-
-function rowsOf(matrix: ArrayLike<number>, size: number): number[][] {
-  return Array.from({ length: size }, (_, a) => Array.from({ length: size }, (_, b) => matrix[a * size + b] as number));
-}
-
-describe('reducedStart()', () => {
-  const data = rows(3000, 11);
-  const full = estimated(fitBinomial(data));
-
-  it('is b_K - V_KD V_DD^-1 b_D, computed with mathjs inv and multiply (reference: mathjs linear algebra)', () => {
-    // Drop latency and hard (columns 1 and 3), keep intercept and log_scale (0 and 2).
-    const start = reducedStart(full, ['(Intercept)', 'log_scale']);
-    const v = rowsOf(full.covariance, 4);
-    const pick = (r: number[], c: number[]) => r.map((i) => c.map((j) => (v[i] as number[])[j] as number));
-    const b = Array.from(full.coefficients);
-    const expected = subtract(
-      [b[0], b[2]] as number[],
-      multiply(multiply(pick([0, 2], [1, 3]), inv(pick([1, 3], [1, 3]))), [b[1], b[3]] as number[]) as unknown as number[],
-    ) as unknown as number[];
-    expect(start).not.toBeNull();
-    for (const [j, value] of (expected as number[]).entries()) expect(start?.[j]).toBeCloseTo(value, 12);
-  });
-
-  it('starts a reduced fit closer than the full estimates do, and the reduced fit reaches the same estimate from either', () => {
-    const reduced = designMatrixFromColumns([interceptColumn(3000), { name: 'log_scale', values: Float64Array.from({ length: 3000 }, (_, i) => data.design.values[2 * 3000 + i] as number) }]);
-    const start = reducedStart(full, ['(Intercept)', 'log_scale']) as Float64Array;
-    const naive = Float64Array.from([full.coefficients[0] as number, full.coefficients[2] as number]);
-    const fromStart = estimated(fitBinomial({ ...data, design: reduced }, { start }));
-    const fromNaive = estimated(fitBinomial({ ...data, design: reduced }, { start: naive }));
-    const distance = (point: Float64Array) => Math.max(...Array.from(point, (value, j) => Math.abs(value - (fromNaive.coefficients[j] as number)) / (fromNaive.standardErrors[j] as number)));
-    expect(distance(start)).toBeLessThan(distance(naive));
-    for (const [j, value] of fromNaive.coefficients.entries()) expect(fromStart.coefficients[j]).toBeCloseTo(value, 10);
-    expect(fromStart.deviance).toBeCloseTo(fromNaive.deviance, 8);
-  });
-
-  it('gives no start when a kept name is not a column or nothing is dropped', () => {
-    expect(reducedStart(full, ['(Intercept)', 'speed'])).toBeNull();
-    expect(reducedStart(full, ['(Intercept)', 'latency', 'log_scale', 'hard'])).toBeNull();
-  });
-});
 
 describe('foldStarts()', () => {
   const data = rows(4000, 12);
