@@ -78,34 +78,38 @@ class CalibrationBins {
   }
 }
 
-/** Held-out predictions accumulated over folds. */
-class HeldOut extends CalibrationBins {
-  logLoss = 0;
-  brier = 0;
-  weight = 0;
+/** One fold's held-out scores: its sums, plain data (a fold is scored where it is fitted, on any thread). */
+export interface FoldScores {
+  readonly logLoss: number;
+  readonly brier: number;
+  /** Prior-weighted attempts. */
+  readonly weight: number;
+  readonly binWeight: Float64Array;
+  readonly binPredicted: Float64Array;
+  readonly binObserved: Float64Array;
+}
 
-  add(probability: number, successes: number, attempts: number, prior: number): { logLoss: number; brier: number; weight: number } {
+/** The held-out rows' log loss, Brier and calibration-bin sums at their predicted probabilities, in row order. */
+function scoreHeldOut(data: CountRows, rows: Int32Array, probabilities: Float64Array): FoldScores {
+  const bins = new CalibrationBins();
+  let logLoss = 0;
+  let brier = 0;
+  let weight = 0;
+  for (let r = 0; r < rows.length; r += 1) {
+    const i = rows[r] as number;
+    const probability = probabilities[r] as number;
+    const successes = data.successes[i] as number;
+    const attempts = data.attempts[i] as number;
+    const prior = data.weight[i] as number;
     const clipped = Math.min(1 - CLIP, Math.max(CLIP, probability));
     const failures = attempts - successes;
-    const weight = prior * attempts;
-    const logLoss = -prior * (successes * Math.log(clipped) + failures * Math.log1p(-clipped));
-    const brier = prior * (successes * (1 - probability) ** 2 + failures * probability ** 2);
-    this.logLoss += logLoss;
-    this.brier += brier;
-    this.weight += weight;
-    this.addToBin(probability, weight, prior * successes);
-    return { logLoss, brier, weight };
+    const rowWeight = prior * attempts;
+    logLoss += -prior * (successes * Math.log(clipped) + failures * Math.log1p(-clipped));
+    brier += prior * (successes * (1 - probability) ** 2 + failures * probability ** 2);
+    weight += rowWeight;
+    bins.addToBin(probability, rowWeight, prior * successes);
   }
-
-  /** Attempt-weighted mean over bins of |observed - mean predicted| (Naeini et al. 2015). */
-  calibrationError(): number {
-    let sum = 0;
-    for (let b = 0; b < 10; b += 1) {
-      const weight = this.binWeight[b] as number;
-      if (weight > 0) sum += Math.abs((this.binObserved[b] as number) - (this.binPredicted[b] as number));
-    }
-    return this.weight > 0 ? sum / this.weight : 0;
-  }
+  return { logLoss, brier, weight, binWeight: bins.binWeight, binPredicted: bins.binPredicted, binObserved: bins.binObserved };
 }
 
 function predictProbabilities(prepared: Prepared, design: TermDesign, coefficients: ArrayLike<number>): Float64Array {
@@ -144,11 +148,15 @@ function fitCoefficients(prepared: Prepared, data: CountRows, design: TermDesign
 /** The folds of a cross-validation: each collapsed row's fold, and what they hold out. */
 export type FoldAssignment = ReturnType<typeof assignFolds>;
 
-/** A fold's fit on its training rows: the estimates, or null when the fit gave none (`status` says why). */
+/** A fold's fit on its training rows, scored on its own (held-out) rows. */
 export interface FoldFit {
   readonly status: string;
-  /** The fit's predictions for the fold's own (held-out) rows, in row order; null when the fit gave no estimates. */
-  readonly heldOut: Float64Array | null;
+  /** Players held out (null when folds hold out rows). */
+  readonly players: number | null;
+  /** Attempts held out (unweighted). */
+  readonly heldAttempts: number;
+  /** The held-out scores; null when the fit gave no estimates (`status` says why). */
+  readonly scores: FoldScores | null;
 }
 
 /** The rows of fold `fold` (`heldOut`) and its training rows (all rows of other folds), each ascending, from one sweep. */
@@ -165,16 +173,6 @@ function foldSplit(assignment: FoldAssignment, fold: number): { readonly trainin
   return { training, heldOut };
 }
 
-/** The rows of fold `fold` alone, ascending. */
-function heldOutRows(assignment: FoldAssignment, fold: number): Int32Array {
-  const folds = assignment.fold;
-  let held = 0;
-  for (let i = 0; i < folds.length; i += 1) if (folds[i] === fold) held += 1;
-  const heldOut = new Int32Array(held);
-  for (let i = 0, h = 0; i < folds.length; i += 1) if (folds[i] === fold) heldOut[h++] = i;
-  return heldOut;
-}
-
 /**
  * Fit fold `fold` (0-based) on its training rows, from `start` (null: R's
  * starting values); `design` is the full design when the caller has it (a
@@ -187,23 +185,33 @@ function heldOutRows(assignment: FoldAssignment, fold: number): Int32Array {
  */
 export function fitFold(prepared: Prepared, assignment: FoldAssignment, fold: number, start: Float64Array | null, design?: TermDesign): FoldFit {
   const { training, heldOut } = foldSplit(assignment, fold);
+  const { data } = prepared;
+  let players: number | null = null;
+  if (data.player !== null && assignment.heldOut === 'players') {
+    const seen = new Set<number>();
+    for (let r = 0; r < heldOut.length; r += 1) seen.add(data.player[heldOut[r] as number] as number);
+    players = seen.size;
+  }
+  let heldAttempts = 0;
+  for (let r = 0; r < heldOut.length; r += 1) heldAttempts += data.attempts[heldOut[r] as number] as number;
+  const scored = (status: string, probabilities: Float64Array | null): FoldFit => ({ status, players, heldAttempts, scores: probabilities === null ? null : scoreHeldOut(data, heldOut, probabilities) });
   if (design === undefined) {
-    const trainingRows = gatherCollapsed(prepared.data, training);
+    const trainingRows = gatherCollapsed(data, training);
     const fitted = fitCoefficients(prepared, trainingRows, buildDesign(trainingRows, prepared.terms, prepared.coding), start);
-    if (fitted.coefficients === null) return { status: fitted.status, heldOut: null };
-    const heldOutRows = gatherCollapsed(prepared.data, heldOut);
-    return { status: fitted.status, heldOut: predictProbabilities(prepared, buildDesign(heldOutRows, prepared.terms, prepared.coding), fitted.coefficients) };
+    if (fitted.coefficients === null) return scored(fitted.status, null);
+    const heldOutRows = gatherCollapsed(data, heldOut);
+    return scored(fitted.status, predictProbabilities(prepared, buildDesign(heldOutRows, prepared.terms, prepared.coding), fitted.coefficients));
   }
   let fitted: { readonly status: string; readonly coefficients: Float64Array | null };
   if (prepared.family === 'least_squares') {
-    fitted = fitCoefficients(prepared, gatherCounts(prepared.data, training), { matrix: gatherRows(design.matrix, training), columns: design.columns }, start);
+    fitted = fitCoefficients(prepared, gatherCounts(data, training), { matrix: gatherRows(design.matrix, training), columns: design.columns }, start);
   } else {
     // A binomial fold fit does not cluster: its rows merged over the players give the same estimates on fewer rows.
-    const merged = collapseOver(gatherCollapsed(prepared.data, training), EVERY_COVARIATE);
+    const merged = collapseOver(gatherCollapsed(data, training), EVERY_COVARIATE);
     fitted = fitCoefficients(prepared, merged, buildDesign(merged, prepared.terms, prepared.coding), start);
   }
-  if (fitted.coefficients === null) return { status: fitted.status, heldOut: null };
-  return { status: fitted.status, heldOut: probabilitiesOf(prepared, predictorAt(design.matrix, heldOut, fitted.coefficients)) };
+  if (fitted.coefficients === null) return scored(fitted.status, null);
+  return scored(fitted.status, probabilitiesOf(prepared, predictorAt(design.matrix, heldOut, fitted.coefficients)));
 }
 
 /**
@@ -245,59 +253,45 @@ export function assembleCrossValidation(
       warning('folds_by_row', `${file}:player`, 'cross-validation by player requires a `player` column with at least 2 players; folds hold out collapsed rows at random instead, so held-out scores are optimistic'),
     );
   }
-  const total = new HeldOut();
-  const foldResults: FoldResult[] = [];
-  for (let fold = 0; fold < assignment.folds; fold += 1) {
-    const rows = heldOutRows(assignment, fold);
-    const { player, successes, attempts, weight: priors } = prepared.data;
-    let players: number | null = null;
-    if (player !== null && assignment.heldOut === 'players') {
-      const seen = new Set<number>();
-      for (let r = 0; r < rows.length; r += 1) seen.add(player[rows[r] as number] as number);
-      players = seen.size;
+  // The folds' sums added in fold order (each fold summed in row order where it was fitted).
+  let logLoss = 0;
+  let brier = 0;
+  let weight = 0;
+  const bins = new CalibrationBins();
+  const foldResults: FoldResult[] = fits.map((fitted, fold) => {
+    const scores = fitted.scores;
+    const base = { fold: fold + 1, status: fitted.status, players: fitted.players, held_out_attempts: fitted.heldAttempts };
+    if (scores === null) return { ...base, log_loss: null, brier: null };
+    logLoss += scores.logLoss;
+    brier += scores.brier;
+    weight += scores.weight;
+    for (let b = 0; b < 10; b += 1) {
+      bins.binWeight[b] = (bins.binWeight[b] as number) + (scores.binWeight[b] as number);
+      bins.binPredicted[b] = (bins.binPredicted[b] as number) + (scores.binPredicted[b] as number);
+      bins.binObserved[b] = (bins.binObserved[b] as number) + (scores.binObserved[b] as number);
     }
-    let heldAttempts = 0;
-    for (let r = 0; r < rows.length; r += 1) heldAttempts += attempts[rows[r] as number] as number;
-    const fitted = fits[fold] as FoldFit;
-    const probabilities = fitted.heldOut;
-    if (probabilities === null) {
-      foldResults.push({ fold: fold + 1, status: fitted.status, players, held_out_attempts: heldAttempts, log_loss: null, brier: null });
-      continue;
-    }
-    let logLoss = 0;
-    let brier = 0;
-    let weight = 0;
-    for (let r = 0; r < rows.length; r += 1) {
-      const i = rows[r] as number;
-      const added = total.add(probabilities[r] as number, successes[i] as number, attempts[i] as number, priors[i] as number);
-      logLoss += added.logLoss;
-      brier += added.brier;
-      weight += added.weight;
-    }
-    foldResults.push({
-      fold: fold + 1,
-      status: fitted.status,
-      players,
-      held_out_attempts: heldAttempts,
-      log_loss: weight > 0 ? logLoss / weight : null,
-      brier: weight > 0 ? brier / weight : null,
-    });
-  }
+    return { ...base, log_loss: scores.weight > 0 ? scores.logLoss / scores.weight : null, brier: scores.weight > 0 ? scores.brier / scores.weight : null };
+  });
   const failed = foldResults.filter((result) => result.log_loss === null);
   if (failed.length > 0) {
     warnings.push(
       warning('fold_not_fitted', file, `every cross-validation fold requires a converged fit, got ${failed.map((result) => `fold ${result.fold} (${result.status})`).join(', ')}; held-out scores leave those folds out`),
     );
   }
-  if (!(total.weight > 0)) return null;
+  if (!(weight > 0)) return null;
+  // Attempt-weighted mean over bins of |observed - mean predicted| (Naeini et al. 2015).
+  let calibrationError = 0;
+  for (let b = 0; b < 10; b += 1) {
+    if ((bins.binWeight[b] as number) > 0) calibrationError += Math.abs((bins.binObserved[b] as number) - (bins.binPredicted[b] as number));
+  }
   return {
     folds: assignment.folds,
     seed,
     held_out: assignment.heldOut,
-    attempts: total.weight,
-    log_loss: total.logLoss / total.weight,
-    brier: total.brier / total.weight,
-    calibration_error: total.calibrationError(),
+    attempts: weight,
+    log_loss: logLoss / weight,
+    brier: brier / weight,
+    calibration_error: calibrationError / weight,
     fold_results: foldResults,
   };
 }

@@ -42,7 +42,7 @@ export function runRefit(context: RefitContext, job: RefitJob, design: TermDesig
   if (job.kind === 'baseline') return { kind: 'baseline', baseline: leastSquaresBaseline(prepared, design) };
   if (job.kind === 'reduced') return { kind: 'reduced', reduced: fitReduced(prepared, job.factor) };
   const start = awaitFoldStart(context.estimates, job.fold);
-  if (start === null) return { kind: 'fold', fold: job.fold, fit: { status: 'not_fitted', heldOut: null } };
+  if (start === null) return { kind: 'fold', fold: job.fold, fit: { status: 'not_fitted', players: null, heldAttempts: 0, scores: null } };
   return { kind: 'fold', fold: job.fold, fit: fitFold(prepared, context.assignment as FoldAssignment, job.fold, start, design) };
 }
 
