@@ -54,7 +54,7 @@ import { FIT_REPORT_FORMAT, type FitModelOptions, type FitReport, noEstimates } 
 import { leastSquaresBaseline, leastSquaresReport } from './least-squares-baseline.js';
 import { bernoulliDeviance, likelihoodRatioTest, testedFactors } from './likelihood-ratio-tests.js';
 import { abandonEstimates, publishFoldStarts, sharedEstimates } from './shared-estimates.js';
-import { countDistinct, prepare, runBinomial, structuralIssues } from './prepared-fit.js';
+import { countCodes, prepare, runBinomial, structuralIssues } from './prepared-fit.js';
 import { type RefitContext, type RefitJob, type RefitResult, refitLabel, runRefit } from './refit-jobs.js';
 import { scaleEffectOf, trainingRanges } from './scale-effect.js';
 
@@ -115,7 +115,7 @@ export function beginFitModel(trials: Trials | GroupedTrials, options: FitModelO
   const warnings: Issue[] = [];
   const file = source.file;
   // Players are kept apart in the groups, so the groups hold every player who has a row.
-  const players = data.player === null ? null : countDistinct(data.player);
+  const players = data.player === null ? null : countCodes(data.player);
   const clusterCount = prepared.clustered ? players : null;
   if (prepared.clustered && players !== null && players < FEW_CLUSTERS) {
     warnings.push(

@@ -127,6 +127,22 @@ export function runBinomial(
   );
 }
 
+/** Distinct codes among non-negative integer codes (player codes: a mark per code, not a set). */
+export function countCodes(codes: Int32Array): number {
+  let largest = -1;
+  for (let i = 0; i < codes.length; i += 1) largest = Math.max(largest, codes[i] as number);
+  const seen = new Uint8Array(largest + 1);
+  let count = 0;
+  for (let i = 0; i < codes.length; i += 1) {
+    const code = codes[i] as number;
+    if (seen[code] === 0) {
+      seen[code] = 1;
+      count += 1;
+    }
+  }
+  return count;
+}
+
 /** Distinct values, counting no further than `stopAt`. */
 export function countDistinct(values: ArrayLike<number>, stopAt = Infinity): number {
   const seen = new Set<number>();

@@ -51,6 +51,7 @@ export function foldStarts(rows: FoldStartRows, link: Link, coefficients: ArrayL
   const information = new Float64Array(folds * k * k);
   const score = new Float64Array(folds * k);
   const row = new Float64Array(k);
+  const logit = link.name === 'logit';
   for (let i = 0; i < n; i += 1) {
     const weight = (rows.trials[i] as number) * (rows.priorWeights[i] as number);
     if (!(weight > 0)) continue;
@@ -60,12 +61,26 @@ export function foldStarts(rows: FoldStartRows, link: Link, coefficients: ArrayL
       row[j] = value;
       eta += value * (coefficients[j] as number);
     }
-    const mu = link.inverse(eta);
-    const variance = mu * link.inverseComplement(eta);
-    const derivative = link.derivative(eta);
-    if (!(variance > 0) || !Number.isFinite(derivative)) continue;
-    const workingWeight = (weight * derivative * derivative) / variance;
-    const scoreWeight = (weight * ((rows.successes[i] as number) / (rows.trials[i] as number) - mu) * derivative) / variance;
+    let mu: number;
+    let workingWeight: number;
+    let scoreWeight: number;
+    if (logit) {
+      // dmu/deta = mu (1 - mu) = the variance: the working weight is w mu (1 - mu), the score weight w (y - mu) (one exp).
+      const exponential = Math.exp(-Math.abs(eta));
+      const inverse = 1 / (1 + exponential);
+      mu = eta >= 0 ? inverse : exponential * inverse;
+      const variance = exponential * inverse * inverse;
+      if (!(variance > 0)) continue;
+      workingWeight = weight * variance;
+      scoreWeight = weight * ((rows.successes[i] as number) / (rows.trials[i] as number) - mu);
+    } else {
+      mu = link.inverse(eta);
+      const variance = mu * link.inverseComplement(eta);
+      const derivative = link.derivative(eta);
+      if (!(variance > 0) || !Number.isFinite(derivative)) continue;
+      workingWeight = (weight * derivative * derivative) / variance;
+      scoreWeight = (weight * ((rows.successes[i] as number) / (rows.trials[i] as number) - mu) * derivative) / variance;
+    }
     if (!Number.isFinite(workingWeight) || !Number.isFinite(scoreWeight)) continue;
     const f = fold[i] as number;
     const matrix = f * k * k;
