@@ -265,32 +265,9 @@ export function fitBinomial(data: BinomialData, options: BinomialFitOptions = {}
 
   let robust: BinomialRobust | null = null;
   if (data.clusters !== undefined && options.robust !== false) {
-    const { indices, count } = compactClusters(data.clusters, keep);
-    // Each cluster's score sum u_g, summed row by row as the scores are computed (no n-by-k array).
-    const clusterScores = clusterScoreSums(kept, rows, state, link, linearPredictor, indices, count);
-    const robustCovariance = sandwichOfClusterScores({
-      bread: covariance,
-      clusterScores,
-      clusterCount: count,
-      observationCount,
-      parameterCount,
-    });
-    if (robustCovariance === null) {
-      warnings.push(
-        `cluster-robust covariance requires at least 2 clusters and more observations than coefficients, got ${count} cluster(s)`,
-      );
-    } else {
-      const robustErrors = diagonalRoots(robustCovariance, columns);
-      const robustZ = coefficients.map((value, j) => value / (robustErrors[j] as number));
-      robust = {
-        kind: 'CR1',
-        clusters: count,
-        covariance: robustCovariance,
-        standardErrors: robustErrors,
-        zValues: robustZ,
-        pValues: robustZ.map(twoSidedNormalPValue),
-      };
-    }
+    const block = clusterRobust({ design: kept, rows, state, link, linearPredictor, clusters: data.clusters, keep, covariance, coefficients, observationCount });
+    robust = block.robust;
+    if (block.warning !== null) warnings.push(block.warning);
   }
 
   return {
@@ -324,6 +301,44 @@ export function fitBinomial(data: BinomialData, options: BinomialFitOptions = {}
     fitted,
     observationCount,
     robust,
+  };
+}
+
+/**
+ * The CR1 block of a fit at its estimate (`covariance` the bread, the inverse expected
+ * information), from each cluster's score sum over the rows `keep` marks (`design` and `rows` are
+ * those rows), or a warning when there are too few clusters or observations.
+ */
+export function clusterRobust(input: {
+  readonly design: DesignMatrix;
+  readonly rows: GlmRows;
+  readonly state: { readonly mu: Float64Array; readonly complement: Float64Array };
+  readonly link: Link;
+  readonly linearPredictor: Float64Array;
+  readonly clusters: ArrayLike<number>;
+  readonly keep: Uint8Array;
+  readonly covariance: Float64Array;
+  readonly coefficients: Float64Array;
+  readonly observationCount: number;
+}): { readonly robust: BinomialRobust | null; readonly warning: string | null } {
+  const columns = input.design.columns;
+  const { indices, count } = compactClusters(input.clusters, input.keep);
+  const clusterScores = clusterScoreSums(input.design, input.rows, input.state, input.link, input.linearPredictor, indices, count);
+  const robustCovariance = sandwichOfClusterScores({
+    bread: input.covariance,
+    clusterScores,
+    clusterCount: count,
+    observationCount: input.observationCount,
+    parameterCount: columns,
+  });
+  if (robustCovariance === null) {
+    return { robust: null, warning: `cluster-robust covariance requires at least 2 clusters and more observations than coefficients, got ${count} cluster(s)` };
+  }
+  const robustErrors = diagonalRoots(robustCovariance, columns);
+  const robustZ = input.coefficients.map((value, j) => value / (robustErrors[j] as number));
+  return {
+    robust: { kind: 'CR1', clusters: count, covariance: robustCovariance, standardErrors: robustErrors, zValues: robustZ, pValues: robustZ.map(twoSidedNormalPValue) },
+    warning: null,
   };
 }
 

@@ -53,8 +53,9 @@ import { buildDesign } from './design.js';
 import { FIT_REPORT_FORMAT, type FitModelOptions, type FitReport, noEstimates } from './fit-report-types.js';
 import { leastSquaresBaseline, leastSquaresReport } from './least-squares-baseline.js';
 import { bernoulliDeviance, likelihoodRatioTest, testedFactors } from './likelihood-ratio-tests.js';
+import { fitFullModel } from './merged-fit.js';
 import { abandonEstimates, publishFoldStarts, sharedEstimates } from './shared-estimates.js';
-import { countCodes, prepare, runBinomial, structuralIssues } from './prepared-fit.js';
+import { countCodes, prepare, structuralIssues } from './prepared-fit.js';
 import { type RefitContext, type RefitJob, type RefitResult, refitLabel, runRefit } from './refit-jobs.js';
 import { scaleEffectOf, trainingRanges } from './scale-effect.js';
 
@@ -187,7 +188,7 @@ export function beginFitModel(trials: Trials | GroupedTrials, options: FitModelO
   };
   const fullReport = (): { readonly done: true; readonly report: FitReport } | { readonly done: false; readonly finish: (results: readonly RefitResult[]) => FitReport } => {
     progress('fit');
-    const fit = runBinomial(prepared, data, design);
+    const fit = fitFullModel(prepared, design);
     if (fit.status === 'rank_deficient' || fit.status === 'separation') {
       const aliasedTerms = fit.status === 'rank_deficient' ? termsOfColumns(design, fit.aliased) : [];
       const issue =
