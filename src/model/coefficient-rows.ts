@@ -10,7 +10,7 @@ import type { TermDesign } from './design.js';
 import type { CoefficientRow, IntervalEstimate } from './fit-report-types.js';
 import type { TermName } from './terms.js';
 
-export function termsOfColumns(design: TermDesign, names: readonly string[]): TermName[] {
+export function termsOfColumns(design: Pick<TermDesign, 'columns'>, names: readonly string[]): TermName[] {
   const terms: TermName[] = [];
   for (const name of names) {
     const column = design.columns.find((entry) => entry.name === name);
@@ -30,7 +30,7 @@ export function interval(estimate: number, standardError: number, critical: numb
   };
 }
 
-export function coefficientRows(design: TermDesign, fit: BinomialFitEstimated): CoefficientRow[] {
+export function coefficientRows(design: Pick<TermDesign, 'columns'>, fit: BinomialFitEstimated): CoefficientRow[] {
   const critical = normalQuantile(0.975);
   return design.columns.map((column, j) => {
     const estimate = fit.coefficients[j] as number;

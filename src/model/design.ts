@@ -79,3 +79,32 @@ export function buildDesign(
   });
   return { matrix: { rows: n, columns: columns.length, names: columns.map((column) => column.name), values }, columns };
 }
+
+/**
+ * One row of {@link buildDesign}'s matrix at a time, without the matrix: `row(latency, scale,
+ * difficulty, out)` writes the row's entries into `out`, by the same products in the same order,
+ * so the same bits (for a sweep over many rows that needs each row once).
+ */
+export function designRows(terms: readonly TermName[], coding: DifficultyCoding): (latency: number, scale: number, difficulty: number, out: Float64Array) => void {
+  const columns = designColumns(terms, coding);
+  const form = scaleForm(terms);
+  const levelCodes = columns.map((column) =>
+    column.difficulty !== null && column.difficulty !== 'value' && coding.kind === 'levels' ? coding.levels.indexOf(column.difficulty.level) : -1,
+  );
+  let lastScale = Number.NaN;
+  let lastTerm = 0;
+  return (latency, scale, difficulty, out) => {
+    if (scale !== lastScale) {
+      lastScale = scale;
+      lastTerm = scaleTermValue(form, scale);
+    }
+    for (let j = 0; j < columns.length; j += 1) {
+      const column = columns[j] as (typeof columns)[number];
+      let value = column.latency ? latency : 1;
+      if (column.scale) value *= lastTerm;
+      if (column.difficulty === 'value') value *= difficulty;
+      else if (column.difficulty !== null && difficulty !== levelCodes[j]) value = 0;
+      out[j] = value;
+    }
+  };
+}

@@ -321,12 +321,24 @@ export function clusterRobust(input: {
   readonly coefficients: Float64Array;
   readonly observationCount: number;
 }): { readonly robust: BinomialRobust | null; readonly warning: string | null } {
-  const columns = input.design.columns;
   const { indices, count } = compactClusters(input.clusters, input.keep);
   const clusterScores = clusterScoreSums(input.design, input.rows, input.state, input.link, input.linearPredictor, indices, count);
+  return robustBlock({ clusterScores, clusterCount: count, covariance: input.covariance, coefficients: input.coefficients, observationCount: input.observationCount });
+}
+
+/** The CR1 block from each cluster's score sum (`clusterScores`, count x k), or a warning when there are too few clusters or observations. */
+export function robustBlock(input: {
+  readonly clusterScores: Float64Array;
+  readonly clusterCount: number;
+  readonly covariance: Float64Array;
+  readonly coefficients: Float64Array;
+  readonly observationCount: number;
+}): { readonly robust: BinomialRobust | null; readonly warning: string | null } {
+  const columns = input.coefficients.length;
+  const count = input.clusterCount;
   const robustCovariance = sandwichOfClusterScores({
     bread: input.covariance,
-    clusterScores,
+    clusterScores: input.clusterScores,
     clusterCount: count,
     observationCount: input.observationCount,
     parameterCount: columns,

@@ -49,7 +49,8 @@ import { groupTrials } from './collapse.js';
 import type { GroupedTrials } from './collapsed-trials.js';
 import { coefficientRows, square, termsOfColumns } from './coefficient-rows.js';
 import { assembleCrossValidation, assignFolds, calibrationTable, foldStartsOf } from './cross-validation.js';
-import { buildDesign } from './design.js';
+import { type TermDesign, buildDesign } from './design.js';
+import { designColumns } from './terms.js';
 import { FIT_REPORT_FORMAT, type FitModelOptions, type FitReport, noEstimates } from './fit-report-types.js';
 import { leastSquaresBaseline, leastSquaresReport } from './least-squares-baseline.js';
 import { bernoulliDeviance, likelihoodRatioTest, testedFactors } from './likelihood-ratio-tests.js';
@@ -148,17 +149,21 @@ export function beginFitModel(trials: Trials | GroupedTrials, options: FitModelO
     return { done: true, report: { ...base, ...empty, status: 'rank_deficient', aliased_terms: structural.aliased, warnings: [...warnings, ...structural.issues] } };
   }
 
-  const design = buildDesign(data, terms, coding);
-  const baselineNow = () => (options.baseline === false ? null : leastSquaresBaseline(prepared, design));
+  // The players' rows' design matrix, built when something needs it: the one-fit command's merged
+  // fit does not (merged-fit.ts), the refits do.
+  let built: TermDesign | null = null;
+  const fullDesign = (): TermDesign => (built ??= buildDesign(data, terms, coding));
+  const shape = { columns: designColumns(terms, coding) };
+  const baselineNow = () => (options.baseline === false ? null : leastSquaresBaseline(prepared, fullDesign()));
   if (prepared.family === 'least_squares') {
     const baseline = baselineNow();
     progress('fit');
-    return { done: true, report: { ...base, ...leastSquaresReport(prepared, design, warnings, progress, options), baseline } };
+    return { done: true, report: { ...base, ...leastSquaresReport(prepared, fullDesign(), warnings, progress, options), baseline } };
   }
   const folds = options.folds ?? 5;
   const seed = options.seed ?? 1;
   const assignment = folds >= 2 ? assignFolds(data, folds, seed) : null;
-  const estimates = sharedEstimates(design.matrix.columns, assignment?.folds ?? 0, shared);
+  const estimates = sharedEstimates(shape.columns.length, assignment?.folds ?? 0, shared);
   const context: RefitContext = { prepared, assignment, estimates };
   const jobs: RefitJob[] = [
     ...(options.baseline === false ? [] : [{ kind: 'baseline' as const }]),
@@ -167,7 +172,7 @@ export function beginFitModel(trials: Trials | GroupedTrials, options: FitModelO
   ];
   const run = (job: RefitJob): RefitResult => {
     progress(refitLabel(job, assignment?.folds ?? 0));
-    return runRefit(context, job, design);
+    return runRefit(context, job, fullDesign());
   };
   let finish: ((results: readonly RefitResult[]) => FitReport) | null = null;
   const fitFull = (): FitReport | null => {
@@ -188,9 +193,9 @@ export function beginFitModel(trials: Trials | GroupedTrials, options: FitModelO
   };
   const fullReport = (): { readonly done: true; readonly report: FitReport } | { readonly done: false; readonly finish: (results: readonly RefitResult[]) => FitReport } => {
     progress('fit');
-    const fit = fitFullModel(prepared, design);
+    const fit = fitFullModel(prepared, fullDesign);
     if (fit.status === 'rank_deficient' || fit.status === 'separation') {
-      const aliasedTerms = fit.status === 'rank_deficient' ? termsOfColumns(design, fit.aliased) : [];
+      const aliasedTerms = fit.status === 'rank_deficient' ? termsOfColumns(shape, fit.aliased) : [];
       const issue =
         fit.status === 'rank_deficient'
           ? error(
@@ -214,8 +219,8 @@ export function beginFitModel(trials: Trials | GroupedTrials, options: FitModelO
       if (!note.startsWith('`maxIterations`')) warnings.push(warning('fit_note', file, note));
     }
     const robust = fit.robust;
-    const coefficients = coefficientRows(design, fit);
-    const scaleEffect = scaleEffectOf(prepared, design, fit.coefficients, training);
+    const coefficients = coefficientRows(shape, fit);
+    const scaleEffect = scaleEffectOf(prepared, shape, fit.coefficients, training);
     if (!scaleEffect.increasing) {
       warnings.push(
         warning(
@@ -230,8 +235,8 @@ export function beginFitModel(trials: Trials | GroupedTrials, options: FitModelO
 
     // The refits may already be running (fit-model-threads.ts): the folds wait for their starts
     // (one Newton step from the full estimates, see refit-starts.ts).
-    publishFoldStarts(estimates, fit.coefficients, assignment === null ? [] : foldStartsOf(prepared, assignment, design.matrix, fit.coefficients));
-    const full = { columns: design.matrix.columns, bernoulliDeviance: bernoulliDeviance(prepared, fit.deviance) };
+    publishFoldStarts(estimates, fit.coefficients, assignment === null ? [] : foldStartsOf(prepared, assignment, fullDesign().matrix, fit.coefficients));
+    const full = { columns: shape.columns.length, bernoulliDeviance: bernoulliDeviance(prepared, fit.deviance) };
     const calibration = calibrationTable(data, fit.fitted);
     const finishReport = (results: readonly RefitResult[]): FitReport => {
       const likelihoodRatioTests = results.flatMap((result) => (result.kind === 'reduced' ? [likelihoodRatioTest(result.reduced, full)] : []));
@@ -244,8 +249,8 @@ export function beginFitModel(trials: Trials | GroupedTrials, options: FitModelO
         usable_for_compensation: fit.status === 'converged' && scaleEffect.increasing,
         covariance_kind: robust === null ? 'model' : 'cluster_robust_cr1',
         coefficients,
-        covariance: square(fit.covariance, design.matrix.columns),
-        robust_covariance: robust === null ? null : square(robust.covariance, design.matrix.columns),
+        covariance: square(fit.covariance, shape.columns.length),
+        robust_covariance: robust === null ? null : square(robust.covariance, shape.columns.length),
         statistics: {
           iterations: fit.iterations,
           observations: fit.observationCount,

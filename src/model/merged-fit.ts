@@ -18,20 +18,24 @@
  */
 import type { BinomialFit } from './binomial-fit-types.js';
 import { collapseOver } from './collapse.js';
-import { type TermDesign, buildDesign } from './design.js';
-import { clusterRobust } from './fit-binomial.js';
-import { glmRows } from './glm-rows.js';
+import { type TermDesign, buildDesign, designRows } from './design.js';
+import { robustBlock } from './fit-binomial.js';
+import { residualOf } from './glm-rows.js';
 import { linkFor } from './links.js';
 import { type Prepared, runBinomial } from './prepared-fit.js';
-import { multiply } from '../numeric/design-matrix.js';
+import { compactClusters } from '../numeric/cluster-sandwich.js';
 
 /** Merged rows must be at most this share of the players' rows for the merged fit to be used. */
 const MERGED_SHARE = 0.8;
 
-/** The full fit of `prepared` over its `design` (the players' rows). */
-export function fitFullModel(prepared: Prepared, design: TermDesign): BinomialFit {
+/**
+ * The full fit of `prepared` (the players' rows). `design` gives their design matrix, built only
+ * when the players' rows are fitted themselves: the merged fit's sweep computes each row's design
+ * entries as it goes (`designRows`), so the one-fit command never holds the full matrix.
+ */
+export function fitFullModel(prepared: Prepared, design: () => TermDesign): BinomialFit {
   const { data } = prepared;
-  const direct = () => runBinomial(prepared, data, design);
+  const direct = () => runBinomial(prepared, data, design());
   if (prepared.likelihood !== 'bernoulli' || data.player === null) return direct();
   for (let i = 0; i < data.rows; i += 1) if (!((data.attempts[i] as number) * (data.weight[i] as number) > 0)) return direct();
   const merged = collapseOver(data, { latency: true, scale: true, difficulty: true });
@@ -39,28 +43,38 @@ export function fitFullModel(prepared: Prepared, design: TermDesign): BinomialFi
   const fit = runBinomial(prepared, merged, buildDesign(merged, prepared.terms, prepared.coding), false);
   if (fit.status !== 'converged' || fit.warnings.length > 0) return direct();
 
-  // The players' rows at the estimate: fitted probabilities and, for CR1, the score sums by player.
+  // The players' rows at the estimate, one at a time: each row's fitted probability and, for CR1,
+  // its score x w (y - mu) (dmu/deta) / (mu (1 - mu)) added to its player's sum, as fitBinomial's
+  // own CR1 sums (for the logit link dmu/deta is mu (1 - mu) itself).
   const link = linkFor(prepared.link);
-  const linearPredictor = multiply(design.matrix, fit.coefficients);
-  const mu = new Float64Array(data.rows);
-  const complement = new Float64Array(data.rows);
+  const logit = link.name === 'logit';
+  const k = fit.coefficients.length;
+  const rowOf = designRows(prepared.terms, prepared.coding);
+  const x = new Float64Array(k);
+  const fitted = new Float64Array(data.rows);
+  const clusters = prepared.clustered ? compactClusters(data.player, new Uint8Array(data.rows).fill(1)) : null;
+  const clusterScores = new Float64Array(clusters === null ? 0 : clusters.count * k);
   for (let i = 0; i < data.rows; i += 1) {
-    const eta = linearPredictor[i] as number;
-    mu[i] = link.inverse(eta);
-    complement[i] = link.inverseComplement(eta);
+    rowOf(data.latency[i] as number, data.scale[i] as number, data.difficulty[i] as number, x);
+    // X b summed as multiply() sums it (columns in order, zero coefficients skipped).
+    let eta = 0;
+    for (let j = 0; j < k; j += 1) {
+      const coefficient = fit.coefficients[j] as number;
+      if (coefficient !== 0) eta += (x[j] as number) * coefficient;
+    }
+    const mu = link.inverse(eta);
+    fitted[i] = mu;
+    if (clusters === null) continue;
+    const complement = link.inverseComplement(eta);
+    const variance = mu * complement;
+    if (!(variance > 0)) continue;
+    const attempts = data.attempts[i] as number;
+    const residual = attempts * (data.weight[i] as number) * residualOf((data.successes[i] as number) / attempts, mu, complement);
+    const factor = logit ? residual : (residual * link.derivative(eta)) / variance;
+    const at = (clusters.indices[i] as number) * k;
+    for (let j = 0; j < k; j += 1) clusterScores[at + j] = (clusterScores[at + j] as number) + (x[j] as number) * factor;
   }
-  if (!prepared.clustered) return { ...fit, fitted: mu };
-  const block = clusterRobust({
-    design: design.matrix,
-    rows: glmRows(data.successes, data.attempts, data.weight, null),
-    state: { mu, complement },
-    link,
-    linearPredictor,
-    clusters: data.player,
-    keep: new Uint8Array(data.rows).fill(1),
-    covariance: fit.covariance,
-    coefficients: fit.coefficients,
-    observationCount: fit.observationCount,
-  });
-  return { ...fit, fitted: mu, robust: block.robust, warnings: block.warning === null ? fit.warnings : [...fit.warnings, block.warning] };
+  if (clusters === null) return { ...fit, fitted };
+  const block = robustBlock({ clusterScores, clusterCount: clusters.count, covariance: fit.covariance, coefficients: fit.coefficients, observationCount: fit.observationCount });
+  return { ...fit, fitted, robust: block.robust, warnings: block.warning === null ? fit.warnings : [...fit.warnings, block.warning] };
 }

@@ -26,7 +26,7 @@ export function trainingRanges(data: CollapsedTrials, coding: DifficultyCoding, 
 }
 
 /** The slope of the linear predictor in the scale term at the corners of the training range. */
-export function scaleEffectOf(prepared: Prepared, design: TermDesign, coefficients: ArrayLike<number>, training: TrainingRanges): ScaleEffect {
+export function scaleEffectOf(prepared: Prepared, design: Pick<TermDesign, 'columns'>, coefficients: ArrayLike<number>, training: TrainingRanges): ScaleEffect {
   if (scaleForm(prepared.terms) === 'none') return { increasing: false, smallest_slope: null, at_latency_ms: null, at_difficulty: null };
   const difficulties: (number | string)[] = Array.isArray(training.difficulty)
     ? [...(training.difficulty as readonly string[])]

@@ -45,7 +45,7 @@ describe('the full fit on rows merged over the players', () => {
         const design = buildDesign(prepared.data, prepared.terms, prepared.coding);
         // The merge must engage here (at most four rows in five), or this checks the fallback.
         expect(collapseOver(prepared.data, { latency: true, scale: true, difficulty: true }).rows).toBeLessThan(0.8 * prepared.data.rows);
-        const merged = fitFullModel(prepared, design);
+        const merged = fitFullModel(prepared, () => design);
         const direct = runBinomial(prepared, prepared.data, design);
         if (merged.status !== 'converged' || direct.status !== 'converged') throw new Error('expected converged fits');
         direct.coefficients.forEach((value, j) => {
@@ -68,6 +68,16 @@ describe('the full fit on rows merged over the players', () => {
     }
   }
 
+  it("never builds the players' design matrix when the rows merge (the sweep computes each row's entries)", () => {
+    const trials = groupTrials(unwrap(parseTrialsCsv(attemptsCsv(6000, 19, false), 'attempts.csv')));
+    const prepared = prepare(trials, {});
+    const fit = fitFullModel(prepared, () => {
+      throw new Error('the full design was built');
+    });
+    expect(fit.status).toBe('converged');
+    if (fit.status === 'converged') expect(fit.fitted).toHaveLength(prepared.data.rows);
+  });
+
   it('gives the report the same figures (to the fit precision) whether or not the rows merge, and leaves per-round files to the rounds', () => {
     const trials = groupTrials(unwrap(parseTrialsCsv(attemptsCsv(6000, 18, false), 'attempts.csv')));
     const report = fitModel(trials, { folds: 0, likelihoodRatioTests: false, baseline: false });
@@ -81,6 +91,6 @@ describe('the full fit on rows merged over the players', () => {
     const rounds = groupTrials(unwrap(parseTrialsCsv('player,latency_ms,scale,difficulty,hits,attempts\na,10,1,x,3,10\nb,10,1,x,5,10\na,20,1.5,y,6,10\nb,30,1,y,2,10\nc,20,1.5,x,7,12\nc,15,1,y,4,11\n', 'rounds.csv')));
     const roundsPrepared = prepare(rounds, { terms: ['intercept', 'latency', 'log_scale'] });
     const roundsDesign = buildDesign(roundsPrepared.data, roundsPrepared.terms, roundsPrepared.coding);
-    expect(fitFullModel(roundsPrepared, roundsDesign)).toEqual(runBinomial(roundsPrepared, roundsPrepared.data, roundsDesign));
+    expect(fitFullModel(roundsPrepared, () => roundsDesign)).toEqual(runBinomial(roundsPrepared, roundsPrepared.data, roundsDesign));
   });
 });
