@@ -58,20 +58,6 @@ export function gatherCollapsed(data: CollapsedTrials, indices: Int32Array): Col
   };
 }
 
-/** The counts a fit of collapsed rows reads besides its design (a fold's training rows, gathered without their covariates). */
-export type CountRows = Pick<CollapsedTrials, 'rows' | 'successes' | 'attempts' | 'weight' | 'player'>;
-
-/** The counts of rows `indices`, in that order, without players (a fit that does not cluster). */
-export function gatherCounts(data: CollapsedTrials, indices: Int32Array): CountRows {
-  return {
-    rows: indices.length,
-    successes: gatherFloats(data.successes, indices),
-    attempts: gatherFloats(data.attempts, indices),
-    weight: gatherFloats(data.weight, indices),
-    player: null,
-  };
-}
-
 // One function per array type: a gather shared by both would run on polymorphic element access,
 // which measured several times slower on a million rows.
 function gatherFloats(source: Float64Array, indices: Int32Array): Float64Array {

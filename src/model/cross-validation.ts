@@ -13,9 +13,9 @@
  * infinity (the clipping scikit-learn's `log_loss` applies).
  */
 import { type Issue, warning } from '../issues.js';
-import { type DesignMatrix, gatherRows, multiply } from '../numeric/design-matrix.js';
+import { type DesignMatrix, multiply } from '../numeric/design-matrix.js';
 import { createRandomSource, shuffledIndices } from '../random.js';
-import { type CollapsedTrials, type CountRows, gatherCollapsed, gatherCounts } from './collapsed-trials.js';
+import { type CollapsedTrials, gatherCollapsed } from './collapsed-trials.js';
 import { collapseOver } from './collapse.js';
 import { type TermDesign, buildDesign } from './design.js';
 import { fitLeastSquares } from './fit-least-squares.js';
@@ -90,7 +90,7 @@ export interface FoldScores {
 }
 
 /** The held-out rows' log loss, Brier and calibration-bin sums at their predicted probabilities, in row order. */
-function scoreHeldOut(data: CountRows, rows: Int32Array, probabilities: Float64Array): FoldScores {
+function scoreHeldOut(data: CollapsedTrials, rows: Int32Array, probabilities: Float64Array): FoldScores {
   const bins = new CalibrationBins();
   let logLoss = 0;
   let brier = 0;
@@ -136,7 +136,7 @@ function predictorAt(design: DesignMatrix, indices: Int32Array, coefficients: Ar
   return product;
 }
 
-function fitCoefficients(prepared: Prepared, data: CountRows, design: TermDesign, start: Float64Array | null): { readonly status: string; readonly coefficients: Float64Array | null } {
+function fitCoefficients(prepared: Prepared, data: CollapsedTrials, design: TermDesign, start: Float64Array | null): { readonly status: string; readonly coefficients: Float64Array | null } {
   if (prepared.family === 'least_squares') {
     const fit = fitLeastSquares({ design: design.matrix, response: accuracy(data), weights: leastSquaresWeights(prepared, data) });
     return { status: fit.status, coefficients: fit.status === 'fitted' ? fit.coefficients : null };
@@ -175,13 +175,13 @@ function foldSplit(assignment: FoldAssignment, fold: number): { readonly trainin
 
 /**
  * Fit fold `fold` (0-based) on its training rows, from `start` (null: R's
- * starting values); `design` is the full design when the caller has it (a
- * binomial report's folds). A binomial fold fit does not cluster, so its
+ * starting values); `design` is the full design, which only a binomial
+ * report's folds (refit jobs) pass. Those fits do not cluster, so their
  * training rows are merged over the players first (`collapseOver`: the same
- * estimates, on the 1M-row bench file about 286,000 rows instead of 788,000);
- * a least-squares one takes the full design's rows with their counts. The
- * held-out predictions are computed on the full design's rows in place.
- * Without `design`, each set of rows is gathered and its design built.
+ * estimates, on the 1M-row bench file about 286,000 rows instead of 788,000),
+ * and the held-out predictions are computed on the full design's rows in
+ * place. Without `design` (the least-squares family's folds), each set of
+ * rows is gathered and its design built.
  */
 export function fitFold(prepared: Prepared, assignment: FoldAssignment, fold: number, start: Float64Array | null, design?: TermDesign): FoldFit {
   const { training, heldOut } = foldSplit(assignment, fold);
@@ -202,14 +202,9 @@ export function fitFold(prepared: Prepared, assignment: FoldAssignment, fold: nu
     const heldOutRows = gatherCollapsed(data, heldOut);
     return scored(fitted.status, predictProbabilities(prepared, buildDesign(heldOutRows, prepared.terms, prepared.coding), fitted.coefficients));
   }
-  let fitted: { readonly status: string; readonly coefficients: Float64Array | null };
-  if (prepared.family === 'least_squares') {
-    fitted = fitCoefficients(prepared, gatherCounts(data, training), { matrix: gatherRows(design.matrix, training), columns: design.columns }, start);
-  } else {
-    // A binomial fold fit does not cluster: its rows merged over the players give the same estimates on fewer rows.
-    const merged = collapseOver(gatherCollapsed(data, training), EVERY_COVARIATE);
-    fitted = fitCoefficients(prepared, merged, buildDesign(merged, prepared.terms, prepared.coding), start);
-  }
+  // A binomial fold fit does not cluster: its rows merged over the players give the same estimates on fewer rows.
+  const merged = collapseOver(gatherCollapsed(data, training), EVERY_COVARIATE);
+  const fitted = fitCoefficients(prepared, merged, buildDesign(merged, prepared.terms, prepared.coding), start);
   if (fitted.coefficients === null) return scored(fitted.status, null);
   return scored(fitted.status, probabilitiesOf(prepared, predictorAt(design.matrix, heldOut, fitted.coefficients)));
 }
@@ -239,7 +234,7 @@ export function crossValidate(prepared: Prepared, requestedFolds: number, seed: 
   return assembleCrossValidation(prepared, assignment, seed, fits, warnings);
 }
 
-/** The held-out scores of the folds' fits (`fits[f]` of fold f, with its predictions), accumulated in fold order. */
+/** The cross-validation of the folds' fits (`fits[f]` of fold f, each scored on its held-out rows): their sums added in fold order. */
 export function assembleCrossValidation(
   prepared: Prepared,
   assignment: FoldAssignment,

@@ -309,7 +309,7 @@ export function fitBinomial(data: BinomialData, options: BinomialFitOptions = {}
  * information), from each cluster's score sum over the rows `keep` marks (`design` and `rows` are
  * those rows), or a warning when there are too few clusters or observations.
  */
-export function clusterRobust(input: {
+function clusterRobust(input: {
   readonly design: DesignMatrix;
   readonly rows: GlmRows;
   readonly state: { readonly mu: Float64Array; readonly complement: Float64Array };
@@ -355,10 +355,21 @@ export function robustBlock(input: {
 }
 
 /**
+ * A row's score factor w (y - mu) (dmu/deta) / (mu (1 - mu)) at linear predictor `eta` (its score
+ * is x times it), or null when the variance underflows (the row carries no score). For the logit
+ * link dmu/deta is mu (1 - mu) itself, so the factor is w (y - mu): no exp.
+ */
+export function scoreFactor(link: Link, logit: boolean, weight: number, proportion: number, mu: number, complement: number, eta: number): number | null {
+  const variance = mu * complement;
+  if (!(variance > 0)) return null;
+  const residual = weight * residualOf(proportion, mu, complement);
+  return logit ? residual : (residual * link.derivative(eta)) / variance;
+}
+
+/**
  * Each cluster's score sum u_g = sum over its rows of x_i w_i (y_i - mu_i) (dmu/deta)_i / (mu_i (1 - mu_i)),
- * summed row by row as the scores are computed (no n-by-k array); rows whose variance underflows
- * carry none. For the logit link dmu/deta is mu (1 - mu) itself, so a row's factor is w (y - mu)
- * (no exp per row).
+ * summed row by row as the scores are computed (no n-by-k array), each row's factor from
+ * {@link scoreFactor}.
  */
 function clusterScoreSums(
   design: DesignMatrix,
@@ -375,12 +386,8 @@ function clusterScoreSums(
   const logit = link.name === 'logit';
   const sums = new Float64Array(count * columns);
   for (let i = 0; i < n; i += 1) {
-    const fitted = mu[i] as number;
-    const other = complement[i] as number;
-    const variance = fitted * other;
-    if (!(variance > 0)) continue;
-    const residual = (weights[i] as number) * residualOf(proportions[i] as number, fitted, other);
-    const factor = logit ? residual : (residual * link.derivative(linearPredictor[i] as number)) / variance;
+    const factor = scoreFactor(link, logit, weights[i] as number, proportions[i] as number, mu[i] as number, complement[i] as number, linearPredictor[i] as number);
+    if (factor === null) continue;
     const at = (indices[i] as number) * columns;
     for (let j = 0; j < columns; j += 1) sums[at + j] = (sums[at + j] as number) + (values[j * n + i] as number) * factor;
   }

@@ -8,9 +8,9 @@
  * bit, for any number of threads (tests compare them).
  *
  * The workers start before the full fit, so that their start (the prepared
- * rows by structured clone, their own designs) and the least-squares
- * baseline overlap it; the refits that need the full estimates or a fold's
- * start wait for the calling thread to publish them (`shared-estimates.ts`).
+ * rows by structured clone, their own designs), the least-squares baseline
+ * and the reduced models overlap it; a fold waits for the calling thread to
+ * publish its start (`shared-estimates.ts`).
  * The copy is about 50 MB on a million distinct rows, so memory grows by
  * that and the workers' fits' arrays while they run. CLI only: the
  * library's entry point never starts a thread.
@@ -43,8 +43,8 @@ export async function fitModelOnThreads(
   if (stage.done) return stage.report;
   const { context, jobs } = stage;
   const folds = context.assignment?.folds ?? 0;
-  // The workers start before the full fit: their start and the baseline overlap it, and the
-  // refits that need its estimates wait for them (shared-estimates.ts).
+  // The workers start before the full fit: their start, the baseline and the reduced models overlap
+  // it, and the folds wait for their starts (shared-estimates.ts).
   let ended: FitReport | null = null;
   const results = await runJobsOnThreads(context, jobs, stage.run, {
     threads,

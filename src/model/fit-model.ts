@@ -38,9 +38,10 @@
  * infinity (the clipping scikit-learn's `log_loss` applies).
  *
  * Cost: (1 + factors + folds) fits, each O(iterations * rows * k^2) on the
- * collapsed rows; the likelihood-ratio and fold refits start from one-step
- * estimates computed from the full fit (`refit-starts.ts`), so they take
- * fewer iterations, and they are jobs (`refit-jobs.ts`) that
+ * collapsed rows; the refits that do not cluster (the reduced models, the
+ * folds, a per-attempt file's baseline) run on rows merged over the players,
+ * the folds from one-step estimates computed from the full fit
+ * (`refit-starts.ts`), and they are jobs (`refit-jobs.ts`) that
  * `fit-model-threads.ts` can share with worker threads.
  */
 import { type Issue, error, show, warning } from '../issues.js';

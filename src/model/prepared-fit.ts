@@ -9,7 +9,7 @@
  */
 import { type Issue, LagparityInputError, error, show } from '../issues.js';
 import type { BinomialFit, BinomialLikelihood } from './binomial-fit-types.js';
-import type { CollapsedTrials, CountRows, GroupedTrials } from './collapsed-trials.js';
+import type { CollapsedTrials, GroupedTrials } from './collapsed-trials.js';
 import { type TermDesign, difficultyCodingOf } from './design.js';
 import { fitBinomial } from './fit-binomial.js';
 import type { FitFamily, FitModelOptions } from './fit-report-types.js';
@@ -108,7 +108,7 @@ export function structuralIssues(prepared: Prepared): { issues: Issue[]; aliased
 
 export function runBinomial(
   prepared: Prepared,
-  data: CountRows,
+  data: CollapsedTrials,
   design: TermDesign,
   clustered = prepared.clustered,
   start: Float64Array | null = null,
@@ -153,12 +153,12 @@ export function countDistinct(values: ArrayLike<number>, stopAt = Infinity): num
   return seen.size;
 }
 
-export function accuracy(data: CountRows): Float64Array {
+export function accuracy(data: CollapsedTrials): Float64Array {
   return data.successes.map((value, i) => value / (data.attempts[i] as number));
 }
 
 /** Per-round files: one row per round (prior weights only); per-attempt files: attempt-weighted, i.e. OLS on the 0/1 attempts. */
-export function leastSquaresWeights(prepared: Prepared, data: CountRows): Float64Array {
+export function leastSquaresWeights(prepared: Prepared, data: CollapsedTrials): Float64Array {
   return prepared.likelihood === 'bernoulli' ? data.weight.map((value, i) => value * (data.attempts[i] as number)) : data.weight;
 }
 
@@ -168,7 +168,7 @@ export function leastSquaresWeights(prepared: Prepared, data: CountRows): Float6
  * so that least squares on the rows is least squares on the attempts (`fitLeastSquares`'s
  * `groups`); per-round files: none (the rounds are the observations).
  */
-export function leastSquaresGroups(prepared: Prepared, data: CountRows): { readonly counts: Float64Array; readonly withinSumOfSquares: Float64Array } | undefined {
+export function leastSquaresGroups(prepared: Prepared, data: CollapsedTrials): { readonly counts: Float64Array; readonly withinSumOfSquares: Float64Array } | undefined {
   if (prepared.likelihood !== 'bernoulli') return undefined;
   const within = new Float64Array(data.rows);
   for (let i = 0; i < data.rows; i += 1) {

@@ -18,7 +18,6 @@
 
 export interface SharedEstimates {
   readonly columns: number;
-  readonly folds: number;
   readonly values: Float64Array;
   readonly state: Int32Array;
 }
@@ -30,7 +29,7 @@ const ABANDONED = 2;
 /** Room for `columns` estimates and `folds` starts, shared between threads when `shared`. */
 export function sharedEstimates(columns: number, folds: number, shared: boolean): SharedEstimates {
   const make = (bytes: number) => (shared ? new SharedArrayBuffer(bytes) : new ArrayBuffer(bytes));
-  return { columns, folds, values: new Float64Array(make((1 + folds) * columns * 8)), state: new Int32Array(make((1 + folds) * 4)) };
+  return { columns, values: new Float64Array(make((1 + folds) * columns * 8)), state: new Int32Array(make((1 + folds) * 4)) };
 }
 
 function signal(shared: SharedEstimates, value: number): void {
