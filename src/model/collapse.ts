@@ -99,6 +99,9 @@ export interface UsedCovariates {
   readonly difficulty: boolean;
 }
 
+/** Every covariate kept: {@link collapseOver} then merges over the players alone. */
+export const EVERY_COVARIATE: UsedCovariates = { latency: true, scale: true, difficulty: true };
+
 /**
  * The rows merged over players and over the covariates `used` leaves out:
  * the rows of a model that reads only `used` and does not cluster (a

@@ -16,16 +16,13 @@ import { type Issue, warning } from '../issues.js';
 import { type DesignMatrix, multiply } from '../numeric/design-matrix.js';
 import { createRandomSource, shuffledIndices } from '../random.js';
 import { type CollapsedTrials, gatherCollapsed } from './collapsed-trials.js';
-import { collapseOver } from './collapse.js';
+import { EVERY_COVARIATE, collapseOver } from './collapse.js';
 import { type TermDesign, buildDesign } from './design.js';
 import { fitLeastSquares } from './fit-least-squares.js';
 import type { CalibrationBin, CrossValidation, FoldResult } from './fit-report-types.js';
 import { linkFor } from './links.js';
 import { type Prepared, accuracy, leastSquaresWeights, runBinomial } from './prepared-fit.js';
 import { foldStarts } from './refit-starts.js';
-
-/** What a fold's merged rows keep apart. */
-const EVERY_COVARIATE = { latency: true, scale: true, difficulty: true } as const;
 
 /** Held-out probabilities are clipped to [CLIP, 1 - CLIP] for the log loss. */
 const CLIP = 1e-15;
