@@ -33,11 +33,12 @@
  * their attempts (the estimate would be infinite) are left out of the fit and
  * reported without an interval.
  *
- * Cost: one fit of one column per band (each row one non-zero), then one pass.
+ * Cost: one fit of one indicator per band (few-column-logit.ts: the bands' fits
+ * separate, a few passes in all), then one pass, and the mix's passes.
  */
 import { linkFor } from '../model/links.js';
-import { designMatrixFromColumns } from '../numeric/design-matrix.js';
-import { type FieldRows, fitField, twoSidedCritical } from './field-fit.js';
+import { type FieldRows, twoSidedCritical } from './field-fit.js';
+import { fitIndicatorLogit } from './few-column-logit.js';
 
 export interface BandRate {
   /** Observed hits / attempts (weighted); null for a band with no rows. */
@@ -96,45 +97,39 @@ export function bandRates(
   for (let b = 0; b < bandCount; b += 1) if ((hits[b] as number) > 0 && (hits[b] as number) < (weight[b] as number) && players(b) >= 2) fittedBands.push(b);
   const column = new Int32Array(bandCount).fill(-1);
   fittedBands.forEach((b, j) => (column[b] = j));
-  const atMix = (gamma: (b: number) => number) => mixRates(rows, offset, band, bandCount, weight, mix, gamma);
-  const predictedAtMix = atMix(() => 0).rate;
+  // The model's rates at the mix (no shift), and with the fitted shifts (both in one pass per difficulty).
+  const atMix = (gamma: ((b: number) => number) | null) => mixRates(rows, offset, band, bandCount, weight, mix, gamma);
   const unfitted = (failure: string | null): BandRates => ({
     rates: observed.map((value) => ({ observed: value, lower: null, upper: null, fitted: false })),
     gapOf: () => null,
-    predictedAtMix,
+    predictedAtMix: atMix(null).model.rate,
     failure,
     departures: null,
   });
   if (fittedBands.length === 0) return unfitted('no band has both hits and misses');
 
-  const priorWeights = new Float64Array(n);
-  const columns = fittedBands.map((b) => ({ name: `band_${b}`, values: new Float64Array(n) }));
-  for (let i = 0; i < n; i += 1) {
-    const j = column[band[i] as number] as number;
-    if (j < 0) continue;
-    (columns[j] as { values: Float64Array }).values[i] = 1;
-    priorWeights[i] = rows.priorWeights[i] as number;
-  }
-  const result = fitField(rows, designMatrixFromColumns(columns), { offset, priorWeights, start: new Float64Array(fittedBands.length) });
+  const rowColumn = new Int32Array(n);
+  for (let i = 0; i < n; i += 1) rowColumn[i] = column[band[i] as number] as number;
+  const result = fitIndicatorLogit(rows, offset, rowColumn, fittedBands.length, fittedBands.map((b) => `band_${b}`));
   if (!result.ok) return unfitted(result.reason);
-  const { fit } = result;
   const k = fittedBands.length;
-  const covariance = fit.robust?.covariance ?? fit.covariance;
+  const covariance = result.robustCovariance ?? result.covariance;
   const critical = twoSidedCritical(0.95);
-  const gamma = (j: number) => fit.coefficients[j] as number;
+  const gamma = (j: number) => result.coefficients[j] as number;
   const spread = (j: number) => critical * Math.sqrt(covariance[j * k + j] as number);
-  // One pass: the slope d_b at the estimate and the rate at both ends of each gamma's interval.
-  const slope = new Float64Array(k);
+  // The slope d_b at the estimate is the information's diagonal; one pass for the rate at both ends of each gamma's interval.
+  const slope = result.information;
   const atLower = new Float64Array(k);
   const atUpper = new Float64Array(k);
+  const lowerShift = Float64Array.from({ length: k }, (_, j) => gamma(j) - spread(j));
+  const upperShift = Float64Array.from({ length: k }, (_, j) => gamma(j) + spread(j));
   for (let i = 0; i < n; i += 1) {
-    const j = column[band[i] as number] as number;
+    const j = rowColumn[i] as number;
     if (j < 0) continue;
-    const w = (priorWeights[i] as number) * (rows.trials[i] as number);
-    const mu = fit.fitted[i] as number;
-    slope[j] = (slope[j] as number) + w * mu * (1 - mu);
-    atLower[j] = (atLower[j] as number) + w * logistic((offset[i] as number) + gamma(j) - spread(j));
-    atUpper[j] = (atUpper[j] as number) + w * logistic((offset[i] as number) + gamma(j) + spread(j));
+    const w = (rows.priorWeights[i] as number) * (rows.trials[i] as number);
+    if (!(w > 0)) continue;
+    atLower[j] = (atLower[j] as number) + w * logistic((offset[i] as number) + (lowerShift[j] as number));
+    atUpper[j] = (atUpper[j] as number) + w * logistic((offset[i] as number) + (upperShift[j] as number));
   }
   const rates: BandRate[] = observed.map((value, b) => {
     const j = column[b] as number;
@@ -143,7 +138,9 @@ export function bandRates(
     return { observed: value, lower: (atLower[j] as number) / total, upper: (atUpper[j] as number) / total, fitted: true };
   });
   // The rates at the file's difficulty mix and their slopes in gamma (as played without a mix).
-  const standard = mix === null ? null : atMix((b) => ((column[b] as number) >= 0 ? gamma(column[b] as number) : 0));
+  const rated = atMix(mix === null ? null : (b) => ((column[b] as number) >= 0 ? gamma(column[b] as number) : 0));
+  const predictedAtMix = rated.model.rate;
+  const standard = rated.shifted;
   const rateAtMix = (b: number) => (standard === null ? observed[b] : standard.rate[b]);
   const derivative = (j: number) => ((standard === null ? slope[j] : standard.slope[fittedBands[j] as number]) as number) / (standard === null ? (weight[fittedBands[j] as number] as number) : 1);
   const gapOf = (b: number): BandGap | null => {
@@ -163,13 +160,19 @@ export function bandRates(
       2 * derivative(j) * derivative(r) * (covariance[j * k + r] as number);
     return { estimate: value - referenceValue, standardError: Math.sqrt(Math.max(variance, 0)) };
   };
-  return { rates, gapOf, predictedAtMix, failure: null, departures: { bands: fittedBands, estimates: fit.coefficients, covariance } };
+  return { rates, gapOf, predictedAtMix, failure: null, departures: { bands: fittedBands, estimates: result.coefficients, covariance } };
+}
+
+interface MixRates {
+  readonly rate: (number | null)[];
+  readonly slope: Float64Array;
 }
 
 /**
- * Each band's rate at the file's difficulty mix with its band shift gamma(b), and the rate's
- * derivative in gamma: sum_d pi_d mean_b expit(q(d) + g) and sum_d pi_d mean_b mu (1 - mu). Without
- * a mix, at the rows' own offsets. Null for bands with no weight.
+ * Each band's rate at the file's difficulty mix as the model predicts it (`model`, no shift) and,
+ * given `gamma`, with its band shift gamma(b) (`shifted`), and the rate's derivative in gamma:
+ * sum_d pi_d mean_b expit(q(d) + g) and sum_d pi_d mean_b mu (1 - mu). Without a mix, at the
+ * rows' own offsets. Null for bands with no weight. One pass per difficulty for both.
  */
 function mixRates(
   rows: FieldRows,
@@ -178,30 +181,40 @@ function mixRates(
   bandCount: number,
   weight: Float64Array,
   mix: DifficultyMix,
-  gamma: (b: number) => number,
-): { rate: (number | null)[]; slope: Float64Array } {
+  gamma: ((b: number) => number) | null,
+): { model: MixRates; shifted: MixRates | null } {
+  const modelRate = new Float64Array(bandCount);
+  const modelSlope = new Float64Array(bandCount);
   const rate = new Float64Array(bandCount);
   const slope = new Float64Array(bandCount);
-  const shifts = Float64Array.from({ length: bandCount }, (_, b) => ((weight[b] as number) > 0 ? gamma(b) : 0));
+  const shifts = Float64Array.from({ length: bandCount }, (_, b) => (gamma !== null && (weight[b] as number) > 0 ? gamma(b) : 0));
   const levels = mix === null ? [{ share: 1, offsets: offset }] : mix.offsets.map((offsets, d) => ({ share: mix.shares[d] as number, offsets }));
   for (const { share, offsets } of levels) {
     for (let i = 0; i < offset.length; i += 1) {
       const b = band[i] as number;
       const w = share * (rows.priorWeights[i] as number) * (rows.trials[i] as number);
       if (!(w > 0)) continue;
-      const mu = logistic((offsets[i] as number) + (shifts[b] as number));
+      const q = offsets[i] as number;
+      const atModel = logistic(q);
+      modelRate[b] = (modelRate[b] as number) + w * atModel;
+      modelSlope[b] = (modelSlope[b] as number) + w * atModel * (1 - atModel);
+      if (gamma === null) continue;
+      const mu = logistic(q + (shifts[b] as number));
       rate[b] = (rate[b] as number) + w * mu;
       slope[b] = (slope[b] as number) + w * mu * (1 - mu);
     }
   }
-  for (let b = 0; b < bandCount; b += 1) {
-    const total = weight[b] as number;
-    if (total > 0) {
-      rate[b] = (rate[b] as number) / total;
-      slope[b] = (slope[b] as number) / total;
+  const finish = (sums: Float64Array, slopes: Float64Array): MixRates => {
+    for (let b = 0; b < bandCount; b += 1) {
+      const total = weight[b] as number;
+      if (total > 0) {
+        sums[b] = (sums[b] as number) / total;
+        slopes[b] = (slopes[b] as number) / total;
+      }
     }
-  }
-  return { rate: Array.from(rate, (value, b) => ((weight[b] as number) > 0 ? value : null)), slope };
+    return { rate: Array.from(sums, (value, b) => ((weight[b] as number) > 0 ? value : null)), slope: slopes };
+  };
+  return { model: finish(modelRate, modelSlope), shifted: gamma === null ? null : finish(rate, slope) };
 }
 
 const logistic = linkFor('logit').inverse;

@@ -9,14 +9,14 @@
  *   predictions spread as the outcomes do (b < 1: too extreme, b > 1: too
  *   timid: on live data, effects stronger than the model's).
  *
- * Both binomial fits, with model-based and cluster-robust (CR1, by player)
- * errors; the interval is the robust one, 95%.
+ * Both binomial fits (few-column-logit.ts), with model-based and
+ * cluster-robust (CR1, by player) errors; the interval is the robust one, 95%.
  *
- * Cost: two fits of one and two columns over the rows.
+ * Cost: two fits of one and two columns over the rows, a few passes each.
  */
 import type { CalibrationEstimate } from './field-types.js';
-import { type FieldRows, fitField, robustError, twoSidedCritical } from './field-fit.js';
-import { designMatrixFromColumns, interceptColumn } from '../numeric/design-matrix.js';
+import { type FieldRows, twoSidedCritical } from './field-fit.js';
+import { type FewColumnFit, fitIndicatorLogit, fitLineLogit } from './few-column-logit.js';
 
 const LEVEL = 0.95;
 
@@ -24,30 +24,31 @@ export type CalibrationFigure = { readonly ok: true; readonly value: Calibration
 
 /** a in logit P = a + q, q = the logit of the prediction as an offset. */
 export function calibrationInTheLarge(rows: FieldRows, logitPrediction: Float64Array): CalibrationFigure {
-  const design = designMatrixFromColumns([interceptColumn(logitPrediction.length)]);
-  const result = fitField(rows, design, { offset: logitPrediction, start: [0] });
-  if (!result.ok) return result;
-  return { ok: true, value: estimateOf(result.fit, 0) };
+  return figureOf(fitIndicatorLogit(rows, logitPrediction, null, 1, ['(Intercept)']), 0);
 }
 
 /** b in logit P = a + b q, q = the logit of the prediction. */
 export function calibrationSlope(rows: FieldRows, logitPrediction: Float64Array): CalibrationFigure {
-  const design = designMatrixFromColumns([interceptColumn(logitPrediction.length), { name: 'logit_prediction', values: logitPrediction }]);
-  const result = fitField(rows, design, { start: [0, 1] });
-  if (!result.ok) return result;
-  return { ok: true, value: estimateOf(result.fit, 1) };
+  return figureOf(fitLineLogit(rows, null, logitPrediction, [0, 1], ['(Intercept)', 'logit_prediction']), 1);
 }
 
-function estimateOf(fit: Parameters<typeof robustError>[0], j: number): CalibrationEstimate {
-  const estimate = fit.coefficients[j] as number;
-  const standardError = robustError(fit, j);
+/** Coefficient j with its CR1 interval (the model-based one without a robust covariance). */
+function figureOf(result: FewColumnFit, j: number): CalibrationFigure {
+  if (!result.ok) return result;
+  const k = result.coefficients.length;
+  const estimate = result.coefficients[j] as number;
+  const modelError = Math.sqrt(result.covariance[j * k + j] as number);
+  const standardError = result.robustCovariance === null ? modelError : Math.sqrt(result.robustCovariance[j * k + j] as number);
   const critical = twoSidedCritical(LEVEL);
   return {
-    estimate,
-    std_error: standardError,
-    model_std_error: fit.standardErrors[j] as number,
-    lower: estimate - critical * standardError,
-    upper: estimate + critical * standardError,
-    level: LEVEL,
+    ok: true,
+    value: {
+      estimate,
+      std_error: standardError,
+      model_std_error: modelError,
+      lower: estimate - critical * standardError,
+      upper: estimate + critical * standardError,
+      level: LEVEL,
+    },
   };
 }

@@ -1,6 +1,7 @@
 /**
- * The binomial fits of the field check, all through `fitBinomial` (one IRLS
- * in the project): the live rows' counts and prior weights, cluster-robust
+ * The live rows every field fit shares, and the refit of the model's columns
+ * through `fitBinomial` (the band, in-the-large and slope fits, of one or two
+ * columns, run on few-column-logit.ts): the live rows' counts and prior weights, cluster-robust
  * CR1 errors by player with N in the CR1 factor as a fit of the same file
  * takes it (`fitModel`): the attempts of a per-attempt file, the rounds of a
  * per-round file. The likelihood is always the Bernoulli kernel (the same
@@ -74,11 +75,6 @@ export function fitField(
   if (fit.status === 'iteration_limit') return { ok: false, reason: 'the fit did not converge within its iteration limit' };
   if (fit.status === 'separation') return { ok: false, reason: `the data separate: ${fit.divergingCoefficients.join(', ')} diverge` };
   return { ok: false, reason: `the live data cannot estimate ${fit.aliased.join(', ')} (aliased with other columns)`, aliased: fit.aliased };
-}
-
-/** Column `j`'s cluster-robust standard error (the model-based one when the fit has no robust block). */
-export function robustError(fit: BinomialFitEstimated, j: number): number {
-  return (fit.robust?.standardErrors[j] ?? fit.standardErrors[j]) as number;
 }
 
 /** z of a two-sided interval at `level`. */

@@ -27,7 +27,7 @@ export interface LiveRows {
   /**
    * For comparing bands at one difficulty mix: each difficulty of the file with its share of the
    * (weighted) attempts, and every row's offset as if played at it; null when the file has more
-   * than {@link MAX_STANDARD_DIFFICULTIES} numeric difficulties.
+   * than {@link MAX_STANDARD_DIFFICULTIES} numeric difficulties. Computed when first read.
    */
   readonly byDifficulty: { readonly shares: Float64Array; readonly offsets: readonly Float64Array[] } | null;
 }
@@ -54,6 +54,7 @@ export function joinLiveRows(trials: GroupedTrials, model: CompiledModel): Resul
   const data: CollapsedTrials = { ...groups, difficulty: recoded.value };
   const lines = linesOf(model, data);
   if (!lines.ok) return lines;
+  const { line, lineOf } = lines.value;
   const n = data.rows;
   const predicted = new Float64Array(n);
   const predictedBefore = new Float64Array(n);
@@ -64,23 +65,37 @@ export function joinLiveRows(trials: GroupedTrials, model: CompiledModel): Resul
   // The scale as it enters the model (a logarithm per row), once for every use below.
   const scaleTerm = new Float64Array(n);
   for (let i = 0; i < n; i += 1) scaleTerm[i] = scaleTermValue(model.scaleForm, data.scale[i] as number);
+  const { base, basePerMs, scaleSlope, scaleSlopePerMs } = line;
   for (let i = 0; i < n; i += 1) {
-    const line = lines.value(i);
+    const at = lineOf[i] as number;
     const latency = data.latency[i] as number;
-    const intercept = line.base + line.basePerMs * latency;
-    const slope = line.scaleSlope + line.scaleSlopePerMs * latency;
+    const intercept = (base[at] as number) + (basePerMs[at] as number) * latency;
+    const slope = (scaleSlope[at] as number) + (scaleSlopePerMs[at] as number) * latency;
     const eta = intercept + slope * (scaleTerm[i] as number);
-    const mu = link.inverse(eta);
     linearPredictor[i] = eta;
-    predicted[i] = mu;
+    predicted[i] = link.inverse(eta);
     predictedBefore[i] = link.inverse(intercept + slope * atOne);
-    offset[i] = logitOfPrediction(model, eta);
   }
+  if (link.name === 'logit') offset.set(linearPredictor);
+  else for (let i = 0; i < n; i += 1) offset[i] = logitOfPrediction(model, linearPredictor[i] as number);
   const compensatedPlayer = new Uint8Array(players.length);
   const codes = groups.player;
   for (let i = 0; i < n; i += 1) if ((data.scale[i] as number) > 1) compensatedPlayer[codes[i] as number] = 1;
-  const byDifficulty = offsetsByDifficulty(data, model, scaleTerm);
-  return ok({ data, players, predicted, predictedBefore, linearPredictor, offset, compensatedPlayer, byDifficulty });
+  // The mix's offsets (a pass per difficulty) only when the bands are compared: a thread that
+  // runs only calibration fits never reads them.
+  let byDifficulty: LiveRows['byDifficulty'] | undefined;
+  return ok({
+    data,
+    players,
+    predicted,
+    predictedBefore,
+    linearPredictor,
+    offset,
+    compensatedPlayer,
+    get byDifficulty() {
+      return (byDifficulty ??= offsetsByDifficulty(data, model, scaleTerm, lines.value));
+    },
+  });
 }
 
 /**
@@ -88,29 +103,33 @@ export function joinLiveRows(trials: GroupedTrials, model: CompiledModel): Resul
  * and each row's offset (logit of the model's prediction) at its latency and scale as if played at
  * each of them.
  */
-function offsetsByDifficulty(data: CollapsedTrials, model: CompiledModel, scaleTerm: Float64Array): LiveRows['byDifficulty'] {
-  const shares = new Map<number, number>();
+function offsetsByDifficulty(data: CollapsedTrials, model: CompiledModel, scaleTerm: Float64Array, lines: RowLines): LiveRows['byDifficulty'] {
+  // The rows' difficulties are the lines' keys, one line per distinct difficulty.
+  if (lines.keys.length > MAX_STANDARD_DIFFICULTIES) return null;
+  const weights = new Float64Array(lines.keys.length);
   let total = 0;
   for (let i = 0; i < data.rows; i += 1) {
-    const key = data.difficulty[i] as number;
     const weight = (data.weight[i] as number) * (data.attempts[i] as number);
-    shares.set(key, (shares.get(key) ?? 0) + weight);
+    const at = lines.lineOf[i] as number;
+    weights[at] = (weights[at] as number) + weight;
     total += weight;
-    if (shares.size > MAX_STANDARD_DIFFICULTIES) return null;
   }
-  const keys = [...shares.keys()].sort((a, b) => a - b);
-  const offsets = keys.map((key) => {
-    const line = model.lineAt(model.difficulty.kind === 'levels' ? (model.difficulty.levels[key] as string) : key);
+  const order = lines.keys.map((key, at) => ({ key, at })).sort((a, b) => a.key - b.key);
+  const offsets = order.map(({ at }) => {
     const values = new Float64Array(data.rows);
-    if (!line.ok) return values;
-    const { base, basePerMs, scaleSlope, scaleSlopePerMs } = line.value;
+    const { base, basePerMs, scaleSlope, scaleSlopePerMs } = lines.line;
+    const a0 = base[at] as number;
+    const a1 = basePerMs[at] as number;
+    const b0 = scaleSlope[at] as number;
+    const b1 = scaleSlopePerMs[at] as number;
     for (let i = 0; i < data.rows; i += 1) {
       const latency = data.latency[i] as number;
-      values[i] = logitOfPrediction(model, base + basePerMs * latency + (scaleSlope + scaleSlopePerMs * latency) * (scaleTerm[i] as number));
+      values[i] = a0 + a1 * latency + (b0 + b1 * latency) * (scaleTerm[i] as number);
     }
+    if (model.link.name !== 'logit') for (let i = 0; i < data.rows; i += 1) values[i] = logitOfPrediction(model, values[i] as number);
     return values;
   });
-  return { shares: Float64Array.from(keys, (key) => (total > 0 ? (shares.get(key) as number) / total : 0)), offsets };
+  return { shares: Float64Array.from(order, ({ at }) => (total > 0 ? (weights[at] as number) / total : 0)), offsets };
 }
 
 /** logit of the model's prediction at a linear predictor (the predictor itself for a logit model). */
@@ -133,12 +152,18 @@ function recodeDifficulty(trials: GroupedTrials, model: CompiledModel): Result<F
   // Named levels, or numbers whose text names a level ("1", "2").
   const names = trials.difficulty.kind === 'levels' ? trials.difficulty.levels : null;
   const nameOf = (value: number) => (names === null ? String(value) : (names[value] as string));
+  // The model's index of each distinct value, looked up once.
+  const indexOf = new Map<number, number>();
   const recoded = new Float64Array(values.length);
   const unknown = new Map<string, number>();
   for (let i = 0; i < values.length; i += 1) {
-    const name = nameOf(values[i] as number);
-    const index = coding.levels.indexOf(name);
-    if (index < 0) unknown.set(name, (unknown.get(name) ?? 0) + (trials.groups.attempts[i] as number));
+    const value = values[i] as number;
+    let index = indexOf.get(value);
+    if (index === undefined) {
+      index = coding.levels.indexOf(nameOf(value));
+      indexOf.set(value, index);
+    }
+    if (index < 0) unknown.set(nameOf(value), (unknown.get(nameOf(value)) ?? 0) + (trials.groups.attempts[i] as number));
     recoded[i] = index;
   }
   if (unknown.size > 0) {
@@ -148,23 +173,47 @@ function recodeDifficulty(trials: GroupedTrials, model: CompiledModel): Result<F
   return ok(recoded);
 }
 
+/** The predictor lines of the rows' distinct difficulties (keys, first met first) as columns, and each row's line. */
+interface RowLines {
+  readonly keys: number[];
+  readonly line: { readonly base: Float64Array; readonly basePerMs: Float64Array; readonly scaleSlope: Float64Array; readonly scaleSlopePerMs: Float64Array };
+  readonly lineOf: Int32Array;
+}
+
 /** The predictor line of each row, computed once per level (or per distinct numeric difficulty). */
-function linesOf(model: CompiledModel, data: CollapsedTrials): Result<(row: number) => PredictorLine> {
+function linesOf(model: CompiledModel, data: CollapsedTrials): Result<RowLines> {
   const coding = model.difficulty;
-  const cache = new Map<number, PredictorLine>();
-  const issues: Issue[] = [];
+  const found = new Map<number, number>();
+  const keys: number[] = [];
+  const lines: PredictorLine[] = [];
+  const lineOf = new Int32Array(data.rows);
+  let lastKey = Number.NaN;
+  let lastAt = -1;
   for (let i = 0; i < data.rows; i += 1) {
     const key = data.difficulty[i] as number;
-    if (cache.has(key)) continue;
-    const line = model.lineAt(coding.kind === 'levels' ? (coding.levels[key] as string) : key);
-    if (!line.ok) {
-      issues.push(...line.issues);
-      break;
+    if (key === lastKey) {
+      lineOf[i] = lastAt;
+      continue;
     }
-    cache.set(key, line.value);
+    let at = found.get(key);
+    if (at === undefined) {
+      const line = model.lineAt(coding.kind === 'levels' ? (coding.levels[key] as string) : key);
+      if (!line.ok) return fail(line.issues);
+      at = lines.length;
+      found.set(key, at);
+      keys.push(key);
+      lines.push(line.value);
+    }
+    lineOf[i] = at;
+    lastKey = key;
+    lastAt = at;
   }
-  if (issues.length > 0) return fail(issues);
-  return ok((row: number) => cache.get(data.difficulty[row] as number) as PredictorLine);
+  const column = (pick: (line: PredictorLine) => number) => Float64Array.from(lines, pick);
+  return ok({
+    keys,
+    line: { base: column((line) => line.base), basePerMs: column((line) => line.basePerMs), scaleSlope: column((line) => line.scaleSlope), scaleSlopePerMs: column((line) => line.scaleSlopePerMs) },
+    lineOf,
+  });
 }
 
 /**
