@@ -2,7 +2,7 @@
 import { open } from 'node:fs/promises';
 import { basename, dirname, join } from 'node:path';
 import { type Issue, type Result, error, fail, ok, show } from '../issues.js';
-import { checkFieldOnThreads } from '../field/check-field-threads.js';
+import { checkFieldOnThreads, startCalibrationWorkers } from '../field/check-field-threads.js';
 import type { FieldCheckReport } from '../field/field-types.js';
 import { parseBandCuts } from '../field/latency-bands.js';
 import type { RefitCommandInputs } from '../field/refit-commands.js';
@@ -47,10 +47,18 @@ export async function checkTelemetry(
 ): Promise<Result<FieldCheckReport>> {
   // Parquet files and globs are read through DuckDB, as fit reads them, but grouped at
   // FIELD_LATENCY_STEP_MS: the bands need each row's latency where the CSV reader puts it.
+  // The fits' workers load while the file is read.
+  const workers = startCalibrationWorkers(threads);
   const progress = progressLine('lagparity field-check');
-  const read = await readGrouped(telemetry, progress, needsEngine(telemetry) ? { latencyStepMs: FIELD_LATENCY_STEP_MS } : { engine: false });
+  const read = await readGrouped(telemetry, progress, needsEngine(telemetry) ? { latencyStepMs: FIELD_LATENCY_STEP_MS } : { engine: false }).catch(async (thrown: unknown) => {
+    await workers?.stop();
+    throw thrown;
+  });
   progress.done();
-  if (!read.ok) return read;
+  if (!read.ok) {
+    await workers?.stop();
+    return read;
+  }
   const { grouped, sha256 } = read.value;
   const options = {
     margin: settings.margin,
@@ -61,7 +69,7 @@ export async function checkTelemetry(
     sha256,
     commands: await commandInputs(telemetry, modelPath, model),
   };
-  const report = await checkFieldOnThreads(grouped, model, options, threads);
+  const report = await checkFieldOnThreads(grouped, model, options, threads, { workers });
   return report.ok ? ok(report.value, [...read.warnings, ...report.warnings]) : report;
 }
 

@@ -1,15 +1,22 @@
 /**
  * The field check's calibration fits as independent jobs: calibration in the
  * large, the calibration slope and the refit with its likelihood-ratio test,
- * each on the live rows alone. Their inputs are plain data (they cross to a
- * worker thread by structured clone: `check-field-threads.ts`) and each job
- * gives the same result on any thread.
+ * each on the live rows alone. A thread sets their inputs up from the live
+ * groups and the model's document ({@link calibrationInputsFrom}, plain data
+ * that crosses to a worker thread by structured clone: `check-field-threads.ts`)
+ * by the same code as `beginFieldCheck`, so each job gives the same result on
+ * any thread.
  */
+import type { GroupedTrials } from '../model/collapsed-trials.js';
+import { type CompiledModel, compileModelFile } from '../model/compile.js';
+import { buildDesign } from '../model/design.js';
+import type { ModelFile } from '../formats/model-types.js';
 import type { LinkName } from '../model/links.js';
 import { linkFor } from '../model/links.js';
 import type { DesignMatrix } from '../numeric/design-matrix.js';
 import { type CalibrationFigure, calibrationInTheLarge, calibrationSlope } from './calibration.js';
-import type { FieldRows } from './field-fit.js';
+import { type FieldRows, fieldRows } from './field-fit.js';
+import { type LiveRows, joinLiveRows } from './live-rows.js';
 import { type RefitTest, refitTest } from './refit-test.js';
 
 /** What the three fits share. */
@@ -26,6 +33,36 @@ export interface CalibrationInputs {
 }
 
 export type CalibrationJob = 'refit' | 'slope' | 'in_the_large';
+
+/** The calibration fits' inputs from the live rows joined to the model (`beginFieldCheck` takes the design from here too). */
+export function calibrationInputsOf(live: LiveRows, model: CompiledModel, shape: GroupedTrials['shape']): CalibrationInputs {
+  return {
+    rows: fieldRows(live.data, shape),
+    logitPrediction: live.offset,
+    linearPredictor: live.linearPredictor,
+    design: buildDesign(live.data, model.source.terms, model.difficulty).matrix,
+    link: model.link.name,
+    coefficients: model.coefficients,
+  };
+}
+
+/** What a thread sets the calibration fits up from: the live groups and the model's document. */
+export interface CalibrationSource {
+  readonly trials: GroupedTrials;
+  readonly model: ModelFile;
+}
+
+/**
+ * The inputs {@link calibrationInputsOf} gives on the thread that checked them, set up on another
+ * from the same data; throws on data that thread would have refused.
+ */
+export function calibrationInputsFrom(source: CalibrationSource): CalibrationInputs {
+  const model = compileModelFile(source.model);
+  if (!model.ok) throw new Error('field check: the model does not compile on this thread');
+  const live = joinLiveRows(source.trials, model.value);
+  if (!live.ok) throw new Error('field check: the live rows do not join on this thread');
+  return calibrationInputsOf(live.value, model.value, source.trials.shape);
+}
 
 /** The jobs, the longest first (the refit has the model's columns, the others one or two). */
 export const CALIBRATION_JOBS: readonly CalibrationJob[] = ['refit', 'slope', 'in_the_large'];

@@ -41,14 +41,12 @@ import type { Trials } from '../formats/trials-types.js';
 import { groupTrials } from '../model/collapse.js';
 import type { GroupedTrials } from '../model/collapsed-trials.js';
 import type { CompiledModel } from '../model/compile.js';
-import { buildDesign } from '../model/design.js';
 import type { CompiledRules } from '../solver/rules.js';
 import { bandFigures, type BandFigures } from './band-figures.js';
 import { type BandRates, bandRates } from './band-rates.js';
-import { CALIBRATION_JOBS, type CalibrationFit, type CalibrationInputs, runCalibrationFit } from './calibration-fits.js';
+import { CALIBRATION_JOBS, type CalibrationFit, type CalibrationInputs, calibrationInputsOf, runCalibrationFit } from './calibration-fits.js';
 import { dataFactor } from './data-needed.js';
 import { gapVerdict } from './equivalence-verdict.js';
-import { fieldRows } from './field-fit.js';
 import { refitCommands, type RefitCommandInputs } from './refit-commands.js';
 import { compensationMessage, calibrationReason, summaryLines } from './field-summary.js';
 import {
@@ -139,9 +137,9 @@ export function beginFieldCheck(input: GroupedTrials | Trials, model: CompiledMo
   const bands = latencyBands(bandCuts);
   const band = new Int32Array(data.rows);
   for (let i = 0; i < data.rows; i += 1) band[i] = bandOf(data.latency[i] as number, bandCuts);
-  const design = buildDesign(data, model.source.terms, model.difficulty);
-  const figures = bandFigures(data, band, bands.length, live, model, design.matrix);
-  const rows = fieldRows(data, trials.shape);
+  const calibrationInputs = calibrationInputsOf(live, model, trials.shape);
+  const { rows, design } = calibrationInputs;
+  const figures = bandFigures(data, band, bands.length, live, model, design);
   const eligible = bands.map((entry) => limit === null || entry.lowerMs < limit);
 
   // The reference and the worst-connected band: among eligible bands with rows, those with enough
@@ -159,14 +157,6 @@ export function beginFieldCheck(input: GroupedTrials | Trials, model: CompiledMo
     else warnings.push(warning('reference_band_empty', `${trials.file}:latency_ms`, `the rules' reference latency ${target.latency_ms} ms requires rows in its band ${(bands[wanted] as LatencyBand).label}, got none; the best-connected band with rows is the reference instead`));
   }
   const reference = target.kind === 'fixed' ? { probability: target.probability } : { band: referenceBand ?? 0 };
-  const calibrationInputs: CalibrationInputs = {
-    rows,
-    logitPrediction: live.offset,
-    linearPredictor: live.linearPredictor,
-    design: design.matrix,
-    link: model.link.name,
-    coefficients: model.coefficients,
-  };
   const finish = (rates: BandRates, fits: readonly CalibrationFit[]): Result<FieldCheckReport> => {
     if (live.byDifficulty === null) {
       warnings.push(warning('difficulty_not_standardised', `${trials.file}:difficulty`, `comparing bands at one difficulty mix requires at most ${MAX_STANDARD_DIFFICULTIES} distinct difficulties, got more; bands are compared as played`));

@@ -2,6 +2,7 @@ import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { checkField } from '../../src/field/check-field.js';
 import { checkFieldOnThreads } from '../../src/field/check-field-threads.js';
+import { startWorkers } from '../../src/job-threads.js';
 import { readGroupedTrialsFile } from '../../src/io/read-trials.js';
 import { ROOT } from '../helpers/demo.js';
 import { fieldFixture } from '../helpers/field-fixtures.js';
@@ -30,4 +31,26 @@ describe('checkFieldOnThreads()', () => {
       expect(none).toEqual([]);
     });
   }
+
+  it('takes workers started before the read (they set the fits up from the live groups), and stops them', async () => {
+    const read = await readGroupedTrialsFile(fieldFixture('live-attempts.csv'));
+    if (!read.ok) throw new Error(read.issues.map((issue) => issue.message).join('; '));
+    const model = fixtureModel();
+    const workers = startWorkers(builtWorker, 2);
+    const onWorker: string[] = [];
+    expect(await checkFieldOnThreads(read.value, model, {}, 3, { workerUrl: builtWorker, workers, callerTakesFits: false, onWorkerFit: (job) => onWorker.push(job) })).toEqual(checkField(read.value, model));
+    expect(onWorker.sort()).toEqual(['in_the_large', 'refit', 'slope']);
+    await Promise.all(workers.started.map(({ ended }) => ended));
+  });
+
+  it('returns the issues of input the calling thread refuses, as checkField does, and stops the workers', async () => {
+    const read = await readGroupedTrialsFile(fieldFixture('live-attempts.csv'));
+    if (!read.ok) throw new Error(read.issues.map((issue) => issue.message).join('; '));
+    const model = fixtureModel();
+    const workers = startWorkers(builtWorker, 1);
+    const refused = await checkFieldOnThreads(read.value, model, { margin: 0.7 }, 2, { workerUrl: builtWorker, workers });
+    expect(refused).toEqual(checkField(read.value, model, { margin: 0.7 }));
+    expect(refused.ok).toBe(false);
+    await Promise.all(workers.started.map(({ ended }) => ended));
+  });
 });
