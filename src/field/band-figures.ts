@@ -12,7 +12,7 @@
  */
 import type { CollapsedTrials } from '../model/collapsed-trials.js';
 import type { CompiledModel } from '../model/compile.js';
-import type { DesignMatrix } from '../numeric/design-matrix.js';
+import { designRows } from '../model/design.js';
 import { twoSidedCritical } from './field-fit.js';
 
 export interface BandFigures {
@@ -33,8 +33,9 @@ export interface BandFigures {
 }
 
 /**
- * The figures of `bandCount` bands. `band` is each row's band, `design` the
- * model's design over the rows (for the predicted interval; null: no interval).
+ * The figures of `bandCount` bands. `band` is each row's band; the model's design
+ * row of each row (for the predicted interval) is computed as the pass reaches it
+ * (`designRows`: the bits of `buildDesign`), so no design matrix is built here.
  */
 export function bandFigures(
   data: CollapsedTrials,
@@ -42,9 +43,10 @@ export function bandFigures(
   bandCount: number,
   live: { readonly predicted: Float64Array; readonly predictedBefore: Float64Array; readonly linearPredictor: Float64Array; readonly compensatedPlayer: Uint8Array },
   model: CompiledModel,
-  design: DesignMatrix | null,
 ): BandFigures[] {
   const k = model.coefficients.length;
+  const designRow = designRows(model.source.terms, model.difficulty);
+  const x = new Float64Array(k);
   const rows = new Float64Array(bandCount);
   const attempts = new Float64Array(bandCount);
   const weight = new Float64Array(bandCount);
@@ -77,10 +79,9 @@ export function bandFigures(
       players[b] = (players[b] as number) + 1;
       if (live.compensatedPlayer[code] === 0) controlPlayers[b] = (controlPlayers[b] as number) + 1;
     }
-    if (design !== null) {
-      const slope = w * model.link.derivative(live.linearPredictor[i] as number);
-      for (let j = 0; j < k; j += 1) gradient[b * k + j] = (gradient[b * k + j] as number) + slope * (design.values[j * data.rows + i] as number);
-    }
+    const slope = w * model.link.derivative(live.linearPredictor[i] as number);
+    designRow(data.latency[i] as number, data.scale[i] as number, data.difficulty[i] as number, x);
+    for (let j = 0; j < k; j += 1) gradient[b * k + j] = (gradient[b * k + j] as number) + slope * (x[j] as number);
   }
   const critical = twoSidedCritical(0.95);
   return Array.from({ length: bandCount }, (_, b) => {
@@ -89,12 +90,10 @@ export function bandFigures(
     if (!(total > 0)) return { ...base, meanScale: null, meanLatency: null, predictedBefore: null, predicted: null, predictedLower: null, predictedUpper: null };
     const predicted = (after[b] as number) / total;
     let variance = 0;
-    if (design !== null) {
-      for (let a = 0; a < k; a += 1) {
-        const left = (gradient[b * k + a] as number) / total;
-        if (left === 0) continue;
-        for (let c = 0; c < k; c += 1) variance += left * (model.covariance[a * k + c] as number) * ((gradient[b * k + c] as number) / total);
-      }
+    for (let a = 0; a < k; a += 1) {
+      const left = (gradient[b * k + a] as number) / total;
+      if (left === 0) continue;
+      for (let c = 0; c < k; c += 1) variance += left * (model.covariance[a * k + c] as number) * ((gradient[b * k + c] as number) / total);
     }
     const spread = critical * Math.sqrt(Math.max(variance, 0));
     return {
@@ -103,8 +102,8 @@ export function bandFigures(
       meanLatency: (latency[b] as number) / total,
       predictedBefore: (before[b] as number) / total,
       predicted,
-      predictedLower: design === null ? null : Math.max(0, predicted - spread),
-      predictedUpper: design === null ? null : Math.min(1, predicted + spread),
+      predictedLower: Math.max(0, predicted - spread),
+      predictedUpper: Math.min(1, predicted + spread),
     };
   });
 }

@@ -34,13 +34,20 @@ export interface CalibrationInputs {
 
 export type CalibrationJob = 'refit' | 'slope' | 'in_the_large';
 
-/** The calibration fits' inputs from the live rows joined to the model (`beginFieldCheck` takes the design from here too). */
+/**
+ * The calibration fits' inputs from the live rows joined to the model. The design (a matrix of
+ * the rows by the model's columns, for the refit alone) is built when first read: a thread that
+ * leaves the refit to another never builds it.
+ */
 export function calibrationInputsOf(live: LiveRows, model: CompiledModel, shape: GroupedTrials['shape']): CalibrationInputs {
+  let design: DesignMatrix | undefined;
   return {
     rows: fieldRows(live.data, shape),
     logitPrediction: live.offset,
     linearPredictor: live.linearPredictor,
-    design: buildDesign(live.data, model.source.terms, model.difficulty).matrix,
+    get design() {
+      return (design ??= buildDesign(live.data, model.source.terms, model.difficulty).matrix);
+    },
     link: model.link.name,
     coefficients: model.coefficients,
   };

@@ -138,8 +138,8 @@ export function beginFieldCheck(input: GroupedTrials | Trials, model: CompiledMo
   const band = new Int32Array(data.rows);
   for (let i = 0; i < data.rows; i += 1) band[i] = bandOf(data.latency[i] as number, bandCuts);
   const calibrationInputs = calibrationInputsOf(live, model, trials.shape);
-  const { rows, design } = calibrationInputs;
-  const figures = bandFigures(data, band, bands.length, live, model, design);
+  const { rows } = calibrationInputs;
+  const figures = bandFigures(data, band, bands.length, live, model);
   const eligible = bands.map((entry) => limit === null || entry.lowerMs < limit);
 
   // The reference and the worst-connected band: among eligible bands with rows, those with enough

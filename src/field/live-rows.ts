@@ -14,9 +14,9 @@ export interface LiveRows {
   /** The groups, their difficulty as the model codes it (the index of its level, or the number). */
   readonly data: CollapsedTrials;
   readonly players: readonly string[];
-  /** The model's hit probability at each row's applied scale. */
+  /** The model's hit probability at each row's applied scale (computed when first read). */
   readonly predicted: Float64Array;
-  /** At scale 1 (what the row would have been without compensation). */
+  /** At scale 1 (what the row would have been without compensation; computed when first read). */
   readonly predictedBefore: Float64Array;
   /** The model's linear predictor at the applied scale. */
   readonly linearPredictor: Float64Array;
@@ -56,9 +56,6 @@ export function joinLiveRows(trials: GroupedTrials, model: CompiledModel): Resul
   if (!lines.ok) return lines;
   const { line, lineOf } = lines.value;
   const n = data.rows;
-  const predicted = new Float64Array(n);
-  const predictedBefore = new Float64Array(n);
-  const offset = new Float64Array(n);
   const linearPredictor = new Float64Array(n);
   const link = model.link;
   const atOne = scaleTermValue(model.scaleForm, 1);
@@ -69,15 +66,30 @@ export function joinLiveRows(trials: GroupedTrials, model: CompiledModel): Resul
   for (let i = 0; i < n; i += 1) {
     const at = lineOf[i] as number;
     const latency = data.latency[i] as number;
-    const intercept = (base[at] as number) + (basePerMs[at] as number) * latency;
-    const slope = (scaleSlope[at] as number) + (scaleSlopePerMs[at] as number) * latency;
-    const eta = intercept + slope * (scaleTerm[i] as number);
-    linearPredictor[i] = eta;
-    predicted[i] = link.inverse(eta);
-    predictedBefore[i] = link.inverse(intercept + slope * atOne);
+    linearPredictor[i] = (base[at] as number) + (basePerMs[at] as number) * latency + ((scaleSlope[at] as number) + (scaleSlopePerMs[at] as number) * latency) * (scaleTerm[i] as number);
   }
-  if (link.name === 'logit') offset.set(linearPredictor);
-  else for (let i = 0; i < n; i += 1) offset[i] = logitOfPrediction(model, linearPredictor[i] as number);
+  // The predictions at the applied scale and at scale 1, for the bands' figures: a thread that runs
+  // only calibration fits never reads them.
+  let predictions: { readonly predicted: Float64Array; readonly before: Float64Array } | undefined;
+  const predict = () => {
+    const predicted = new Float64Array(n);
+    const before = new Float64Array(n);
+    for (let i = 0; i < n; i += 1) {
+      const at = lineOf[i] as number;
+      const latency = data.latency[i] as number;
+      const intercept = (base[at] as number) + (basePerMs[at] as number) * latency;
+      const slope = (scaleSlope[at] as number) + (scaleSlopePerMs[at] as number) * latency;
+      predicted[i] = link.inverse(intercept + slope * (scaleTerm[i] as number));
+      before[i] = link.inverse(intercept + slope * atOne);
+    }
+    return { predicted, before };
+  };
+  // For a logit model the offset is the linear predictor itself (neither is written after this).
+  let offset = linearPredictor;
+  if (link.name !== 'logit') {
+    offset = new Float64Array(n);
+    for (let i = 0; i < n; i += 1) offset[i] = logitOfPrediction(model, linearPredictor[i] as number);
+  }
   const compensatedPlayer = new Uint8Array(players.length);
   const codes = groups.player;
   for (let i = 0; i < n; i += 1) if ((data.scale[i] as number) > 1) compensatedPlayer[codes[i] as number] = 1;
@@ -87,8 +99,12 @@ export function joinLiveRows(trials: GroupedTrials, model: CompiledModel): Resul
   return ok({
     data,
     players,
-    predicted,
-    predictedBefore,
+    get predicted() {
+      return (predictions ??= predict()).predicted;
+    },
+    get predictedBefore() {
+      return (predictions ??= predict()).before;
+    },
     linearPredictor,
     offset,
     compensatedPlayer,
