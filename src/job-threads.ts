@@ -41,7 +41,6 @@ interface JobWorker {
  * `stop`. They never keep the process alive on their own.
  */
 export interface StartedWorkers {
-  readonly url: URL;
   readonly started: readonly JobWorker[];
   stop(): Promise<void>;
 }
@@ -65,7 +64,7 @@ export function startWorkers(url: URL, count: number): StartedWorkers {
     worker.on('error', () => undefined);
     started.push({ worker, ended });
   }
-  return { url, started, stop: async () => void (await Promise.all(started.map(({ worker }) => worker.terminate()))) };
+  return { started, stop: async () => void (await Promise.all(started.map(({ worker }) => worker.terminate()))) };
 }
 
 export interface JobThreads {

@@ -69,7 +69,7 @@ export async function checkFieldOnThreads(
       callerFirst: () => {
         stage = beginFieldCheck(trials, model, options);
         if (stage.ok) rates = stage.value.bandRates();
-        // Refused input: the workers, whose set-up throws on it, have nothing to do.
+        // Refused input: the fits are called off and the workers stopped.
         return stage.ok;
       },
     },
