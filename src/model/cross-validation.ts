@@ -13,11 +13,11 @@
  * infinity (the clipping scikit-learn's `log_loss` applies).
  */
 import { type Issue, warning } from '../issues.js';
-import { type DesignMatrix, multiply } from '../numeric/design-matrix.js';
+import { multiply } from '../numeric/design-matrix.js';
 import { createRandomSource, shuffledIndices } from '../random.js';
 import { type CollapsedTrials, gatherCollapsed } from './collapsed-trials.js';
 import { EVERY_COVARIATE, collapseOver } from './collapse.js';
-import { type TermDesign, buildDesign } from './design.js';
+import { type TermDesign, buildDesign, designRows } from './design.js';
 import { fitLeastSquares } from './fit-least-squares.js';
 import type { CalibrationBin, CrossValidation, FoldResult } from './fit-report-types.js';
 import { linkFor } from './links.js';
@@ -120,15 +120,25 @@ function probabilitiesOf(prepared: Prepared, linear: Float64Array): Float64Array
   return linear.map((value) => link.inverse(value));
 }
 
-/** X b at rows `indices` of `design`, each sum in the order `multiply` takes it (the same bits as multiplying the gathered rows). */
-function predictorAt(design: DesignMatrix, indices: Int32Array, coefficients: ArrayLike<number>): Float64Array {
-  const { rows, columns, values } = design;
+/**
+ * X b at rows `indices` of the full design, each row's entries computed as it is reached
+ * (`designRows`) and summed in the order `multiply` takes them: the same bits as multiplying the
+ * gathered rows' design, which is never built.
+ */
+function predictorAt(prepared: Prepared, indices: Int32Array, coefficients: ArrayLike<number>): Float64Array {
+  const { data } = prepared;
+  const row = designRows(prepared.terms, prepared.coding);
+  const x = new Float64Array(coefficients.length);
   const product = new Float64Array(indices.length);
-  for (let j = 0; j < columns; j += 1) {
-    const coefficient = coefficients[j] as number;
-    if (coefficient === 0) continue;
-    const offset = j * rows;
-    for (let r = 0; r < indices.length; r += 1) product[r] = (product[r] as number) + (values[offset + (indices[r] as number)] as number) * coefficient;
+  for (let r = 0; r < indices.length; r += 1) {
+    const i = indices[r] as number;
+    row(data.latency[i] as number, data.scale[i] as number, data.difficulty[i] as number, x);
+    let sum = 0;
+    for (let j = 0; j < x.length; j += 1) {
+      const coefficient = coefficients[j] as number;
+      if (coefficient !== 0) sum += (x[j] as number) * coefficient;
+    }
+    product[r] = sum;
   }
   return product;
 }
@@ -172,15 +182,15 @@ function foldSplit(assignment: FoldAssignment, fold: number): { readonly trainin
 
 /**
  * Fit fold `fold` (0-based) on its training rows, from `start` (null: R's
- * starting values); `design` is the full design, which only a binomial
- * report's folds (refit jobs) pass. Those fits do not cluster, so their
- * training rows are merged over the players first (`collapseOver`: the same
- * estimates, on the 1M-row bench file about 286,000 rows instead of 788,000),
- * and the held-out predictions are computed on the full design's rows in
- * place. Without `design` (the least-squares family's folds), each set of
- * rows is gathered and its design built.
+ * starting values). A binomial report's folds (refit jobs) ask for `merged`:
+ * those fits do not cluster, so their training rows are merged over the
+ * players first (`collapseOver`: the same estimates, on the 1M-row bench file
+ * about 286,000 rows instead of 788,000), and the held-out predictions are
+ * computed from the held-out rows' design rows in place. Otherwise (the
+ * least-squares family's folds), each set of rows is gathered and its design
+ * built.
  */
-export function fitFold(prepared: Prepared, assignment: FoldAssignment, fold: number, start: Float64Array | null, design?: TermDesign): FoldFit {
+export function fitFold(prepared: Prepared, assignment: FoldAssignment, fold: number, start: Float64Array | null, { merged: mergedTraining = false }: { readonly merged?: boolean } = {}): FoldFit {
   const { training, heldOut } = foldSplit(assignment, fold);
   const { data } = prepared;
   let players: number | null = null;
@@ -192,7 +202,7 @@ export function fitFold(prepared: Prepared, assignment: FoldAssignment, fold: nu
   let heldAttempts = 0;
   for (let r = 0; r < heldOut.length; r += 1) heldAttempts += data.attempts[heldOut[r] as number] as number;
   const scored = (status: string, probabilities: Float64Array | null): FoldFit => ({ status, players, heldAttempts, scores: probabilities === null ? null : scoreHeldOut(data, heldOut, probabilities) });
-  if (design === undefined) {
+  if (!mergedTraining) {
     const trainingRows = gatherCollapsed(data, training);
     const fitted = fitCoefficients(prepared, trainingRows, buildDesign(trainingRows, prepared.terms, prepared.coding), start);
     if (fitted.coefficients === null) return scored(fitted.status, null);
@@ -203,16 +213,19 @@ export function fitFold(prepared: Prepared, assignment: FoldAssignment, fold: nu
   const merged = collapseOver(gatherCollapsed(data, training), EVERY_COVARIATE);
   const fitted = fitCoefficients(prepared, merged, buildDesign(merged, prepared.terms, prepared.coding), start);
   if (fitted.coefficients === null) return scored(fitted.status, null);
-  return scored(fitted.status, probabilitiesOf(prepared, predictorAt(design.matrix, heldOut, fitted.coefficients)));
+  return scored(fitted.status, probabilitiesOf(prepared, predictorAt(prepared, heldOut, fitted.coefficients)));
 }
 
 /**
  * Starting values of a binomial fit's folds: one Newton step from the full
- * fit's estimates (`coefficients`, on its `design`) towards each fold's own
- * (refit-starts.ts); null for a fold without one.
+ * fit's estimates (`coefficients`) towards each fold's own (refit-starts.ts),
+ * each row's design entries computed as the sweep reaches it; null for a fold
+ * without one.
  */
-export function foldStartsOf(prepared: Prepared, assignment: FoldAssignment, design: DesignMatrix, coefficients: Float64Array): (Float64Array | null)[] {
+export function foldStartsOf(prepared: Prepared, assignment: FoldAssignment, coefficients: Float64Array): (Float64Array | null)[] {
   const { data } = prepared;
+  const row = designRows(prepared.terms, prepared.coding);
+  const design = { rows: data.rows, columns: coefficients.length, rowAt: (i: number, out: Float64Array) => row(data.latency[i] as number, data.scale[i] as number, data.difficulty[i] as number, out) };
   return foldStarts({ design, successes: data.successes, trials: data.attempts, priorWeights: data.weight }, linkFor(prepared.link), coefficients, assignment.fold, assignment.folds);
 }
 

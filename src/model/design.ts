@@ -88,22 +88,37 @@ export function buildDesign(
 export function designRows(terms: readonly TermName[], coding: DifficultyCoding): (latency: number, scale: number, difficulty: number, out: Float64Array) => void {
   const columns = designColumns(terms, coding);
   const form = scaleForm(terms);
-  const levelCodes = columns.map((column) =>
-    column.difficulty !== null && column.difficulty !== 'value' && coding.kind === 'levels' ? coding.levels.indexOf(column.difficulty.level) : -1,
+  const k = columns.length;
+  // Each column's factors as flags (a plain loop over typed arrays per row).
+  const byLatency = Uint8Array.from(columns, (column) => (column.latency ? 1 : 0));
+  const byScale = Uint8Array.from(columns, (column) => (column.scale ? 1 : 0));
+  const byValue = Uint8Array.from(columns, (column) => (column.difficulty === 'value' ? 1 : 0));
+  // A level column's level code (-1: not among the coding's levels, as buildDesign has it); -2: no level column.
+  const levelCodes = Int32Array.from(columns, (column) =>
+    column.difficulty === null || column.difficulty === 'value' ? -2 : coding.kind === 'levels' ? coding.levels.indexOf(column.difficulty.level) : -1,
   );
-  let lastScale = Number.NaN;
-  let lastTerm = 0;
+  // The terms of the first few distinct scales, found by comparison (as buildDesign keeps them).
+  const keptScales = new Float64Array(KEPT_SCALES);
+  const keptTerms = new Float64Array(KEPT_SCALES);
+  let kept = 0;
   return (latency, scale, difficulty, out) => {
-    if (scale !== lastScale) {
-      lastScale = scale;
-      lastTerm = scaleTermValue(form, scale);
+    let at = 0;
+    while (at < kept && keptScales[at] !== scale) at += 1;
+    let term: number;
+    if (at < kept) term = keptTerms[at] as number;
+    else {
+      term = scaleTermValue(form, scale);
+      if (kept < KEPT_SCALES) {
+        keptScales[kept] = scale;
+        keptTerms[kept] = term;
+        kept += 1;
+      }
     }
-    for (let j = 0; j < columns.length; j += 1) {
-      const column = columns[j] as (typeof columns)[number];
-      let value = column.latency ? latency : 1;
-      if (column.scale) value *= lastTerm;
-      if (column.difficulty === 'value') value *= difficulty;
-      else if (column.difficulty !== null && difficulty !== levelCodes[j]) value = 0;
+    for (let j = 0; j < k; j += 1) {
+      let value = byLatency[j] === 1 ? latency : 1;
+      if (byScale[j] === 1) value *= term;
+      if (byValue[j] === 1) value *= difficulty;
+      else if (levelCodes[j] !== -2 && difficulty !== levelCodes[j]) value = 0;
       out[j] = value;
     }
   };

@@ -155,7 +155,7 @@ export function beginFitModel(trials: Trials | GroupedTrials, options: FitModelO
   let built: TermDesign | null = null;
   const fullDesign = (): TermDesign => (built ??= buildDesign(data, terms, coding));
   const shape = { columns: designColumns(terms, coding) };
-  const baselineNow = () => (options.baseline === false ? null : leastSquaresBaseline(prepared, fullDesign()));
+  const baselineNow = () => (options.baseline === false ? null : leastSquaresBaseline(prepared, fullDesign));
   if (prepared.family === 'least_squares') {
     const baseline = baselineNow();
     progress('fit');
@@ -173,7 +173,7 @@ export function beginFitModel(trials: Trials | GroupedTrials, options: FitModelO
   ];
   const run = (job: RefitJob): RefitResult => {
     progress(refitLabel(job, assignment?.folds ?? 0));
-    return runRefit(context, job, fullDesign());
+    return runRefit(context, job, fullDesign);
   };
   let finish: ((results: readonly RefitResult[]) => FitReport) | null = null;
   const fitFull = (): FitReport | null => {
@@ -236,7 +236,7 @@ export function beginFitModel(trials: Trials | GroupedTrials, options: FitModelO
 
     // The refits may already be running (fit-model-threads.ts): the folds wait for their starts
     // (one Newton step from the full estimates, see refit-starts.ts).
-    publishFoldStarts(estimates, fit.coefficients, assignment === null ? [] : foldStartsOf(prepared, assignment, fullDesign().matrix, fit.coefficients));
+    publishFoldStarts(estimates, fit.coefficients, assignment === null ? [] : foldStartsOf(prepared, assignment, fit.coefficients));
     const full = { columns: shape.columns.length, bernoulliDeviance: bernoulliDeviance(prepared, fit.deviance) };
     const calibration = calibrationTable(data, fit.fitted);
     const finishReport = (results: readonly RefitResult[]): FitReport => {

@@ -21,12 +21,14 @@ import { type Prepared, accuracy, leastSquaresGroups, leastSquaresWeights } from
  * The baseline beside a binomial fit (no clusters). A per-attempt file's rows are merged over the
  * players first (`collapseOver`): least squares on the attempts does not depend on how they are
  * grouped, and the merged rows are fewer (on the 1M-row bench file about 297,000 instead of a
- * million). A per-round file's rounds are its observations and stay as they are.
+ * million). A per-round file's rounds are its observations and stay as they are (on the full
+ * design, `fullDesign`, which only that case builds).
  */
-export function leastSquaresBaseline(prepared: Prepared, design: TermDesign): LeastSquaresBaseline | null {
+export function leastSquaresBaseline(prepared: Prepared, fullDesign: () => TermDesign): LeastSquaresBaseline | null {
   const perAttempt = prepared.likelihood === 'bernoulli';
   const rows = perAttempt ? collapseOver(prepared.data, EVERY_COVARIATE) : prepared.data;
-  const matrix = perAttempt ? buildDesign(rows, prepared.terms, prepared.coding).matrix : design.matrix;
+  const design = perAttempt ? buildDesign(rows, prepared.terms, prepared.coding) : fullDesign();
+  const matrix = design.matrix;
   const groups = leastSquaresGroups(prepared, rows);
   const fit = fitLeastSquares({ design: matrix, response: accuracy(rows), weights: leastSquaresWeights(prepared, rows), ...(groups === undefined ? {} : { groups }) });
   if (fit.status !== 'fitted') return null;

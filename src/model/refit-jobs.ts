@@ -32,18 +32,20 @@ export type RefitResult =
   | { readonly kind: 'fold'; readonly fold: number; readonly fit: FoldFit };
 
 /**
- * Run one job on the full design (`fullDesign(context)`; a thread builds it once for all its jobs).
- * The baseline and the reduced models need nothing of the full fit; a fold waits for its start.
- * When the full fit ended the report (no start will come), a fold returns at once with a result
- * nobody reads.
+ * Run one job. `fullDesign` gives the full design (`fullDesign(context)`, built by a thread at most
+ * once for all its jobs), which only a per-round file's baseline reads: the reduced models and the
+ * folds fit their own merged rows, and a fold predicts its held-out rows from their design rows as
+ * it goes. The baseline and the reduced models need nothing of the full fit; a fold waits for its
+ * start. When the full fit ended the report (no start will come), a fold returns at once with a
+ * result nobody reads.
  */
-export function runRefit(context: RefitContext, job: RefitJob, design: TermDesign): RefitResult {
+export function runRefit(context: RefitContext, job: RefitJob, fullDesign: () => TermDesign): RefitResult {
   const { prepared } = context;
-  if (job.kind === 'baseline') return { kind: 'baseline', baseline: leastSquaresBaseline(prepared, design) };
+  if (job.kind === 'baseline') return { kind: 'baseline', baseline: leastSquaresBaseline(prepared, fullDesign) };
   if (job.kind === 'reduced') return { kind: 'reduced', reduced: fitReduced(prepared, job.factor) };
   const start = awaitFoldStart(context.estimates, job.fold);
   if (start === null) return { kind: 'fold', fold: job.fold, fit: { status: 'not_fitted', players: null, heldAttempts: 0, scores: null } };
-  return { kind: 'fold', fold: job.fold, fit: fitFold(prepared, context.assignment as FoldAssignment, job.fold, start, design) };
+  return { kind: 'fold', fold: job.fold, fit: fitFold(prepared, context.assignment as FoldAssignment, job.fold, start, { merged: true }) };
 }
 
 /** The full fit's design, built from the context's rows (the same values the fit had). */

@@ -29,9 +29,28 @@ import { choleskySolve } from '../numeric/cholesky.js';
 import type { DesignMatrix } from '../numeric/design-matrix.js';
 import type { Link } from './links.js';
 
+/** A design row by row: `rowAt(i, out)` writes row i's entries into `out` (the full design is never needed at once). */
+export interface DesignByRow {
+  readonly rows: number;
+  readonly columns: number;
+  rowAt(row: number, out: Float64Array): void;
+}
+
+/** A design matrix's rows, one at a time. */
+export function rowsOfMatrix(design: DesignMatrix): DesignByRow {
+  const { rows, columns, values } = design;
+  return {
+    rows,
+    columns,
+    rowAt: (row, out) => {
+      for (let j = 0; j < columns; j += 1) out[j] = values[j * rows + row] as number;
+    },
+  };
+}
+
 /** The rows of a fit, as the fold starts need them. */
 export interface FoldStartRows {
-  readonly design: DesignMatrix;
+  readonly design: DesignByRow;
   readonly successes: ArrayLike<number>;
   readonly trials: ArrayLike<number>;
   readonly priorWeights: ArrayLike<number>;
@@ -46,7 +65,6 @@ export function foldStarts(rows: FoldStartRows, link: Link, coefficients: ArrayL
   const { design } = rows;
   const n = design.rows;
   const k = design.columns;
-  const values = design.values;
   // Per fold: the lower triangle of I_f (k-by-k row-major) and U_f.
   const information = new Float64Array(folds * k * k);
   const score = new Float64Array(folds * k);
@@ -55,12 +73,9 @@ export function foldStarts(rows: FoldStartRows, link: Link, coefficients: ArrayL
   for (let i = 0; i < n; i += 1) {
     const weight = (rows.trials[i] as number) * (rows.priorWeights[i] as number);
     if (!(weight > 0)) continue;
+    design.rowAt(i, row);
     let eta = 0;
-    for (let j = 0; j < k; j += 1) {
-      const value = values[j * n + i] as number;
-      row[j] = value;
-      eta += value * (coefficients[j] as number);
-    }
+    for (let j = 0; j < k; j += 1) eta += (row[j] as number) * (coefficients[j] as number);
     let mu: number;
     let workingWeight: number;
     let scoreWeight: number;

@@ -3,7 +3,7 @@ import { describe, expect, it } from 'vitest';
 import type { BinomialFitEstimated } from '../../src/model/binomial-fit-types.js';
 import { fitBinomial } from '../../src/model/fit-binomial.js';
 import { linkFor } from '../../src/model/links.js';
-import { foldStarts } from '../../src/model/refit-starts.js';
+import { foldStarts, rowsOfMatrix } from '../../src/model/refit-starts.js';
 import { type DesignMatrix, designMatrixFromColumns, interceptColumn } from '../../src/numeric/design-matrix.js';
 import { createRandomSource } from '../../src/random.js';
 
@@ -33,7 +33,7 @@ describe('foldStarts()', () => {
   const fold = Int32Array.from({ length: 4000 }, (_, i) => (i * 7) % folds);
 
   it('is one Newton step b + (I - I_f)^-1 (U - U_f), with I and U summed here and solved by mathjs lusolve (reference)', () => {
-    const starts = foldStarts({ ...data, priorWeights: new Float64Array(4000).fill(1) }, linkFor('logit'), full.coefficients, fold, folds);
+    const starts = foldStarts({ ...data, design: rowsOfMatrix(data.design), priorWeights: new Float64Array(4000).fill(1) }, linkFor('logit'), full.coefficients, fold, folds);
     const n = 4000;
     for (let f = 0; f < folds; f += 1) {
       const information = Array.from({ length: 4 }, () => [0, 0, 0, 0]);
@@ -55,7 +55,7 @@ describe('foldStarts()', () => {
   });
 
   it('leaves each fold a shorter way to its own estimate than the full estimate does, and the fold fit ends at the same estimate', () => {
-    const starts = foldStarts({ ...data, priorWeights: new Float64Array(4000).fill(1) }, linkFor('logit'), full.coefficients, fold, folds);
+    const starts = foldStarts({ ...data, design: rowsOfMatrix(data.design), priorWeights: new Float64Array(4000).fill(1) }, linkFor('logit'), full.coefficients, fold, folds);
     for (let f = 0; f < folds; f += 1) {
       const keep = Array.from(fold, (value) => value !== f);
       const indices = keep.flatMap((kept, i) => (kept ? [i] : []));
