@@ -102,6 +102,22 @@ export interface UsedCovariates {
 /** Every covariate kept: {@link collapseOver} then merges over the players alone. */
 export const EVERY_COVARIATE: UsedCovariates = { latency: true, scale: true, difficulty: true };
 
+/** Rows merged over the players, per rows object of this thread (see {@link mergedOverPlayers}). */
+const mergedRows = new WeakMap<CollapsedTrials, CollapsedTrials>();
+
+/**
+ * `collapseOver(data, EVERY_COVARIATE)`, computed once for `data` on this thread: the full fit,
+ * the least-squares baseline and the reduced models of one report all start from it.
+ */
+export function mergedOverPlayers(data: CollapsedTrials): CollapsedTrials {
+  let merged = mergedRows.get(data);
+  if (merged === undefined) {
+    merged = collapseOver(data, EVERY_COVARIATE);
+    mergedRows.set(data, merged);
+  }
+  return merged;
+}
+
 /**
  * The rows merged over players and over the covariates `used` leaves out:
  * the rows of a model that reads only `used` and does not cluster (a

@@ -11,7 +11,7 @@ import { multiply } from '../numeric/design-matrix.js';
 import { normalQuantile } from '../stats/distributions.js';
 import { interval, square, termsOfColumns } from './coefficient-rows.js';
 import { calibrationTable, crossValidate } from './cross-validation.js';
-import { EVERY_COVARIATE, collapseOver } from './collapse.js';
+import { mergedOverPlayers } from './collapse.js';
 import { type TermDesign, buildDesign } from './design.js';
 import { fitLeastSquares } from './fit-least-squares.js';
 import { type CoefficientRow, type FitModelOptions, type FitReport, type LeastSquaresBaseline, noEstimates } from './fit-report-types.js';
@@ -26,7 +26,7 @@ import { type Prepared, accuracy, leastSquaresGroups, leastSquaresWeights } from
  */
 export function leastSquaresBaseline(prepared: Prepared, fullDesign: () => TermDesign): LeastSquaresBaseline | null {
   const perAttempt = prepared.likelihood === 'bernoulli';
-  const rows = perAttempt ? collapseOver(prepared.data, EVERY_COVARIATE) : prepared.data;
+  const rows = perAttempt ? mergedOverPlayers(prepared.data) : prepared.data;
   const design = perAttempt ? buildDesign(rows, prepared.terms, prepared.coding) : fullDesign();
   const matrix = design.matrix;
   const groups = leastSquaresGroups(prepared, rows);

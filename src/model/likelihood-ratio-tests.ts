@@ -14,7 +14,7 @@
  * Mathematical Statistics* 9(1), 60-62; McCullagh & Nelder 1989, §4.4.3).
  */
 import { chiSquareUpperTail } from '../stats/distributions.js';
-import { collapseOver } from './collapse.js';
+import { collapseOver, mergedOverPlayers } from './collapse.js';
 import { buildDesign } from './design.js';
 import type { LikelihoodRatioTest } from './fit-report-types.js';
 import { type Prepared, runBinomial } from './prepared-fit.js';
@@ -75,7 +75,8 @@ export function fitReduced(prepared: Prepared, factor: TestedFactor): ReducedFit
   const kept = prepared.terms.filter((term) => !dropped.includes(term));
   if (kept.length === 0) return { factor, status: 'not_tested', dropped_terms: dropped, reason: 'no term is left once the factor is dropped' };
   const factors = kept.map(termFactors);
-  const rows = collapseOver(prepared.data, {
+  // Merged over the players first (shared with the full fit and the baseline), then over the dropped covariate: the same groups.
+  const rows = collapseOver(mergedOverPlayers(prepared.data), {
     latency: factors.some((used) => used.latency),
     scale: factors.some((used) => used.scale),
     difficulty: factors.some((used) => used.difficulty),

@@ -18,7 +18,7 @@
  * of rows at probability 0 or 1 would count merged rows).
  */
 import type { BinomialFit } from './binomial-fit-types.js';
-import { EVERY_COVARIATE, collapseOver } from './collapse.js';
+import { mergedOverPlayers } from './collapse.js';
 import { type TermDesign, buildDesign, designRows } from './design.js';
 import { robustBlock, scoreFactor } from './fit-binomial.js';
 import { linkFor } from './links.js';
@@ -38,7 +38,7 @@ export function fitFullModel(prepared: Prepared, design: () => TermDesign): Bino
   const direct = () => runBinomial(prepared, data, design());
   if (prepared.likelihood !== 'bernoulli' || data.player === null) return direct();
   for (let i = 0; i < data.rows; i += 1) if (!((data.attempts[i] as number) * (data.weight[i] as number) > 0)) return direct();
-  const merged = collapseOver(data, EVERY_COVARIATE);
+  const merged = mergedOverPlayers(data);
   if (merged.rows > MERGED_SHARE * data.rows) return direct();
   const fit = runBinomial(prepared, merged, buildDesign(merged, prepared.terms, prepared.coding), false);
   if (fit.status !== 'converged' || fit.warnings.length > 0) return direct();

@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import type { Trials } from '../../src/formats/trials-types.js';
 import fc from 'fast-check';
-import { collapseTrials } from '../../src/model/collapse.js';
+import { collapseOver, collapseTrials, groupTrials, mergedOverPlayers } from '../../src/model/collapse.js';
 import type { CollapsedTrials } from '../../src/model/collapsed-trials.js';
 import { GRID_MIN_ROWS, GroupAccumulator } from '../../src/model/group-accumulator.js';
 
@@ -199,5 +199,23 @@ describe('GroupAccumulator direct index (latency on a 0.01 ms grid)', () => {
       }),
       { numRuns: 30, seed: 20261202 },
     );
+  });
+});
+
+describe('collapseOver() from the rows merged over the players', () => {
+  it('gives the groups and counts of merging the players\' rows directly, for each covariate dropped (what the reduced models read)', () => {
+    for (const withWeights of [false, true]) {
+      const data = groupTrials(seededTrials(90_000, withWeights, true)).groups;
+      const merged = mergedOverPlayers(data);
+      expect(mergedOverPlayers(data)).toBe(merged); // computed once per rows object
+      expect(merged.rows).toBeLessThan(data.rows);
+      for (const used of [
+        { latency: false, scale: true, difficulty: true },
+        { latency: true, scale: false, difficulty: true },
+        { latency: true, scale: true, difficulty: false },
+      ]) {
+        expect(differences(groupsOf(collapseOver(data, used)), groupsOf(collapseOver(merged, used)))).toEqual([]);
+      }
+    }
   });
 });
