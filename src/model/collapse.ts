@@ -18,7 +18,7 @@
  * `collapsed-trials.ts`.
  */
 import type { Trials } from '../formats/trials-types.js';
-import type { CollapsedTrials, GroupedTrials } from './collapsed-trials.js';
+import { type CollapsedTrials, type GroupedTrials, gatherCollapsed } from './collapsed-trials.js';
 import { GroupAccumulator } from './group-accumulator.js';
 
 /** Options of {@link collapseTrials}. */
@@ -102,20 +102,60 @@ export interface UsedCovariates {
 /** Every covariate kept: {@link collapseOver} then merges over the players alone. */
 export const EVERY_COVARIATE: UsedCovariates = { latency: true, scale: true, difficulty: true };
 
-/** Rows merged over the players, per rows object of this thread (see {@link mergedOverPlayers}). */
-const mergedRows = new WeakMap<CollapsedTrials, CollapsedTrials>();
+/** Rows merged over the players, and each row's merged row, per rows object of this thread (see {@link mergedOverPlayers}). */
+interface MergedEntry {
+  readonly merged: CollapsedTrials;
+  readonly rowGroups: Int32Array;
+  /** Whether every row's successes and attempts are whole numbers (then sums and differences of them are exact). */
+  readonly wholeCounts: boolean;
+}
+const mergedRows = new WeakMap<CollapsedTrials, MergedEntry>();
+
+function mergedEntry(data: CollapsedTrials): MergedEntry {
+  let entry = mergedRows.get(data);
+  if (entry === undefined) {
+    const rowGroups = new Int32Array(data.rows);
+    let wholeCounts = true;
+    for (let i = 0; i < data.rows && wholeCounts; i += 1) wholeCounts = Number.isInteger(data.successes[i]) && Number.isInteger(data.attempts[i]);
+    entry = { merged: collapseOver(data, EVERY_COVARIATE, rowGroups), rowGroups, wholeCounts };
+    mergedRows.set(data, entry);
+  }
+  return entry;
+}
 
 /**
  * `collapseOver(data, EVERY_COVARIATE)`, computed once for `data` on this thread: the full fit,
- * the least-squares baseline and the reduced models of one report all start from it.
+ * the least-squares baseline, the reduced models and the folds of one report all start from it.
  */
 export function mergedOverPlayers(data: CollapsedTrials): CollapsedTrials {
-  let merged = mergedRows.get(data);
-  if (merged === undefined) {
-    merged = collapseOver(data, EVERY_COVARIATE);
-    mergedRows.set(data, merged);
+  return mergedEntry(data).merged;
+}
+
+/**
+ * The rows of `data` but `heldOut` (row indices) merged over the players: the groups of
+ * {@link mergedOverPlayers} less the held-out rows' counts, those left without attempts dropped,
+ * in that order (a fold's training rows). The same groups and counts as
+ * `collapseOver(gatherCollapsed(data, training), EVERY_COVARIATE)`, perhaps in another order; one
+ * pass over the held-out rows instead of a grouping of the training rows. Null when some count is
+ * not a whole number (the subtraction would not be exact: the caller groups the training rows).
+ */
+export function mergedWithout(data: CollapsedTrials, heldOut: Int32Array): CollapsedTrials | null {
+  const { merged, rowGroups, wholeCounts } = mergedEntry(data);
+  if (!wholeCounts) return null;
+  const successes = Float64Array.from(merged.successes);
+  const attempts = Float64Array.from(merged.attempts);
+  for (let r = 0; r < heldOut.length; r += 1) {
+    const i = heldOut[r] as number;
+    const group = rowGroups[i] as number;
+    successes[group] = (successes[group] as number) - (data.successes[i] as number);
+    attempts[group] = (attempts[group] as number) - (data.attempts[i] as number);
   }
-  return merged;
+  let kept = 0;
+  for (let g = 0; g < merged.rows; g += 1) if ((attempts[g] as number) > 0) kept += 1;
+  const left = new Int32Array(kept);
+  for (let g = 0, r = 0; g < merged.rows; g += 1) if ((attempts[g] as number) > 0) left[r++] = g;
+  const gathered = gatherCollapsed({ ...merged, successes, attempts }, left);
+  return { ...gathered, sourceRows: data.rows - heldOut.length };
 }
 
 /**
@@ -128,9 +168,10 @@ export function mergedOverPlayers(data: CollapsedTrials): CollapsedTrials {
  * scale is). Per-round rows are merged too: the grouped deviance of the
  * result is not that of the rounds, so a caller compares Bernoulli
  * log-likelihoods. A covariate left out reads as a constant (latency 0,
- * scale 1, difficulty 0), which the model does not read.
+ * scale 1, difficulty 0), which the model does not read. `rowGroups`, when
+ * given, receives each row's merged row.
  */
-export function collapseOver(data: CollapsedTrials, used: UsedCovariates): CollapsedTrials {
+export function collapseOver(data: CollapsedTrials, used: UsedCovariates, rowGroups: Int32Array | null = null): CollapsedTrials {
   const constant = (value: number) => new Float64Array(data.rows).fill(value);
   let unitWeights = true;
   for (let i = 0; i < data.rows && unitWeights; i += 1) unitWeights = data.weight[i] === 1;
@@ -146,6 +187,7 @@ export function collapseOver(data: CollapsedTrials, used: UsedCovariates): Colla
       attempts: data.attempts,
     },
     data.rows,
+    rowGroups,
   );
   return { ...accumulator.finish(), sourceRows: data.sourceRows };
 }

@@ -16,7 +16,7 @@ import { type Issue, warning } from '../issues.js';
 import { multiply } from '../numeric/design-matrix.js';
 import { createRandomSource, shuffledIndices } from '../random.js';
 import { type CollapsedTrials, gatherCollapsed } from './collapsed-trials.js';
-import { EVERY_COVARIATE, collapseOver } from './collapse.js';
+import { EVERY_COVARIATE, collapseOver, mergedWithout } from './collapse.js';
 import { type TermDesign, buildDesign, designRows } from './design.js';
 import { fitLeastSquares } from './fit-least-squares.js';
 import type { CalibrationBin, CrossValidation, FoldResult } from './fit-report-types.js';
@@ -184,8 +184,10 @@ function foldSplit(assignment: FoldAssignment, fold: number): { readonly trainin
  * Fit fold `fold` (0-based) on its training rows, from `start` (null: R's
  * starting values). A binomial report's folds (refit jobs) ask for `merged`:
  * those fits do not cluster, so their training rows are merged over the
- * players first (`collapseOver`: the same estimates, on the 1M-row bench file
- * about 286,000 rows instead of 788,000), and the held-out predictions are
+ * players first (the same estimates, on the 1M-row bench file about 286,000
+ * rows instead of 788,000: `mergedWithout`, the report's rows merged over the
+ * players less the held-out rows, or `collapseOver` of the training rows when
+ * counts are not whole numbers), and the held-out predictions are
  * computed from the held-out rows' design rows in place. Otherwise (the
  * least-squares family's folds), each set of rows is gathered and its design
  * built.
@@ -210,7 +212,7 @@ export function fitFold(prepared: Prepared, assignment: FoldAssignment, fold: nu
     return scored(fitted.status, predictProbabilities(prepared, buildDesign(heldOutRows, prepared.terms, prepared.coding), fitted.coefficients));
   }
   // A binomial fold fit does not cluster: its rows merged over the players give the same estimates on fewer rows.
-  const merged = collapseOver(gatherCollapsed(data, training), EVERY_COVARIATE);
+  const merged = mergedWithout(data, heldOut) ?? collapseOver(gatherCollapsed(data, training), EVERY_COVARIATE);
   const fitted = fitCoefficients(prepared, merged, buildDesign(merged, prepared.terms, prepared.coding), start);
   if (fitted.coefficients === null) return scored(fitted.status, null);
   return scored(fitted.status, probabilitiesOf(prepared, predictorAt(prepared, heldOut, fitted.coefficients)));

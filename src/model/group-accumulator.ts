@@ -155,9 +155,11 @@ export class GroupAccumulator {
    * Add the first `count` rows of `columns`, in batches of
    * {@link COLLAPSE_BATCH_ROWS} counted from the first row (a reader that
    * hands over full batches gets the same batches, hence the same group order).
+   * `rowGroups`, when given, receives each row's group (its index in what
+   * {@link finish} returns).
    */
-  addRows(columns: RowColumns, count: number): void {
-    if (count <= COLLAPSE_BATCH_ROWS) return this.addBatch(columns, count);
+  addRows(columns: RowColumns, count: number, rowGroups: Int32Array | null = null): void {
+    if (count <= COLLAPSE_BATCH_ROWS) return this.addBatch(columns, count, rowGroups);
     for (let start = 0; start < count; start += COLLAPSE_BATCH_ROWS) {
       const end = Math.min(count, start + COLLAPSE_BATCH_ROWS);
       this.addBatch(
@@ -171,6 +173,7 @@ export class GroupAccumulator {
           attempts: columns.attempts.subarray(start, end),
         },
         end - start,
+        rowGroups === null ? null : rowGroups.subarray(start, end),
       );
     }
   }
@@ -180,10 +183,12 @@ export class GroupAccumulator {
    * method of its own (a loop that runs once per batch is optimised alone,
    * instead of the whole batch deoptimising where the next loop starts).
    */
-  private addBatch(columns: RowColumns, count: number): void {
+  private addBatch(columns: RowColumns, count: number, rowGroups: Int32Array | null): void {
     this.sourceRows += count;
     if (!this.merge) {
+      const first = this.groups;
       this.appendAll(columns, count);
+      if (rowGroups !== null) for (let i = 0; i < count; i += 1) rowGroups[i] = first + i;
       return;
     }
     if (this.groupOf.length < count) {
@@ -195,6 +200,8 @@ export class GroupAccumulator {
     if (this.grid !== null) {
       rest = gridCells(columns, count, this.cells, this.scaleCodes);
       this.addGridCounts(columns, count, this.grid);
+      // The direct index's rows have their groups now; the others (-1) get theirs below.
+      if (rowGroups !== null) rowGroups.set(this.groupOf.subarray(0, count));
       if (rest === 0) return;
       if (rest < count) {
         if (this.rest === null || this.rest.latency.length < rest) this.rest = offGridColumns(Math.max(rest, COLLAPSE_BATCH_ROWS));
@@ -204,6 +211,10 @@ export class GroupAccumulator {
     this.hashRows(hashed, rest);
     this.assignGroups(hashed, rest);
     this.addCounts(hashed, rest);
+    if (rowGroups === null) return;
+    const groupOf = this.groupOf;
+    if (hashed === columns) rowGroups.set(groupOf.subarray(0, count));
+    else for (let i = 0, r = 0; i < count; i += 1) if ((rowGroups[i] as number) < 0) rowGroups[i] = groupOf[r++] as number;
   }
 
   /**
@@ -319,8 +330,11 @@ export class GroupAccumulator {
     const groupOf = this.groupOf;
     this.touched += touchRecords(this.records, groupOf, count, stride);
     for (let i = 0; i < count; i += 1) {
-      const group = groupOf[i] as number;
-      const base = (this.holdsKey(group, columns, i) ? group : this.collidedGroup(columns, i, group)) * stride;
+      const first = groupOf[i] as number;
+      const group = this.holdsKey(first, columns, i) ? first : this.collidedGroup(columns, i, first);
+      // Each row's group, for a caller that asks for them (`addRows`' `rowGroups`).
+      groupOf[i] = group;
+      const base = group * stride;
       const target = this.records;
       target[base + 3] = (target[base + 3] as number) + (successes[i] as number);
       target[base + 4] = (target[base + 4] as number) + (attempts[i] as number);

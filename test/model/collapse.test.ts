@@ -1,7 +1,8 @@
 import { describe, expect, it } from 'vitest';
 import type { Trials } from '../../src/formats/trials-types.js';
 import fc from 'fast-check';
-import { collapseOver, collapseTrials, groupTrials, mergedOverPlayers } from '../../src/model/collapse.js';
+import { EVERY_COVARIATE, collapseOver, collapseTrials, groupTrials, mergedOverPlayers, mergedWithout } from '../../src/model/collapse.js';
+import { gatherCollapsed } from '../../src/model/collapsed-trials.js';
 import type { CollapsedTrials } from '../../src/model/collapsed-trials.js';
 import { GRID_MIN_ROWS, GroupAccumulator } from '../../src/model/group-accumulator.js';
 
@@ -217,5 +218,29 @@ describe('collapseOver() from the rows merged over the players', () => {
         expect(differences(groupsOf(collapseOver(data, used)), groupsOf(collapseOver(merged, used)))).toEqual([]);
       }
     }
+  });
+});
+
+describe('mergedWithout() (a fold\'s training rows)', () => {
+  it('gives the groups and counts of merging the rows left directly, whole groups held out included', () => {
+    for (const withWeights of [false, true]) {
+      const data = groupTrials(seededTrials(90_000, withWeights, true)).groups;
+      const player = data.player as Int32Array;
+      for (const fold of [0, 3]) {
+        // Players 0-9 or 30-39 held out, as a player-wise fold holds them.
+        const heldOut = Int32Array.from({ length: data.rows }, (_, i) => i).filter((i) => Math.floor((player[i] as number) / 10) === fold);
+        const training = Int32Array.from({ length: data.rows }, (_, i) => i).filter((i) => Math.floor((player[i] as number) / 10) !== fold);
+        const left = mergedWithout(data, heldOut);
+        if (left === null) throw new Error('whole counts: expected the merged rows');
+        expect(differences(groupsOf(collapseOver(gatherCollapsed(data, training), EVERY_COVARIATE)), groupsOf(left))).toEqual([]);
+        expect(left.sourceRows).toBe(training.length);
+      }
+    }
+  });
+
+  it('declines counts that are not whole numbers (their differences would not be exact)', () => {
+    const data = groupTrials(seededTrials(1_000, false, true)).groups;
+    const halves = { ...data, successes: Float64Array.from(data.successes, (value) => value / 2) };
+    expect(mergedWithout(halves, Int32Array.of(0, 1, 2))).toBe(null);
   });
 });
