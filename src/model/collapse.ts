@@ -105,16 +105,17 @@ export const EVERY_COVARIATE: UsedCovariates = { latency: true, scale: true, dif
 /** Rows merged over the players, and each row's merged row, per rows object of this thread (see {@link mergedOverPlayers}). */
 interface MergedEntry {
   readonly merged: CollapsedTrials;
-  readonly rowGroups: Int32Array;
+  /** Each row's merged row (what `mergedWithout` needs), or null when not asked for. */
+  readonly rowGroups: Int32Array | null;
   /** Whether every row's successes and attempts are whole numbers (then sums and differences of them are exact). */
   readonly wholeCounts: boolean;
 }
 const mergedRows = new WeakMap<CollapsedTrials, MergedEntry>();
 
-function mergedEntry(data: CollapsedTrials): MergedEntry {
+function mergedEntry(data: CollapsedTrials, withRowGroups: boolean): MergedEntry {
   let entry = mergedRows.get(data);
-  if (entry === undefined) {
-    const rowGroups = new Int32Array(data.rows);
+  if (entry === undefined || (withRowGroups && entry.rowGroups === null)) {
+    const rowGroups = withRowGroups ? new Int32Array(data.rows) : null;
     let wholeCounts = true;
     for (let i = 0; i < data.rows && wholeCounts; i += 1) wholeCounts = Number.isInteger(data.successes[i]) && Number.isInteger(data.attempts[i]);
     entry = { merged: collapseOver(data, EVERY_COVARIATE, rowGroups), rowGroups, wholeCounts };
@@ -126,9 +127,11 @@ function mergedEntry(data: CollapsedTrials): MergedEntry {
 /**
  * `collapseOver(data, EVERY_COVARIATE)`, computed once for `data` on this thread: the full fit,
  * the least-squares baseline, the reduced models and the folds of one report all start from it.
+ * With `rowGroups` (the default) it also keeps each row's merged row (4 bytes a row), which the
+ * folds need ({@link mergedWithout}); a fit without folds leaves them out.
  */
-export function mergedOverPlayers(data: CollapsedTrials): CollapsedTrials {
-  return mergedEntry(data).merged;
+export function mergedOverPlayers(data: CollapsedTrials, { rowGroups = true }: { readonly rowGroups?: boolean } = {}): CollapsedTrials {
+  return mergedEntry(data, rowGroups).merged;
 }
 
 /**
@@ -140,8 +143,8 @@ export function mergedOverPlayers(data: CollapsedTrials): CollapsedTrials {
  * not a whole number (the subtraction would not be exact: the caller groups the training rows).
  */
 export function mergedWithout(data: CollapsedTrials, heldOut: Int32Array): CollapsedTrials | null {
-  const { merged, rowGroups, wholeCounts } = mergedEntry(data);
-  if (!wholeCounts) return null;
+  const { merged, rowGroups, wholeCounts } = mergedEntry(data, true);
+  if (!wholeCounts || rowGroups === null) return null;
   const successes = Float64Array.from(merged.successes);
   const attempts = Float64Array.from(merged.attempts);
   for (let r = 0; r < heldOut.length; r += 1) {

@@ -194,7 +194,7 @@ export function beginFitModel(trials: Trials | GroupedTrials, options: FitModelO
   };
   const fullReport = (): { readonly done: true; readonly report: FitReport } | { readonly done: false; readonly finish: (results: readonly RefitResult[]) => FitReport } => {
     progress('fit');
-    const fit = fitFullModel(prepared, fullDesign);
+    const fit = fitFullModel(prepared, fullDesign, { folds: assignment !== null });
     if (fit.status === 'rank_deficient' || fit.status === 'separation') {
       const aliasedTerms = fit.status === 'rank_deficient' ? termsOfColumns(shape, fit.aliased) : [];
       const issue =

@@ -31,14 +31,16 @@ const MERGED_SHARE = 0.8;
 /**
  * The full fit of `prepared` (the players' rows). `design` gives their design matrix, built only
  * when the players' rows are fitted themselves: the merged fit's sweep computes each row's design
- * entries as it goes (`designRows`), so the one-fit command never holds the full matrix.
+ * entries as it goes (`designRows`), so the one-fit command never holds the full matrix. `folds`:
+ * whether the report has folds, which will start from the same merged rows.
  */
-export function fitFullModel(prepared: Prepared, design: () => TermDesign): BinomialFit {
+export function fitFullModel(prepared: Prepared, design: () => TermDesign, { folds = true }: { readonly folds?: boolean } = {}): BinomialFit {
   const { data } = prepared;
   const direct = () => runBinomial(prepared, data, design());
   if (prepared.likelihood !== 'bernoulli' || data.player === null) return direct();
   for (let i = 0; i < data.rows; i += 1) if (!((data.attempts[i] as number) * (data.weight[i] as number) > 0)) return direct();
-  const merged = mergedOverPlayers(data);
+  // Each row's merged row is kept only for the report's folds (mergedWithout).
+  const merged = mergedOverPlayers(data, { rowGroups: folds });
   if (merged.rows > MERGED_SHARE * data.rows) return direct();
   const fit = runBinomial(prepared, merged, buildDesign(merged, prepared.terms, prepared.coding), false);
   if (fit.status !== 'converged' || fit.warnings.length > 0) return direct();
