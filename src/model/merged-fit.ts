@@ -63,11 +63,24 @@ export function fitFullModel(prepared: Prepared, design: () => TermDesign, { fol
       const coefficient = fit.coefficients[j] as number;
       if (coefficient !== 0) eta += (x[j] as number) * coefficient;
     }
-    const mu = link.inverse(eta);
+    let mu: number;
+    let complement: number;
+    if (logit) {
+      // The logit link's inverse and its complement from one exp, by the link's own operations
+      // (links.ts: 1 / (1 + e) and e / (1 + e), e = exp(-|eta|)): the same bits.
+      const exponential = Math.exp(-Math.abs(eta));
+      const inverse = 1 / (1 + exponential);
+      const small = exponential / (1 + exponential);
+      mu = eta >= 0 ? inverse : small;
+      complement = eta > 0 ? small : inverse;
+    } else {
+      mu = link.inverse(eta);
+      complement = link.inverseComplement(eta);
+    }
     fitted[i] = mu;
     if (clusters === null) continue;
     const attempts = data.attempts[i] as number;
-    const factor = scoreFactor(link, logit, attempts * (data.weight[i] as number), (data.successes[i] as number) / attempts, mu, link.inverseComplement(eta), eta);
+    const factor = scoreFactor(link, logit, attempts * (data.weight[i] as number), (data.successes[i] as number) / attempts, mu, complement, eta);
     if (factor === null) continue;
     const at = (clusters.indices[i] as number) * k;
     for (let j = 0; j < k; j += 1) clusterScores[at + j] = (clusterScores[at + j] as number) + (x[j] as number) * factor;
