@@ -56,12 +56,11 @@ export function startWorkers(url: URL, count: number): StartedWorkers {
       break;
     }
     worker.unref();
-    // Listened for from the start: a script that fails to load must not throw in this thread.
+    // Listened for from the start (and kept): a script that fails to load must not throw in this thread.
     const ended = new Promise<void>((resolve) => {
-      worker.once('error', () => resolve());
+      worker.on('error', () => resolve());
       worker.once('exit', () => resolve());
     });
-    worker.on('error', () => undefined);
     started.push({ worker, ended });
   }
   return { started, stop: async () => void (await Promise.all(started.map(({ worker }) => worker.terminate()))) };
