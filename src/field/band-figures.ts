@@ -12,7 +12,7 @@
  */
 import type { CollapsedTrials } from '../model/collapsed-trials.js';
 import type { CompiledModel } from '../model/compile.js';
-import { designRows } from '../model/design.js';
+import { designRowsOf } from '../model/design.js';
 import { twoSidedCritical } from './field-fit.js';
 
 export interface BandFigures {
@@ -45,7 +45,7 @@ export function bandFigures(
   model: CompiledModel,
 ): BandFigures[] {
   const k = model.coefficients.length;
-  const designRow = designRows(model.source.terms, model.difficulty);
+  const design = designRowsOf(data, model.source.terms, model.difficulty);
   const x = new Float64Array(k);
   const rows = new Float64Array(bandCount);
   const attempts = new Float64Array(bandCount);
@@ -80,7 +80,7 @@ export function bandFigures(
       if (live.compensatedPlayer[code] === 0) controlPlayers[b] = (controlPlayers[b] as number) + 1;
     }
     const slope = w * model.link.derivative(live.linearPredictor[i] as number);
-    designRow(data.latency[i] as number, data.scale[i] as number, data.difficulty[i] as number, x);
+    design.rowAt(i, x);
     for (let j = 0; j < k; j += 1) gradient[b * k + j] = (gradient[b * k + j] as number) + slope * (x[j] as number);
   }
   const critical = twoSidedCritical(0.95);

@@ -17,7 +17,7 @@ import { multiply } from '../numeric/design-matrix.js';
 import { createRandomSource, shuffledIndices } from '../random.js';
 import { type CollapsedTrials, gatherCollapsed } from './collapsed-trials.js';
 import { EVERY_COVARIATE, collapseOver, mergedWithout } from './collapse.js';
-import { type TermDesign, buildDesign, designRows } from './design.js';
+import { type TermDesign, buildDesign, designRowsOf } from './design.js';
 import { fitLeastSquares } from './fit-least-squares.js';
 import type { CalibrationBin, CrossValidation, FoldResult } from './fit-report-types.js';
 import { linkFor } from './links.js';
@@ -126,13 +126,11 @@ function probabilitiesOf(prepared: Prepared, linear: Float64Array): Float64Array
  * gathered rows' design, which is never built.
  */
 function predictorAt(prepared: Prepared, indices: Int32Array, coefficients: ArrayLike<number>): Float64Array {
-  const { data } = prepared;
-  const row = designRows(prepared.terms, prepared.coding);
+  const design = designRowsOf(prepared.data, prepared.terms, prepared.coding);
   const x = new Float64Array(coefficients.length);
   const product = new Float64Array(indices.length);
   for (let r = 0; r < indices.length; r += 1) {
-    const i = indices[r] as number;
-    row(data.latency[i] as number, data.scale[i] as number, data.difficulty[i] as number, x);
+    design.rowAt(indices[r] as number, x);
     let sum = 0;
     for (let j = 0; j < x.length; j += 1) {
       const coefficient = coefficients[j] as number;
@@ -226,8 +224,7 @@ export function fitFold(prepared: Prepared, assignment: FoldAssignment, fold: nu
  */
 export function foldStartsOf(prepared: Prepared, assignment: FoldAssignment, coefficients: Float64Array): (Float64Array | null)[] {
   const { data } = prepared;
-  const row = designRows(prepared.terms, prepared.coding);
-  const design = { rows: data.rows, columns: coefficients.length, rowAt: (i: number, out: Float64Array) => row(data.latency[i] as number, data.scale[i] as number, data.difficulty[i] as number, out) };
+  const design = designRowsOf(data, prepared.terms, prepared.coding);
   return foldStarts({ design, successes: data.successes, trials: data.attempts, priorWeights: data.weight }, linkFor(prepared.link), coefficients, assignment.fold, assignment.folds);
 }
 

@@ -123,3 +123,33 @@ export function designRows(terms: readonly TermName[], coding: DifficultyCoding)
     }
   };
 }
+
+/** A design row by row: `rowAt(i, out)` writes row i's entries into `out` (the whole design is never needed at once). */
+export interface DesignByRow {
+  readonly rows: number;
+  readonly columns: number;
+  rowAt(row: number, out: Float64Array): void;
+}
+
+/** The design of `terms` over the rows of `data`, one row at a time: {@link designRows} of each row's covariates. */
+export function designRowsOf(data: CollapsedTrials, terms: readonly TermName[], coding: DifficultyCoding): DesignByRow {
+  const row = designRows(terms, coding);
+  const { latency, scale, difficulty } = data;
+  return {
+    rows: data.rows,
+    columns: designColumns(terms, coding).length,
+    rowAt: (i, out) => row(latency[i] as number, scale[i] as number, difficulty[i] as number, out),
+  };
+}
+
+/** A design matrix's rows, one at a time. */
+export function rowsOfMatrix(design: DesignMatrix): DesignByRow {
+  const { rows, columns, values } = design;
+  return {
+    rows,
+    columns,
+    rowAt: (row, out) => {
+      for (let j = 0; j < columns; j += 1) out[j] = values[j * rows + row] as number;
+    },
+  };
+}

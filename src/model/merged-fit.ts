@@ -19,7 +19,7 @@
  */
 import type { BinomialFit } from './binomial-fit-types.js';
 import { mergedOverPlayers } from './collapse.js';
-import { type TermDesign, buildDesign, designRows } from './design.js';
+import { type TermDesign, buildDesign, designRowsOf } from './design.js';
 import { robustBlock, scoreFactor } from './fit-binomial.js';
 import { linkFor } from './links.js';
 import { type Prepared, runBinomial } from './prepared-fit.js';
@@ -50,13 +50,13 @@ export function fitFullModel(prepared: Prepared, design: () => TermDesign, { fol
   const link = linkFor(prepared.link);
   const logit = link.name === 'logit';
   const k = fit.coefficients.length;
-  const rowOf = designRows(prepared.terms, prepared.coding);
+  const byRow = designRowsOf(data, prepared.terms, prepared.coding);
   const x = new Float64Array(k);
   const fitted = new Float64Array(data.rows);
   const clusters = prepared.clustered ? compactClusters(data.player, new Uint8Array(data.rows).fill(1)) : null;
   const clusterScores = new Float64Array(clusters === null ? 0 : clusters.count * k);
   for (let i = 0; i < data.rows; i += 1) {
-    rowOf(data.latency[i] as number, data.scale[i] as number, data.difficulty[i] as number, x);
+    byRow.rowAt(i, x);
     // X b summed as multiply() sums it (columns in order, zero coefficients skipped).
     let eta = 0;
     for (let j = 0; j < k; j += 1) {

@@ -26,27 +26,8 @@
  * starts from the full estimate.
  */
 import { choleskySolve } from '../numeric/cholesky.js';
-import type { DesignMatrix } from '../numeric/design-matrix.js';
+import type { DesignByRow } from './design.js';
 import type { Link } from './links.js';
-
-/** A design row by row: `rowAt(i, out)` writes row i's entries into `out` (the full design is never needed at once). */
-export interface DesignByRow {
-  readonly rows: number;
-  readonly columns: number;
-  rowAt(row: number, out: Float64Array): void;
-}
-
-/** A design matrix's rows, one at a time. */
-export function rowsOfMatrix(design: DesignMatrix): DesignByRow {
-  const { rows, columns, values } = design;
-  return {
-    rows,
-    columns,
-    rowAt: (row, out) => {
-      for (let j = 0; j < columns; j += 1) out[j] = values[j * rows + row] as number;
-    },
-  };
-}
 
 /** The rows of a fit, as the fold starts need them. */
 export interface FoldStartRows {

@@ -3,7 +3,8 @@ import { describe, expect, it } from 'vitest';
 import type { BinomialFitEstimated } from '../../src/model/binomial-fit-types.js';
 import { fitBinomial } from '../../src/model/fit-binomial.js';
 import { linkFor } from '../../src/model/links.js';
-import { foldStarts, rowsOfMatrix } from '../../src/model/refit-starts.js';
+import { rowsOfMatrix } from '../../src/model/design.js';
+import { foldStarts } from '../../src/model/refit-starts.js';
 import { type DesignMatrix, designMatrixFromColumns, interceptColumn } from '../../src/numeric/design-matrix.js';
 import { createRandomSource } from '../../src/random.js';
 
