@@ -32,7 +32,7 @@
  */
 import { sandwichOfClusterScores } from '../numeric/cluster-sandwich.js';
 import { BOUNDARY, divergingNames, stillDiverging } from '../model/separation.js';
-import type { FieldRows } from './field-fit.js';
+import { FIELD_TOLERANCE, type FieldRows } from './field-fit.js';
 
 export type FewColumnFit =
   | {
@@ -47,8 +47,6 @@ export type FewColumnFit =
     }
   | { readonly ok: false; readonly reason: string; readonly aliased?: readonly string[] };
 
-/** A step of at most this many standard errors ends a fit (as `fitField`'s). */
-const TOLERANCE = 1e-7;
 /** Steps longer than this many standard errors are checked against the log-likelihood. */
 const CHECKED_STEP = 1;
 const MAX_ITERATIONS = 50;
@@ -139,7 +137,7 @@ function newton(rows: FieldRows, pass: Pass, start: Float64Array, size: 1 | 2, n
         largest = Math.max(largest, Math.abs(step[j] as number) / Math.sqrt(inverse[j * size + j] as number));
       }
       stepIn[p] = largest;
-      if (largest <= TOLERANCE) done[p] = 1;
+      if (largest <= FIELD_TOLERANCE) done[p] = 1;
       else open += 1;
     }
     if (open === 0) return estimate(rows, pass, candidate, lastStep, size, sums, names);

@@ -42,7 +42,7 @@ export function fieldRows(data: CollapsedTrials, shape: 'per_attempt' | 'per_rou
  * 1e-10): a Newton step that small leaves the next iterate within about its square of the maximum,
  * so nothing reported moves, and each fit saves its last pass over the rows.
  */
-const FIELD_TOLERANCE = 1e-7;
+export const FIELD_TOLERANCE = 1e-7;
 
 export type FieldFit =
   | { readonly ok: true; readonly fit: BinomialFitEstimated }
@@ -52,14 +52,14 @@ export type FieldFit =
 export function fitField(
   rows: FieldRows,
   design: DesignMatrix,
-  options: { readonly offset?: ArrayLike<number>; readonly start?: ArrayLike<number>; readonly priorWeights?: Float64Array; readonly link?: LinkName } = {},
+  options: { readonly offset?: ArrayLike<number>; readonly start?: ArrayLike<number>; readonly link?: LinkName } = {},
 ): FieldFit {
   const fit: BinomialFit = fitBinomial(
     {
       design,
       successes: rows.successes,
       trials: rows.trials,
-      priorWeights: options.priorWeights ?? rows.priorWeights,
+      priorWeights: rows.priorWeights,
       clusters: rows.clusters,
       ...(options.offset === undefined ? {} : { offset: options.offset }),
     },
