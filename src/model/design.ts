@@ -141,15 +141,3 @@ export function designRowsOf(data: CollapsedTrials, terms: readonly TermName[], 
     rowAt: (i, out) => row(latency[i] as number, scale[i] as number, difficulty[i] as number, out),
   };
 }
-
-/** A design matrix's rows, one at a time. */
-export function rowsOfMatrix(design: DesignMatrix): DesignByRow {
-  const { rows, columns, values } = design;
-  return {
-    rows,
-    columns,
-    rowAt: (row, out) => {
-      for (let j = 0; j < columns; j += 1) out[j] = values[j * rows + row] as number;
-    },
-  };
-}

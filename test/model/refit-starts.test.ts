@@ -3,7 +3,7 @@ import { describe, expect, it } from 'vitest';
 import type { BinomialFitEstimated } from '../../src/model/binomial-fit-types.js';
 import { fitBinomial } from '../../src/model/fit-binomial.js';
 import { linkFor } from '../../src/model/links.js';
-import { rowsOfMatrix } from '../../src/model/design.js';
+import type { DesignByRow } from '../../src/model/design.js';
 import { foldStarts } from '../../src/model/refit-starts.js';
 import { type DesignMatrix, designMatrixFromColumns, interceptColumn } from '../../src/numeric/design-matrix.js';
 import { createRandomSource } from '../../src/random.js';
@@ -20,6 +20,18 @@ function rows(count: number, seed: number): { design: DesignMatrix; successes: F
   });
   const design = designMatrixFromColumns([interceptColumn(count), { name: 'latency', values: latency }, { name: 'log_scale', values: logScale }, { name: 'hard', values: hard }]);
   return { design, successes, trials: new Float64Array(count).fill(1) };
+}
+
+/** A design matrix's rows, one at a time (what foldStarts reads). */
+function rowsOfMatrix(design: DesignMatrix): DesignByRow {
+  const { rows, columns, values } = design;
+  return {
+    rows,
+    columns,
+    rowAt: (row, out) => {
+      for (let j = 0; j < columns; j += 1) out[j] = values[j * rows + row] as number;
+    },
+  };
 }
 
 function estimated(fit: ReturnType<typeof fitBinomial>): BinomialFitEstimated {
