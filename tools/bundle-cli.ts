@@ -17,7 +17,9 @@
  * it, loaded only when `lagparity plan size` runs; the fit's refit worker
  * (`src/model/refit-worker.ts`) likewise, `dist/bin/chunks/refit-worker.js`,
  * loaded only when `lagparity fit` runs its refits on threads, and the field
- * check's (`src/field/calibration-worker.ts`); and the charting
+ * check's (`src/field/calibration-worker.ts`), and the split read's
+ * (`src/io/read-part-worker.ts`, loaded when `fit` or `field-check` reads a
+ * large CSV file on two threads); and the charting
  * packages (vega, vega-lite) stay outside, imported from node_modules when a
  * report is drawn.
  * The library entries (`dist/index.js`, `dist/report/`) are not bundled: they
@@ -89,7 +91,8 @@ export async function bundleCli(root: string): Promise<string[]> {
   const worker = join(root, 'dist', 'plan', 'simulation-worker.js');
   const refitWorker = join(root, 'dist', 'model', 'refit-worker.js');
   const calibrationWorker = join(root, 'dist', 'field', 'calibration-worker.js');
-  for (const file of [entry, worker, refitWorker, calibrationWorker]) if (!existsSync(file)) throw new Error(`bundle-cli: ${relative(root, file)} is missing; run tsc first`);
+  const partWorker = join(root, 'dist', 'io', 'read-part-worker.js');
+  for (const file of [entry, worker, refitWorker, calibrationWorker, partWorker]) if (!existsSync(file)) throw new Error(`bundle-cli: ${relative(root, file)} is missing; run tsc first`);
   const outdir = join(root, 'dist', 'bin');
   rmSync(outdir, { recursive: true, force: true });
   const result = await build({
@@ -97,8 +100,9 @@ export async function bundleCli(root: string): Promise<string[]> {
     // The worker scripts are entries of their own, beside the chunks that start them
     // (`new URL('./simulation-worker.js', import.meta.url)` in src/plan/run-studies.ts,
     // `new URL('./refit-worker.js', import.meta.url)` in src/model/fit-model-threads.ts,
-    // `new URL('./calibration-worker.js', import.meta.url)` in src/field/check-field-threads.ts).
-    entryPoints: { lagparity: entry, 'chunks/simulation-worker': worker, 'chunks/refit-worker': refitWorker, 'chunks/calibration-worker': calibrationWorker },
+    // `new URL('./calibration-worker.js', import.meta.url)` in src/field/check-field-threads.ts,
+    // `new URL('./read-part-worker.js', import.meta.url)` in src/io/split-read.ts).
+    entryPoints: { lagparity: entry, 'chunks/simulation-worker': worker, 'chunks/refit-worker': refitWorker, 'chunks/calibration-worker': calibrationWorker, 'chunks/read-part-worker': partWorker },
     outdir,
     bundle: true,
     splitting: true,

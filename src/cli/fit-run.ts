@@ -124,7 +124,7 @@ export async function runFit(path: string, options: FitOptions): Promise<number>
   }
 
   const progress = progressLine('lagparity fit');
-  const read = await readGrouped(path, progress, { ...(latencyStepMs === undefined ? {} : { latencyStepMs }), counts: options.counts as 'rounds' | 'attempts' });
+  const read = await readGrouped(path, progress, { ...(latencyStepMs === undefined ? {} : { latencyStepMs }), counts: options.counts as 'rounds' | 'attempts', threads });
   if (!read.ok) {
     progress.done();
     reportIssues(read.issues);

@@ -6,8 +6,8 @@
  * (`engine/read-with-duckdb.ts`, loaded only then); one CSV file without a
  * resolution through the built-in reader, its latencies exact.
  */
-import { createHash } from 'node:crypto';
 import { type Result, ok } from '../issues.js';
+import { PART_WORKER_URL } from '../io/part-worker-url.js';
 import { readGroupedTrialsFile } from '../io/read-trials.js';
 import { mergeGroups } from '../model/collapse.js';
 import type { GroupedTrials } from '../model/collapsed-trials.js';
@@ -29,6 +29,8 @@ export interface ReadGroupedOptions {
    * row's exact latency, which the grouping rounds, so it reads one CSV file as before.
    */
   readonly engine?: boolean;
+  /** Threads for the built-in reader (see `ReadTrialsOptions.threads`); default 1. */
+  readonly threads?: number;
 }
 
 /** Read the trials straight into groups, hashing the bytes read. */
@@ -50,11 +52,12 @@ async function readGroupedSource(path: string, progress: ProgressLine, options: 
     });
     return read.ok ? ok({ grouped: read.value.grouped, sha256: read.value.sha256 }, read.warnings) : read;
   }
-  const hash = createHash('sha256');
   const read = await readGroupedTrialsFile(path, {
     onProgress: (rows) => progress.update(() => `read ${rows.toLocaleString('en-GB')} rows`),
-    onChunk: (bytes) => hash.update(bytes),
+    sha256: true,
+    ...(options.threads === undefined ? {} : { threads: options.threads, split: { workerUrl: PART_WORKER_URL } }),
   });
   if (!read.ok) return read;
-  return ok({ grouped: read.value, sha256: hash.digest('hex') }, read.warnings);
+  const { sha256, ...grouped } = read.value;
+  return ok({ grouped, sha256: sha256 ?? '' }, read.warnings);
 }

@@ -128,6 +128,11 @@ export class CsvScanner {
     return !this.stopped;
   }
 
+  /** Whether the bytes pushed so far end exactly where a record ends (nothing carried over, not stopped). */
+  atRecordEnd(): boolean {
+    return !this.stopped && !this.first && this.carry === null;
+  }
+
   /** The end of the input: the last record may lack a line end. */
   end(): boolean {
     if (this.stopped) return false;

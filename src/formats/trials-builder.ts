@@ -13,7 +13,7 @@ import { MAX_LATENCY_MS } from './limits.js';
 import { NameCodes } from './name-codes.js';
 import { parseDecimal, plainDecimal, scanDecimal, scanned } from './plain-decimal.js';
 import { RowBuffer } from './row-buffer.js';
-import { type DifficultyColumn, MAX_TRIAL_ROWS, type TrialRowSink, type TrialSinkOptions, type Trials, type TrialsSource } from './trials-types.js';
+import { type DifficultyColumn, MAX_TRIAL_ROWS, type TrialBatch, type TrialRowSink, type TrialSinkOptions, type Trials, type TrialsSource } from './trials-types.js';
 
 const KNOWN_COLUMNS = ['latency_ms', 'scale', 'difficulty', 'player', 'hit', 'hits', 'attempts', 'weight'] as const;
 type KnownColumn = (typeof KNOWN_COLUMNS)[number];
@@ -370,6 +370,33 @@ export class TrialsBuilder implements PlainLineReader {
     this.pushRow(difficulty, player);
     return i;
   }
+  /** Difficulty level names and player ids so far, by code (the player list is empty without a player column). */
+  names(): { readonly difficulty: readonly string[]; readonly player: readonly string[] } {
+    return { difficulty: this.difficulty.names, player: this.player.names };
+  }
+
+  /** The code of a difficulty level or player id, interned (in order of first appearance) if it is new. */
+  codeOf(kind: 'difficulty' | 'player', name: string): number {
+    return (kind === 'difficulty' ? this.difficulty : this.player).intern(name);
+  }
+
+  /**
+   * Rows another builder read from later lines of the same file (`io/split-read.ts`), as if this
+   * builder had read them: each row's difficulty and player code goes through `difficultyCodes` /
+   * `playerCodes` (that builder's code -> this one's, see {@link codeOf}), then into the columns or
+   * the sink's batches like every row here. False, with nothing taken, when the rows would pass
+   * {@link MAX_TRIAL_ROWS} (the caller reads the file again, line by line, for the error's line).
+   */
+  addReadRows(batch: TrialBatch, count: number, difficultyCodes: Int32Array, playerCodes: Int32Array | null): boolean {
+    if (this.rows + count > MAX_TRIAL_ROWS) return false;
+    const { latency, scale, successes, attempts, weight, difficulty, player } = batch;
+    for (let k = 0; k < count; k += 1) {
+      this.setRow(latency[k] as number, scale[k] as number, successes[k] as number, attempts[k] as number, weight === null ? 1 : (weight[k] as number));
+      this.pushRow(difficultyCodes[difficulty[k] as number] as number, player === null || playerCodes === null ? 0 : (playerCodes[player[k] as number] as number));
+    }
+    return true;
+  }
+
   /** The failure with the number of rows read before it, or no rows, or null. */
   private finalIssue(): Issue | null {
     if (this.failure) return { ...this.failure, message: `${this.failure.message} (stopped after ${this.rows} good rows)` };

@@ -81,6 +81,15 @@ export class TrialsReader {
     return this.scanner.push(chunk);
   }
 
+  /**
+   * Whether the bytes pushed so far hold the header and end exactly at the end of a line, with no
+   * failure: rows read elsewhere from the lines after may be added then (see
+   * `TrialsBuilder.addReadRows`).
+   */
+  atLineEnd(): boolean {
+    return this.headerSeen && this.builder.failure === undefined && this.scanner.atRecordEnd();
+  }
+
   /** The columns, or the first failure (with the number of good rows before it). */
   finish(): Result<Trials> {
     const issue = this.end();
