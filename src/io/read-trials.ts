@@ -70,14 +70,18 @@ export async function readTrialsFile(path: string, options: ReadTrialsOptions = 
  * `groupTrials(readTrialsFile(path))`, in the same order with named levels;
  * with numeric levels (keyed by code while reading, by value there) the
  * points found through a hash collision may come in another order, which
- * changes a fit's sums only in their last bits.
+ * changes a fit's sums only in their last bits. One exception: when the first
+ * 8,192 rows of a per-attempt file with players or weights are nearly all
+ * distinct (fewer than one in ten merges), later rows are kept as read, each
+ * its own group (`keepDistinct` of `GroupAccumulator`): a fit of the groups is
+ * the same up to the last bits of its sums, with more rows.
  */
 export async function readGroupedTrialsFile(path: string, options: ReadTrialsOptions = {}): Promise<Result<GroupedTrials & { readonly sha256?: string }>> {
   let accumulator: GroupAccumulator | null = null;
   const sink: TrialSinkOptions = {
     batchRows: COLLAPSE_BATCH_ROWS,
     open: (layout) => {
-      accumulator = new GroupAccumulator({ weight: layout.weight, player: layout.player, merge: layout.shape === 'per_attempt', expectedRows: layout.expectedRows });
+      accumulator = new GroupAccumulator({ weight: layout.weight, player: layout.player, merge: layout.shape === 'per_attempt', expectedRows: layout.expectedRows, keepDistinct: true });
       return accumulator;
     },
   };

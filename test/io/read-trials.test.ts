@@ -21,12 +21,12 @@ function write(name: string, text: string): string {
 }
 
 /** Generated rows with repeats (coarse latencies), so groups hold several rows, over several collapse batches. */
-function generated(rows: number, seed: number, options: { levels: readonly string[]; perRound?: boolean; weight?: boolean; player?: boolean }): string {
+function generated(rows: number, seed: number, options: { levels: readonly string[]; perRound?: boolean; weight?: boolean; player?: boolean; latencies?: number }): string {
   const random = createRandomSource(seed);
   const header = ['latency_ms', 'scale', 'difficulty', ...(options.perRound ? ['hits', 'attempts'] : ['hit']), ...(options.weight ? ['weight'] : []), ...(options.player ? ['player'] : [])];
   const lines = [header.join(',')];
   for (let i = 0; i < rows; i += 1) {
-    const latency = (Math.floor(random() * 400) / 2).toString();
+    const latency = (Math.floor(random() * (options.latencies ?? 400)) / 2).toString();
     const scale = ['1', '1.5', '2'][Math.floor(random() * 3)] as string;
     const level = options.levels[Math.floor(random() * options.levels.length)] as string;
     const tries = 1 + Math.floor(random() * 5);
@@ -63,7 +63,8 @@ function sortedGroups(groups: CollapsedTrials): CollapsedTrials {
 
 describe('readGroupedTrialsFile()', () => {
   it.each([
-    ['named levels, players', { levels: ['standard', 'veteran', 'elite'], player: true }],
+    // Coarse latencies, so that the first batch merges enough to go on merging (see the keepDistinct test below).
+    ['named levels, players', { levels: ['standard', 'veteran', 'elite'], player: true, latencies: 40 }],
     ['named levels, weights', { levels: ['standard', 'veteran'], weight: true }],
     ['numeric levels', { levels: ['1', '2', '3.5'] }],
     ['numeric levels that share a value', { levels: ['1', '1.0', '2', '-0', '0'], player: true }],
@@ -82,6 +83,33 @@ describe('readGroupedTrialsFile()', () => {
     } else expect(grouped.value).toEqual(expected);
     expect(grouped.value.groups.sourceRows).toBe(rows);
     expect(grouped.warnings).toEqual(columns.warnings);
+  });
+
+  it('keeps later rows as read when the first batch is nearly all distinct; the fit is the same', async () => {
+    // 12 players x 4,000 latencies x 3 scales x 2 levels: about 1.4% of the first batch merges (8,192^2 / 2 / 288,000 keys).
+    const rows = 3 * COLLAPSE_BATCH_ROWS;
+    const path = write('distinct.csv', generated(rows, 43, { levels: ['standard', 'elite'], player: true, latencies: 4000 }));
+    const columns = await readTrialsFile(path);
+    const grouped = await readGroupedTrialsFile(path);
+    if (!columns.ok || !grouped.ok) throw new Error('expected both reads to succeed');
+    const merged = groupTrials(columns.value);
+    const firstBatch = groupTrials({ ...columns.value, rows: COLLAPSE_BATCH_ROWS });
+    // The first batch merged, then every later row its own group.
+    expect(grouped.value.groups.rows).toBe(firstBatch.groups.rows + rows - COLLAPSE_BATCH_ROWS);
+    expect(grouped.value.groups.rows).toBeGreaterThan(merged.groups.rows);
+    expect(grouped.value.groups.sourceRows).toBe(rows);
+    const a = fitModel(grouped.value, { folds: 0, likelihoodRatioTests: false, baseline: false });
+    const b = fitModel(merged, { folds: 0, likelihoodRatioTests: false, baseline: false });
+    expect(a.status).toBe(b.status);
+    expect(a.coefficients.length).toBeGreaterThan(3);
+    // The same fit: estimates, model-based and CR1 standard errors, up to the order of the sums.
+    a.coefficients.forEach((row, index) => {
+      const other = b.coefficients[index];
+      expect(row.name).toBe(other?.name);
+      expect(Math.abs(row.estimate - (other?.estimate ?? Number.NaN))).toBeLessThan(1e-10 * Math.max(1, Math.abs(row.estimate)));
+      expect(Math.abs(row.std_error / (other?.std_error ?? Number.NaN) - 1)).toBeLessThan(1e-9);
+      expect(Math.abs((row.robust?.std_error ?? Number.NaN) / (other?.robust?.std_error ?? Number.NaN) - 1)).toBeLessThan(1e-9);
+    });
   });
 
   it('gives the same fit report as the columns for the bundled playtest', async () => {
