@@ -370,6 +370,11 @@ export class TrialsBuilder implements PlainLineReader {
     this.pushRow(difficulty, player);
     return i;
   }
+  /** Whether the rows go to a sink that keeps them as they come (see `TrialRowSink.keepsRows`). */
+  sinkKeepsRows(): boolean {
+    return this.sink?.keepsRows?.() ?? false;
+  }
+
   /** Difficulty level names and player ids so far, by code (the player list is empty without a player column). */
   names(): { readonly difficulty: readonly string[]; readonly player: readonly string[] } {
     return { difficulty: this.difficulty.names, player: this.player.names };

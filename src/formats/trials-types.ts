@@ -55,6 +55,8 @@ export interface TrialBatch {
 /** Takes rows in batches instead of the builder keeping every row (e.g. to collapse them as they are read). */
 export interface TrialRowSink {
   addRows(batch: TrialBatch, count: number): void;
+  /** Whether the sink keeps its rows as they come, with nothing to merge (a reader on two threads gives the other thread more lines then). */
+  keepsRows?(): boolean;
 }
 
 /** How to hand rows to a sink: batches of `batchRows`, the sink opened once the header is read. */

@@ -13,7 +13,7 @@ import type { Trials, TrialSinkOptions } from '../formats/trials-types.js';
 import { mergeGroups } from '../model/collapse.js';
 import type { GroupedTrials } from '../model/collapsed-trials.js';
 import { COLLAPSE_BATCH_ROWS, GroupAccumulator } from '../model/group-accumulator.js';
-import { CALLER_SHARE, PART_BATCH_ROWS, SPLIT_READ_MIN_BYTES, type SplitOutcome, type SplitTuning } from './split-read-protocol.js';
+import { CALLER_SHARE, KEEPING_CALLER_SHARE, PART_BATCH_ROWS, PROBE_BYTES, SPLIT_READ_MIN_BYTES, type SplitOutcome, type SplitTuning } from './split-read-protocol.js';
 
 /** Bytes read per chunk. */
 const CHUNK_BYTES = 1 << 18;
@@ -153,18 +153,24 @@ async function scanFile(path: string, options: ReadTrialsOptions, sink: TrialSin
     return fail([error('cannot_read', path, `the file requires to be readable: ${(cause as Error).message}`)]);
   }
   try {
-    const start = part === null || split === null ? -1 : await split.lineStartAfter(handle, Math.max(headerEnd, Math.floor(size * (tuning.callerShare ?? CALLER_SHARE))), size);
-    if (part === null || start < 0) {
-      if (part !== null) {
-        part.stop();
-        outcome('one-thread');
-      }
+    if (part === null || split === null) {
       await scanRange(handle, reader, 0, onChunk);
+      return scanned();
+    }
+    // The first MiB first: its rows tell whether the sink merges them, which sets this thread's share.
+    const probed = Math.min(size, tuning.probeBytes ?? PROBE_BYTES);
+    let going = await scanRange(handle, reader, 0, onChunk, probed);
+    const share = tuning.callerShare ?? (reader.builder.sinkKeepsRows() ? KEEPING_CALLER_SHARE : CALLER_SHARE);
+    const start = going ? await split.lineStartAfter(handle, Math.max(headerEnd, probed, Math.floor(size * share)), size) : -1;
+    if (start < 0) {
+      part.stop();
+      outcome('one-thread');
+      if (going) await scanRange(handle, reader, probed, onChunk);
       return scanned();
     }
     // The worker hashes the file itself (this thread's part too), so this thread only parses and groups.
     part.read({ path, file, delimiter, headerEnd, start, batchRows: PART_BATCH_ROWS, sha256: hash !== null });
-    const going = await scanRange(handle, reader, 0, onChunk, start);
+    going = await scanRange(handle, reader, probed, onChunk, start);
     // A bad line here is the file's first: the reader reports it. A quoted field across the split
     // point, or a worker that could not start: this thread reads on from the split point itself.
     if (!going || !reader.atLineEnd() || part.failed()) {

@@ -428,6 +428,11 @@ export class GroupAccumulator {
     return group;
   }
 
+  /** Whether rows are kept as they come (no merging from the start, or since the first batch under `keepDistinct`). */
+  keepsRows(): boolean {
+    return !this.merge;
+  }
+
   /** The groups as columns, in order; `difficultyValue` maps a stored difficulty (a level code) to the value to report. */
   finish(difficultyValue?: (stored: number) => number): CollapsedTrials {
     const layout: RecordLayout = { stride: this.stride, weightAt: this.hasWeight ? this.weightAt : -1, playerAt: this.hasPlayer ? this.playerAt : -1 };

@@ -8,7 +8,7 @@ import { join } from 'node:path';
 import { pathToFileURL } from 'node:url';
 import { afterAll, describe, expect, it } from 'vitest';
 import { type ReadTrialsOptions, readGroupedTrialsFile } from '../../src/io/read-trials.js';
-import type { SplitOutcome } from '../../src/io/split-read-protocol.js';
+import type { SplitOutcome, SplitTuning } from '../../src/io/split-read-protocol.js';
 import { createRandomSource } from '../../src/random.js';
 
 const folder = mkdtempSync(join(tmpdir(), 'lagparity-split-read-'));
@@ -71,11 +71,12 @@ function expectSame(two: Read, one: Read): void {
   }
 }
 
-async function both(path: string, callerShare = 0.3, workerUrl: URL = WORKER) {
+/** One thread, then two with the split forced (any size; no first read unless `tuning` says) and its outcomes. */
+async function both(path: string, tuning: SplitTuning = { callerShare: 0.3, probeBytes: 0 }) {
   const outcomes: SplitOutcome[] = [];
   const options: ReadTrialsOptions = { sha256: true };
   const one = await readGroupedTrialsFile(path, options);
-  const two = await readGroupedTrialsFile(path, { ...options, threads: 2, split: { minBytes: 0, callerShare, workerUrl, onOutcome: (outcome) => outcomes.push(outcome) } });
+  const two = await readGroupedTrialsFile(path, { ...options, threads: 2, split: { minBytes: 0, workerUrl: WORKER, ...tuning, onOutcome: (outcome) => outcomes.push(outcome) } });
   return { one, two, outcomes };
 }
 
@@ -85,6 +86,14 @@ describe('reading a file on two threads', () => {
     ['per attempt, numeric levels, weights, CRLF, a byte-order mark', { rows: 40_000, numericLevels: true, weight: true, lineEnd: '\r\n', bom: true }],
     ['per round', { rows: 40_000, perRound: true }],
   ];
+  it('the default first read and share (the sink keeps these rows: half the lines each), the same answer', async () => {
+    const path = write('defaults.csv', generated({ rows: 150_000 }, 11));
+    expect(readFileSync(path).length).toBeGreaterThan(2 << 20);
+    const { one, two, outcomes } = await both(path, {});
+    expect(outcomes).toEqual(['two-threads']);
+    expectSame(two, one);
+  });
+
   it.each(shapes)('%s: the same groups, names, warnings and hash as one thread', async (name, shape) => {
     const text = generated(shape, name.length);
     const path = write(`${name.length}.csv`, text);
@@ -126,7 +135,7 @@ describe('reading a file on two threads', () => {
     // A player id with a line end in it, whose quote opens before the split point and closes after it.
     const quoted = `${text.slice(0, middle + 1)}"pl-\n1",40,1,veteran,1${text.slice(middle)}`;
     const path = write('quoted.csv', quoted);
-    const { one, two, outcomes } = await both(path, (middle + 2.5) / quoted.length);
+    const { one, two, outcomes } = await both(path, { callerShare: (middle + 2.5) / quoted.length, probeBytes: 0 });
     expect(one.ok).toBe(true);
     expect(outcomes).toEqual(['one-thread']);
     expectSame(two, one);
@@ -134,7 +143,7 @@ describe('reading a file on two threads', () => {
 
   it('a worker that cannot start: one thread reads every line, the same answer', async () => {
     const path = write('no-worker.csv', generated({ rows: 20_000 }, 10));
-    const { one, two, outcomes } = await both(path, 0.3, pathToFileURL(join(folder, 'missing-worker.js')));
+    const { one, two, outcomes } = await both(path, { callerShare: 0.3, probeBytes: 0, workerUrl: pathToFileURL(join(folder, 'missing-worker.js')) });
     expect(outcomes).toEqual(['one-thread']);
     expectSame(two, one);
   });
