@@ -7,8 +7,9 @@
  * appearance. Every row goes through the calling thread's builder and sink
  * exactly as in a whole-file read (the same batches, hence the same groups in
  * the same order), so the result is the same, bit for bit; only the parsing of
- * the later lines moves to the other thread. The calling thread's share is
- * small (it also groups every row, `model/group-accumulator.ts`).
+ * the later lines moves to the other thread. The calling thread's share
+ * (`split-read-protocol.ts`) is half when its sink keeps rows as they come,
+ * less when it merges them (it groups every row, `model/group-accumulator.ts`).
  *
  * Whenever the worker cannot give the same answer it gives up and the caller
  * reads the lines itself (`read-trials.ts`): the split point falls inside a
