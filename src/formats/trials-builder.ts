@@ -370,6 +370,7 @@ export class TrialsBuilder implements PlainLineReader {
     this.pushRow(difficulty, player);
     return i;
   }
+
   /** Whether the rows go to a sink that keeps them as they come (see `TrialRowSink.keepsRows`). */
   sinkKeepsRows(): boolean {
     return this.sink?.keepsRows?.() ?? false;
