@@ -30,7 +30,7 @@ export function interval(estimate: number, standardError: number, critical: numb
   };
 }
 
-export function coefficientRows(design: Pick<TermDesign, 'columns'>, fit: BinomialFitEstimated): CoefficientRow[] {
+export function coefficientRows(design: Pick<TermDesign, 'columns'>, fit: Omit<BinomialFitEstimated, 'fitted'>): CoefficientRow[] {
   const critical = normalQuantile(0.975);
   return design.columns.map((column, j) => {
     const estimate = fit.coefficients[j] as number;

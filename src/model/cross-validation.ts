@@ -62,7 +62,8 @@ function countAll(codes: Int32Array): number {
 
 
 /** Ten equal-width bins of predicted probability: attempts, predicted and observed hits (prior-weighted). */
-class CalibrationBins {
+/** Calibration-bin sums, row by row; {@link calibrationBins} turns them into the table. */
+export class CalibrationBins {
   readonly binWeight = new Float64Array(10);
   readonly binPredicted = new Float64Array(10);
   readonly binObserved = new Float64Array(10);
@@ -307,6 +308,11 @@ export function calibrationTable(data: CollapsedTrials, probabilities: ArrayLike
     const prior = data.weight[i] as number;
     bins.addToBin(probabilities[i] as number, prior * (data.attempts[i] as number), prior * (data.successes[i] as number));
   }
+  return calibrationBins(bins);
+}
+
+/** The table of bin sums added row by row as {@link calibrationTable} adds them (the same bits). */
+export function calibrationBins(bins: CalibrationBins): CalibrationBin[] {
   const { binWeight, binPredicted, binObserved } = bins;
   return Array.from({ length: 10 }, (_, b) => {
     const weight = binWeight[b] as number;

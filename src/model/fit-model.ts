@@ -49,7 +49,7 @@ import type { Trials } from '../formats/trials-types.js';
 import { groupTrials } from './collapse.js';
 import type { GroupedTrials } from './collapsed-trials.js';
 import { coefficientRows, square, termsOfColumns } from './coefficient-rows.js';
-import { assembleCrossValidation, assignFolds, calibrationTable, foldStartsOf } from './cross-validation.js';
+import { assembleCrossValidation, assignFolds, foldStartsOf } from './cross-validation.js';
 import { type TermDesign, buildDesign } from './design.js';
 import { designColumns } from './terms.js';
 import { FIT_REPORT_FORMAT, type FitModelOptions, type FitReport, noEstimates } from './fit-report-types.js';
@@ -238,7 +238,7 @@ export function beginFitModel(trials: Trials | GroupedTrials, options: FitModelO
     // (one Newton step from the full estimates, see refit-starts.ts).
     publishFoldStarts(estimates, fit.coefficients, assignment === null ? [] : foldStartsOf(prepared, assignment, fit.coefficients));
     const full = { columns: shape.columns.length, bernoulliDeviance: bernoulliDeviance(prepared, fit.deviance) };
-    const calibration = calibrationTable(data, fit.fitted);
+    const calibration = fit.calibration;
     const finishReport = (results: readonly RefitResult[]): FitReport => {
       const likelihoodRatioTests = results.flatMap((result) => (result.kind === 'reduced' ? [likelihoodRatioTest(result.reduced, full)] : []));
       const baseline = results.find((result) => result.kind === 'baseline')?.baseline ?? null;

@@ -12,7 +12,7 @@
  * `direct-index.ts`.
  */
 import type { CollapsedTrials } from './collapsed-trials.js';
-import { type RecordLayout, columnsFromKeys, columnsFromRecords } from './group-columns.js';
+import { type KeptColumns, type RecordLayout, columnsFromKept, columnsFromKeys, columnsFromRecords } from './group-columns.js';
 import { block, finalise, mix, rehash, touchSlots } from './covariate-hash.js';
 import { GRID_LEVELS, GRID_SCALES, GRID_STEPS, type OffGridRows, ScaleCodes, addGroupCounts, gatherOffGrid, gridCells, offGridColumns, readCells } from './direct-index.js';
 
@@ -106,6 +106,10 @@ export class GroupAccumulator {
   private merge: boolean;
   /** Whether the first full batch is still to decide between merging and keeping rows (see `keepDistinct`). */
   private undecided: boolean;
+  /** The rows kept as they come, in the columns `finish` hands out (null until the first such row). */
+  private kept: KeptColumns | null = null;
+  /** Rows expected (the constructor's hint), the kept columns' first size. */
+  private readonly expectedRows: number;
   private capacity = 1 << 12;
   private table: Int32Array<ArrayBufferLike> = new Int32Array(2 << 12);
   private records: Float64Array;
@@ -153,6 +157,7 @@ export class GroupAccumulator {
     this.hasPlayer = layout.player;
     this.merge = layout.merge;
     this.undecided = layout.merge && layout.keepDistinct === true;
+    this.expectedRows = Math.max(1 << 12, Math.ceil(layout.expectedRows ?? 0));
     this.stride = 5 + (layout.weight ? 1 : 0) + (layout.player ? 1 : 0);
     this.weightAt = 5;
     this.playerAt = layout.weight ? 6 : 5;
@@ -282,13 +287,52 @@ export class GroupAccumulator {
   }
 
   /** Every row its own group (rows not merged). */
+  /** Rows kept as they come (no merging): copied in bulk into the columns {@link finish} hands out, after the groups before them. */
   private appendAll(columns: RowColumns, count: number): void {
-    const stride = this.stride;
-    for (let i = 0; i < count; i += 1) {
-      const base = this.append(columns, i) * stride;
-      this.records[base + 3] = columns.successes[i] as number;
-      this.records[base + 4] = columns.attempts[i] as number;
+    const from = this.groups;
+    const kept = this.keptRoom(from + count);
+    kept.latency.set(columns.latency.subarray(0, count), from);
+    kept.scale.set(columns.scale.subarray(0, count), from);
+    kept.difficulty.set(columns.difficulty.subarray(0, count), from);
+    kept.successes.set(columns.successes.subarray(0, count), from);
+    kept.attempts.set(columns.attempts.subarray(0, count), from);
+    if (kept.weight !== null) {
+      if (columns.weight === null) kept.weight.fill(1, from, from + count);
+      else kept.weight.set(columns.weight.subarray(0, count), from);
     }
+    if (kept.player !== null) {
+      if (columns.player === null) kept.player.fill(0, from, from + count);
+      else kept.player.set(columns.player.subarray(0, count), from);
+    }
+    this.groups = from + count;
+  }
+
+  /**
+   * The kept rows' columns with room for `groups` groups: made at the first kept row for the rows
+   * expected (the groups before it are filled in from their records by {@link finish}), grown by
+   * half again should more come.
+   */
+  private keptRoom(groups: number): KeptColumns {
+    const kept = this.kept;
+    if (kept !== null && groups <= kept.latency.length) return kept;
+    const size = Math.max(groups, kept === null ? this.expectedRows : Math.ceil(kept.latency.length * 1.5));
+    const grown = <T extends Float64Array | Int32Array>(old: T | null | undefined, make: (size: number) => T): T => {
+      const next = make(size);
+      if (old !== null && old !== undefined) next.set(old);
+      return next;
+    };
+    const float = (size: number) => new Float64Array(size);
+    this.kept = {
+      keptFrom: kept?.keptFrom ?? this.groups,
+      latency: grown(kept?.latency, float),
+      scale: grown(kept?.scale, float),
+      difficulty: grown(kept?.difficulty, float),
+      successes: grown(kept?.successes, float),
+      attempts: grown(kept?.attempts, float),
+      weight: this.hasWeight ? grown(kept?.weight, float) : null,
+      player: this.hasPlayer ? grown(kept?.player, (size) => new Int32Array(size)) : null,
+    };
+    return this.kept;
   }
 
   /** Each row's 32-bit key hash into `groupOf`. */
@@ -437,9 +481,12 @@ export class GroupAccumulator {
   finish(difficultyValue?: (stored: number) => number): CollapsedTrials {
     const layout: RecordLayout = { stride: this.stride, weightAt: this.hasWeight ? this.weightAt : -1, playerAt: this.hasPlayer ? this.playerAt : -1 };
     const collapsed =
-      this.keys === null
-        ? columnsFromRecords(this.records, this.groups, layout, this.sourceRows, difficultyValue)
-        : columnsFromKeys(this.keys, this.groups, this.gridCounts, this.hashedGroups, this.records, this.stride, this.sourceRows, difficultyValue);
+      this.kept !== null
+        ? columnsFromKept(this.kept, this.records, this.groups, layout, this.sourceRows, difficultyValue)
+        : this.keys === null
+          ? columnsFromRecords(this.records, this.groups, layout, this.sourceRows, difficultyValue)
+          : columnsFromKeys(this.keys, this.groups, this.gridCounts, this.hashedGroups, this.records, this.stride, this.sourceRows, difficultyValue);
+    this.kept = null;
     this.records = new Float64Array(0);
     this.table = new Int32Array(0);
     this.groupOf = new Int32Array(0);

@@ -51,6 +51,67 @@ export function columnsFromRecords(records: Float64Array, groups: number, layout
   return collapsed;
 }
 
+/** Rows kept as they came (`GroupAccumulator` with merging off), in the columns handed out; the groups before `keptFrom` are in records. */
+export interface KeptColumns {
+  readonly keptFrom: number;
+  readonly latency: Float64Array;
+  readonly scale: Float64Array;
+  readonly difficulty: Float64Array;
+  readonly successes: Float64Array;
+  readonly attempts: Float64Array;
+  readonly weight: Float64Array | null;
+  readonly player: Int32Array | null;
+}
+
+/** The first `length` entries: a view when the column is at least 7/8 full (no column held twice), else a trimmed copy (a view would carry the rest along wherever it is copied to). */
+function trimmed<T extends Float64Array | Int32Array>(column: T, length: number): T {
+  const view = column.subarray(0, length) as T;
+  return length * 8 >= column.length * 7 ? view : (view.slice() as T);
+}
+
+/**
+ * The groups as columns when rows were kept as they came: the first `keptFrom` groups copied in from
+ * their records, the kept rows where they were written (no copy of them), each column trimmed to
+ * `groups`; the same columns as {@link columnsFromRecords} would give had every group a record.
+ */
+export function columnsFromKept(kept: KeptColumns, records: Float64Array, groups: number, layout: RecordLayout, sourceRows: number, difficultyValue?: (stored: number) => number): CollapsedTrials {
+  const { stride, weightAt, playerAt } = layout;
+  for (let g = 0; g < kept.keptFrom; g += 1) {
+    const base = g * stride;
+    kept.latency[g] = records[base] as number;
+    kept.scale[g] = records[base + 1] as number;
+    kept.difficulty[g] = records[base + 2] as number;
+    kept.successes[g] = records[base + 3] as number;
+    kept.attempts[g] = records[base + 4] as number;
+    if (kept.weight !== null && weightAt >= 0) kept.weight[g] = records[base + weightAt] as number;
+    if (kept.player !== null && playerAt >= 0) kept.player[g] = records[base + playerAt] as number;
+  }
+  const difficulty = trimmed(kept.difficulty, groups);
+  if (difficultyValue !== undefined) for (let g = 0; g < groups; g += 1) difficulty[g] = difficultyValue(difficulty[g] as number);
+  const attempts = trimmed(kept.attempts, groups);
+  return {
+    rows: groups,
+    latency: trimmed(kept.latency, groups),
+    scale: trimmed(kept.scale, groups),
+    difficulty,
+    player: kept.player === null ? null : trimmed(kept.player, groups),
+    successes: trimmed(kept.successes, groups),
+    attempts,
+    weight: kept.weight === null ? unitWeights(attempts) : trimmed(kept.weight, groups),
+    sourceRows,
+  };
+}
+
+/**
+ * Prior weights of 1 for every group: the attempts column itself when it is all ones too (attempts
+ * kept as they came, none merged; 8 bytes a row less for as long as the groups live), else a column
+ * of ones. Nothing writes into a collapsed set's columns (the fits and folds copy what they change).
+ */
+function unitWeights(attempts: Float64Array): Float64Array {
+  for (let g = 0; g < attempts.length; g += 1) if (attempts[g] !== 1) return new Float64Array(attempts.length).fill(1);
+  return attempts;
+}
+
 /**
  * With the direct index: the key columns as they are (no copy), the counts
  * from `gridCounts` (two doubles a group) and, for the groups the hash table

@@ -17,13 +17,21 @@
  * a fit that is not clean (not converged, or with any warning: their counts
  * of rows at probability 0 or 1 would count merged rows).
  */
-import type { BinomialFit } from './binomial-fit-types.js';
+import type { BinomialFitEstimated, BinomialFitRankDeficient, BinomialFitSeparated } from './binomial-fit-types.js';
 import { mergedOverPlayers } from './collapse.js';
 import { type TermDesign, buildDesign, designRowsOf } from './design.js';
 import { robustBlock, scoreFactor } from './fit-binomial.js';
 import { linkFor } from './links.js';
 import { type Prepared, runBinomial } from './prepared-fit.js';
-import { compactClusters } from '../numeric/cluster-sandwich.js';
+import { compactClustersOfAll } from '../numeric/cluster-sandwich.js';
+import { CalibrationBins, calibrationBins, calibrationTable } from './cross-validation.js';
+import type { CalibrationBin } from './fit-report-types.js';
+
+/**
+ * The full fit without each row's fitted probability (8 bytes a row, needed only for the calibration
+ * table, which is computed from them as they come) and with that table.
+ */
+export type FullFit = (Omit<BinomialFitEstimated, 'fitted'> & { readonly calibration: CalibrationBin[] }) | BinomialFitSeparated | BinomialFitRankDeficient;
 
 /** Merged rows must be at most this share of the players' rows for the merged fit to be used. */
 const MERGED_SHARE = 0.8;
@@ -34,9 +42,14 @@ const MERGED_SHARE = 0.8;
  * entries as it goes (`designRows`), so the one-fit command never holds the full matrix. `folds`:
  * whether the report has folds, which will start from the same merged rows.
  */
-export function fitFullModel(prepared: Prepared, design: () => TermDesign, { folds = true }: { readonly folds?: boolean } = {}): BinomialFit {
+export function fitFullModel(prepared: Prepared, design: () => TermDesign, { folds = true }: { readonly folds?: boolean } = {}): FullFit {
   const { data } = prepared;
-  const direct = () => runBinomial(prepared, data, design());
+  const direct = (): FullFit => {
+    const fit = runBinomial(prepared, data, design());
+    if (fit.status === 'separation' || fit.status === 'rank_deficient') return fit;
+    const { fitted, ...rest } = fit;
+    return { ...rest, calibration: calibrationTable(data, fitted) };
+  };
   if (prepared.likelihood !== 'bernoulli' || data.player === null) return direct();
   for (let i = 0; i < data.rows; i += 1) if (!((data.attempts[i] as number) * (data.weight[i] as number) > 0)) return direct();
   // Each row's merged row is kept only for the report's folds (mergedWithout).
@@ -45,15 +58,16 @@ export function fitFullModel(prepared: Prepared, design: () => TermDesign, { fol
   const fit = runBinomial(prepared, merged, buildDesign(merged, prepared.terms, prepared.coding), false);
   if (fit.status !== 'converged' || fit.warnings.length > 0) return direct();
 
-  // The players' rows at the estimate, one at a time: each row's fitted probability and, for CR1,
+  // The players' rows at the estimate, one at a time: each row's fitted probability into its
+  // calibration bin (as calibrationTable adds them; the probabilities are not kept) and, for CR1,
   // its score added to its player's sum, as fitBinomial's own CR1 sums.
   const link = linkFor(prepared.link);
   const logit = link.name === 'logit';
   const k = fit.coefficients.length;
   const byRow = designRowsOf(data, prepared.terms, prepared.coding);
   const x = new Float64Array(k);
-  const fitted = new Float64Array(data.rows);
-  const clusters = prepared.clustered ? compactClusters(data.player, new Uint8Array(data.rows).fill(1)) : null;
+  const bins = new CalibrationBins();
+  const clusters = prepared.clustered ? compactClustersOfAll(data.player) : null;
   const clusterScores = new Float64Array(clusters === null ? 0 : clusters.count * k);
   for (let i = 0; i < data.rows; i += 1) {
     byRow.rowAt(i, x);
@@ -77,15 +91,18 @@ export function fitFullModel(prepared: Prepared, design: () => TermDesign, { fol
       mu = link.inverse(eta);
       complement = link.inverseComplement(eta);
     }
-    fitted[i] = mu;
-    if (clusters === null) continue;
     const attempts = data.attempts[i] as number;
-    const factor = scoreFactor(link, logit, attempts * (data.weight[i] as number), (data.successes[i] as number) / attempts, mu, complement, eta);
+    const prior = data.weight[i] as number;
+    bins.addToBin(mu, prior * attempts, prior * (data.successes[i] as number));
+    if (clusters === null) continue;
+    const factor = scoreFactor(link, logit, attempts * prior, (data.successes[i] as number) / attempts, mu, complement, eta);
     if (factor === null) continue;
     const at = (clusters.indices[i] as number) * k;
     for (let j = 0; j < k; j += 1) clusterScores[at + j] = (clusterScores[at + j] as number) + (x[j] as number) * factor;
   }
-  if (clusters === null) return { ...fit, fitted };
+  const calibration = calibrationBins(bins);
+  const { fitted: _unused, ...rest } = fit;
+  if (clusters === null) return { ...rest, calibration };
   const block = robustBlock({ clusterScores, clusterCount: clusters.count, covariance: fit.covariance, coefficients: fit.coefficients, observationCount: fit.observationCount });
-  return { ...fit, fitted, robust: block.robust, warnings: block.warning === null ? fit.warnings : [...fit.warnings, block.warning] };
+  return { ...rest, calibration, robust: block.robust, warnings: block.warning === null ? fit.warnings : [...fit.warnings, block.warning] };
 }

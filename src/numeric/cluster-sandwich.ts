@@ -79,6 +79,22 @@ export function sandwichOfClusterScores(input: Omit<ClusterSandwichInput, 'score
 }
 
 /**
+ * The clusters of every row renumbered as {@link compactClusters} numbers them, without a copy when
+ * they are numbered so already (player codes of rows in file order are: a code is given at a
+ * player's first row). One pass.
+ */
+export function compactClustersOfAll(clusters: Int32Array): { readonly indices: Int32Array; readonly count: number } {
+  // Numbered so already when each row's cluster is either one seen before (below `next`) or the next number.
+  let next = 0;
+  for (let i = 0; i < clusters.length; i += 1) {
+    const cluster = clusters[i] as number;
+    if (cluster === next) next += 1;
+    else if (!(cluster >= 0 && cluster < next)) return compactClusters(clusters, new Uint8Array(clusters.length).fill(1));
+  }
+  return { indices: clusters, count: next };
+}
+
+/**
  * Renumber the clusters of the kept rows 0..G-1 in order of first appearance,
  * so that G counts only clusters that occur. `keep`: true, or 1 in a byte
  * mask, for a kept row.

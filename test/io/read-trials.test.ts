@@ -98,6 +98,8 @@ describe('readGroupedTrialsFile()', () => {
     expect(grouped.value.groups.rows).toBe(firstBatch.groups.rows + rows - COLLAPSE_BATCH_ROWS);
     expect(grouped.value.groups.rows).toBeGreaterThan(merged.groups.rows);
     expect(grouped.value.groups.sourceRows).toBe(rows);
+    // No weight column: every prior weight 1.
+    expect(grouped.value.groups.weight.every((weight) => weight === 1)).toBe(true);
     const a = fitModel(grouped.value, { folds: 0, likelihoodRatioTests: false, baseline: false });
     const b = fitModel(merged, { folds: 0, likelihoodRatioTests: false, baseline: false });
     expect(a.status).toBe(b.status);
@@ -110,6 +112,43 @@ describe('readGroupedTrialsFile()', () => {
       expect(Math.abs(row.std_error / (other?.std_error ?? Number.NaN) - 1)).toBeLessThan(1e-9);
       expect(Math.abs((row.robust?.std_error ?? Number.NaN) / (other?.robust?.std_error ?? Number.NaN) - 1)).toBeLessThan(1e-9);
     });
+  });
+
+  it('keeps each later row exactly as read, with weights and players, after the first batch\'s groups', async () => {
+    const rows = 2 * COLLAPSE_BATCH_ROWS + 77;
+    const path = write('distinct-weighted.csv', generated(rows, 47, { levels: ['standard', 'elite'], player: true, weight: true, latencies: 4000 }));
+    const columns = await readTrialsFile(path);
+    const grouped = await readGroupedTrialsFile(path);
+    if (!columns.ok || !grouped.ok || columns.value.difficulty.kind !== 'levels' || columns.value.player === null || columns.value.weight === null) throw new Error('expected both reads to succeed, with levels, players and weights');
+    const trials = columns.value;
+    const groups = grouped.value.groups;
+    const first = groupTrials({ ...trials, rows: COLLAPSE_BATCH_ROWS }).groups;
+    expect(groups.rows).toBe(first.rows + rows - COLLAPSE_BATCH_ROWS);
+    const head = (column: ArrayLike<number> | null) => Array.from(column ?? []).slice(0, first.rows);
+    const tail = (column: ArrayLike<number> | null) => Array.from(column ?? []).slice(first.rows);
+    const later = (column: ArrayLike<number>) => Array.from(column).slice(COLLAPSE_BATCH_ROWS, rows);
+    for (const key of ['latency', 'scale', 'difficulty', 'weight', 'player', 'successes', 'attempts'] as const) {
+      expect(head(groups[key]), key).toEqual(Array.from(first[key] ?? []));
+    }
+    expect(tail(groups.latency)).toEqual(later(trials.latency));
+    expect(tail(groups.scale)).toEqual(later(trials.scale));
+    expect(tail(groups.difficulty)).toEqual(later(trials.difficulty.kind === 'levels' ? trials.difficulty.codes : []));
+    expect(tail(groups.weight)).toEqual(later(trials.weight ?? []));
+    expect(tail(groups.player)).toEqual(later(trials.player?.codes ?? []));
+    expect(tail(groups.successes)).toEqual(later(trials.successes));
+    expect(tail(groups.attempts)).toEqual(later(trials.attempts));
+  });
+
+  it('gives rows that never merge unit weights without a column of their own (the attempts, all 1)', async () => {
+    const lines = ['player,latency_ms,scale,difficulty,hit'];
+    for (let i = 0; i < COLLAPSE_BATCH_ROWS + 500; i += 1) lines.push(`p${i % 7},${(i / 100).toFixed(2)},${1 + (i % 3) / 4},${i % 2 === 0 ? 'standard' : 'elite'},${i % 5 === 0 ? 1 : 0}`);
+    const path = write('unique.csv', `${lines.join('\n')}\n`);
+    const grouped = await readGroupedTrialsFile(path);
+    if (!grouped.ok) throw new Error('expected the read to succeed');
+    const { groups } = grouped.value;
+    expect(groups.rows).toBe(COLLAPSE_BATCH_ROWS + 500);
+    expect(groups.weight.every((weight) => weight === 1)).toBe(true);
+    expect(groups.weight).toBe(groups.attempts);
   });
 
   it('gives the same fit report as the columns for the bundled playtest', async () => {

@@ -14,6 +14,7 @@ import { parseTrialsCsv } from '../../src/formats/trials-csv.js';
 import { unwrap } from '../../src/issues.js';
 import { collapseOver, groupTrials } from '../../src/model/collapse.js';
 import { buildDesign } from '../../src/model/design.js';
+import { calibrationTable } from '../../src/model/cross-validation.js';
 import { fitModel } from '../../src/model/fit-model.js';
 import { fitFullModel } from '../../src/model/merged-fit.js';
 import { prepare, runBinomial } from '../../src/model/prepared-fit.js';
@@ -60,10 +61,13 @@ describe('the full fit on rows merged over the players', () => {
         expect(relative(merged.aic, direct.aic)).toBeLessThan(1e-12);
         expect(relative(merged.brierScore, direct.brierScore)).toBeLessThan(1e-12);
         expect(relative(merged.tjurR2 as number, direct.tjurR2 as number)).toBeLessThan(1e-9);
-        expect(merged.fitted).toHaveLength(direct.fitted.length);
-        let largest = 0;
-        direct.fitted.forEach((value, i) => (largest = Math.max(largest, Math.abs((merged.fitted[i] as number) - value))));
-        expect(largest).toBeLessThan(1e-12);
+        // The calibration table, from each row's fitted probability as the sweep reaches it.
+        const expected = calibrationTable(prepared.data, direct.fitted);
+        expect(merged.calibration.map((bin) => bin.attempts)).toEqual(expected.map((bin) => bin.attempts));
+        merged.calibration.forEach((bin, b) => {
+          expect(Math.abs((bin.mean_predicted ?? 0) - (expected[b]?.mean_predicted ?? 0))).toBeLessThan(1e-12);
+          expect(bin.observed).toBe(expected[b]?.observed);
+        });
       });
     }
   }
@@ -75,7 +79,8 @@ describe('the full fit on rows merged over the players', () => {
       throw new Error('the full design was built');
     });
     expect(fit.status).toBe('converged');
-    if (fit.status === 'converged') expect(fit.fitted).toHaveLength(prepared.data.rows);
+    // Every attempt of the players' rows in the calibration table (6,000, unit weights).
+    if (fit.status === 'converged') expect(fit.calibration.reduce((sum, bin) => sum + bin.attempts, 0)).toBe(prepared.data.attempts.reduce((sum, value) => sum + value, 0));
   });
 
   it('gives the report the same figures (to the fit precision) whether or not the rows merge, and leaves per-round files to the rounds', () => {
@@ -91,6 +96,9 @@ describe('the full fit on rows merged over the players', () => {
     const rounds = groupTrials(unwrap(parseTrialsCsv('player,latency_ms,scale,difficulty,hits,attempts\na,10,1,x,3,10\nb,10,1,x,5,10\na,20,1.5,y,6,10\nb,30,1,y,2,10\nc,20,1.5,x,7,12\nc,15,1,y,4,11\n', 'rounds.csv')));
     const roundsPrepared = prepare(rounds, { terms: ['intercept', 'latency', 'log_scale'] });
     const roundsDesign = buildDesign(roundsPrepared.data, roundsPrepared.terms, roundsPrepared.coding);
-    expect(fitFullModel(roundsPrepared, () => roundsDesign)).toEqual(runBinomial(roundsPrepared, roundsPrepared.data, roundsDesign));
+    const roundsFit = runBinomial(roundsPrepared, roundsPrepared.data, roundsDesign);
+    if (roundsFit.status !== 'converged') throw new Error('expected a converged fit');
+    const { fitted, ...roundsRest } = roundsFit;
+    expect(fitFullModel(roundsPrepared, () => roundsDesign)).toEqual({ ...roundsRest, calibration: calibrationTable(roundsPrepared.data, fitted) });
   });
 });
