@@ -72,7 +72,7 @@ export async function readTrialsFile(path: string, options: ReadTrialsOptions = 
  * points found through a hash collision may come in another order, which
  * changes a fit's sums only in their last bits. One exception: when the first
  * 8,192 rows of a per-attempt file with players or weights are nearly all
- * distinct (fewer than one in ten merges), later rows are kept as read, each
+ * distinct (fewer than one in ten merges), every row is kept as read, each
  * its own group (`keepDistinct` of `GroupAccumulator`): a fit of the groups is
  * the same up to the last bits of its sums, with more rows.
  */

@@ -36,7 +36,7 @@ export const COLLAPSE_BATCH_ROWS = 1 << 13;
 
 /**
  * With `keepDistinct`, the share of the first full batch's rows that must merge into earlier rows
- * for the accumulator to go on merging; below it, later rows are kept as read (see the constructor).
+ * for the accumulator to go on merging; below it, every row is kept as read (see the constructor).
  */
 export const MIN_MERGED_SHARE = 0.1;
 
@@ -147,10 +147,11 @@ export class GroupAccumulator {
    * `grid`: whether to use the direct index of the class note (default: when rows are merged, carry neither weights nor players,
    * and at least {@link GRID_MIN_ROWS} are expected; it is never used with weights or players);
    * `keepDistinct`: when the first batch of {@link COLLAPSE_BATCH_ROWS} rows, merged through the hash table, merges fewer
-   * than {@link MIN_MERGED_SHARE} of its rows, keep later rows as they come, each its own group: the rows are then nearly
-   * all distinct (telemetry with latencies to the hundredth of a millisecond), and hashing them would cost about a third
-   * of a file's read for a few per cent fewer rows. Databases skip a partial aggregation that does not reduce its input
-   * the same way. Exact all the same for what the groups feed (a fit merges rows again as it needs), with more groups.
+   * than {@link MIN_MERGED_SHARE} of its rows, keep every row as it comes (that batch's too), each its own group: the rows
+   * are then nearly all distinct (telemetry with latencies to the hundredth of a millisecond), and hashing them would cost
+   * about a third of a file's read for a few per cent fewer rows. Databases skip a partial aggregation that does not
+   * reduce its input the same way. Exact all the same for what the groups feed (a fit merges rows again as it needs), with
+   * more groups.
    */
   constructor(layout: { readonly weight: boolean; readonly player: boolean; readonly merge: boolean; readonly expectedRows?: number; readonly grid?: boolean; readonly keepDistinct?: boolean }) {
     this.hasWeight = layout.weight;
@@ -232,9 +233,16 @@ export class GroupAccumulator {
     this.assignGroups(hashed, rest);
     this.addCounts(hashed, rest);
     if (this.undecided) {
-      // Decided once, on the first batch: a full one, through the hash table.
+      // Decided once, on the first batch: a full one, through the hash table. Kept, its rows are
+      // kept as they came too (its groups are dropped), so that every row is its own group.
       this.undecided = false;
-      if (this.grid === null && count === COLLAPSE_BATCH_ROWS && this.groups > (1 - MIN_MERGED_SHARE) * count) this.merge = false;
+      if (this.grid === null && count === COLLAPSE_BATCH_ROWS && this.groups > (1 - MIN_MERGED_SHARE) * count) {
+        this.merge = false;
+        this.groups = 0;
+        this.appendAll(columns, count);
+        if (rowGroups !== null) for (let i = 0; i < count; i += 1) rowGroups[i] = i;
+        return;
+      }
     }
     if (rowGroups === null) return;
     const groupOf = this.groupOf;
