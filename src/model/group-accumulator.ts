@@ -294,8 +294,7 @@ export class GroupAccumulator {
     return this.keys;
   }
 
-  /** Every row its own group (rows not merged). */
-  /** Rows kept as they come (no merging): copied in bulk into the columns {@link finish} hands out, after the groups before them. */
+  /** Every row its own group (rows not merged): copied in bulk into the columns {@link finish} hands out. */
   private appendAll(columns: RowColumns, count: number): void {
     const from = this.groups;
     const kept = this.keptRoom(from + count);
@@ -316,9 +315,9 @@ export class GroupAccumulator {
   }
 
   /**
-   * The kept rows' columns with room for `groups` groups: made at the first kept row for the rows
-   * expected (the groups before it are filled in from their records by {@link finish}), grown by
-   * half again should more come.
+   * The kept rows' columns with room for `groups` rows: made at the first kept row for the rows
+   * expected, grown by half again should more come. Rows are kept from the first row on (see
+   * `keepDistinct`), so every group is in them.
    */
   private keptRoom(groups: number): KeptColumns {
     const kept = this.kept;
@@ -331,7 +330,6 @@ export class GroupAccumulator {
     };
     const float = (size: number) => new Float64Array(size);
     this.kept = {
-      keptFrom: kept?.keptFrom ?? this.groups,
       latency: grown(kept?.latency, float),
       scale: grown(kept?.scale, float),
       difficulty: grown(kept?.difficulty, float),
@@ -490,7 +488,7 @@ export class GroupAccumulator {
     const layout: RecordLayout = { stride: this.stride, weightAt: this.hasWeight ? this.weightAt : -1, playerAt: this.hasPlayer ? this.playerAt : -1 };
     const collapsed =
       this.kept !== null
-        ? columnsFromKept(this.kept, this.records, this.groups, layout, this.sourceRows, difficultyValue)
+        ? columnsFromKept(this.kept, this.groups, this.sourceRows, difficultyValue)
         : this.keys === null
           ? columnsFromRecords(this.records, this.groups, layout, this.sourceRows, difficultyValue)
           : columnsFromKeys(this.keys, this.groups, this.gridCounts, this.hashedGroups, this.records, this.stride, this.sourceRows, difficultyValue);

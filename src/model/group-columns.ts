@@ -51,9 +51,8 @@ export function columnsFromRecords(records: Float64Array, groups: number, layout
   return collapsed;
 }
 
-/** Rows kept as they came (`GroupAccumulator` with merging off), in the columns handed out; the groups before `keptFrom` are in records. */
+/** Rows kept as they came (`GroupAccumulator` with merging off, every row its own group), in the columns handed out. */
 export interface KeptColumns {
-  readonly keptFrom: number;
   readonly latency: Float64Array;
   readonly scale: Float64Array;
   readonly difficulty: Float64Array;
@@ -70,22 +69,11 @@ function trimmed<T extends Float64Array | Int32Array>(column: T, length: number)
 }
 
 /**
- * The groups as columns when rows were kept as they came: the first `keptFrom` groups copied in from
- * their records, the kept rows where they were written (no copy of them), each column trimmed to
- * `groups`; the same columns as {@link columnsFromRecords} would give had every group a record.
+ * The groups as columns when rows were kept as they came: the columns they were written to (no
+ * copy), each trimmed to `groups`; the same columns as {@link columnsFromRecords} would give had each
+ * row a record.
  */
-export function columnsFromKept(kept: KeptColumns, records: Float64Array, groups: number, layout: RecordLayout, sourceRows: number, difficultyValue?: (stored: number) => number): CollapsedTrials {
-  const { stride, weightAt, playerAt } = layout;
-  for (let g = 0; g < kept.keptFrom; g += 1) {
-    const base = g * stride;
-    kept.latency[g] = records[base] as number;
-    kept.scale[g] = records[base + 1] as number;
-    kept.difficulty[g] = records[base + 2] as number;
-    kept.successes[g] = records[base + 3] as number;
-    kept.attempts[g] = records[base + 4] as number;
-    if (kept.weight !== null && weightAt >= 0) kept.weight[g] = records[base + weightAt] as number;
-    if (kept.player !== null && playerAt >= 0) kept.player[g] = records[base + playerAt] as number;
-  }
+export function columnsFromKept(kept: KeptColumns, groups: number, sourceRows: number, difficultyValue?: (stored: number) => number): CollapsedTrials {
   const difficulty = trimmed(kept.difficulty, groups);
   if (difficultyValue !== undefined) for (let g = 0; g < groups; g += 1) difficulty[g] = difficultyValue(difficulty[g] as number);
   const attempts = trimmed(kept.attempts, groups);
