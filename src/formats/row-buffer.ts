@@ -5,7 +5,7 @@
  */
 
 /** The first `length` entries of `array`: a view when it is at least 7/8 full (a well-sized column is never held twice), else a trimmed copy. */
-function filled<T extends Float64Array | Int32Array>(array: T, length: number): T {
+export function filled<T extends Float64Array | Int32Array>(array: T, length: number): T {
   const view = array.subarray(0, length) as T;
   return length * 8 >= array.length * 7 ? view : (view.slice() as T);
 }

@@ -137,6 +137,8 @@ async function scanFile(path: string, options: ReadTrialsOptions, sink: TrialSin
     hash?.update(bytes);
     options.onChunk?.(bytes);
   };
+  // The hash alone, for bytes `onChunk` has seen already (or that are read again).
+  const hashOnly = (bytes: Uint8Array) => hash?.update(bytes);
   const scanned = (digest: string | null = hash === null ? null : hash.digest('hex')) => ok({ reader, sha256: digest });
   const tuning = options.split ?? {};
   const outcome = (how: SplitOutcome) => tuning.onOutcome?.(how);
@@ -188,15 +190,14 @@ async function scanFile(path: string, options: ReadTrialsOptions, sink: TrialSin
     part.stop();
     if (!parted.took) {
       // It stopped before any of its rows came (e.g. its script did not load): read on from the split point.
-      // (`onChunk` has seen these bytes already; the hash has not.)
-      await scanRange(handle, reader, start, hash === null ? undefined : (bytes) => hash?.update(bytes));
+      await scanRange(handle, reader, start, hashOnly);
       outcome('one-thread');
       return scanned();
     }
     // The worker's part has a bad line (or passes a limit): read every line here, for the error's own line.
     reader = newReader();
     hash = hash === null ? null : createHash('sha256');
-    await scanRange(handle, reader, 0, hash === null ? undefined : (bytes) => hash?.update(bytes));
+    await scanRange(handle, reader, 0, hashOnly);
     outcome('read-again');
     return scanned();
   } catch (cause) {

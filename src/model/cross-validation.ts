@@ -17,7 +17,7 @@ import { multiply } from '../numeric/design-matrix.js';
 import { createRandomSource, shuffledIndices } from '../random.js';
 import { type CollapsedTrials, gatherCollapsed } from './collapsed-trials.js';
 import { EVERY_COVARIATE, collapseOver, mergedWithout } from './collapse.js';
-import { type TermDesign, buildDesign, designRowsOf } from './design.js';
+import { type TermDesign, buildDesign, designRowsOf, rowPredictor } from './design.js';
 import { fitLeastSquares } from './fit-least-squares.js';
 import type { CalibrationBin, CrossValidation, FoldResult } from './fit-report-types.js';
 import { linkFor } from './links.js';
@@ -61,8 +61,10 @@ function countAll(codes: Int32Array): number {
 }
 
 
-/** Ten equal-width bins of predicted probability: attempts, predicted and observed hits (prior-weighted). */
-/** Calibration-bin sums, row by row; {@link calibrationBins} turns them into the table. */
+/**
+ * Ten equal-width bins of predicted probability: attempts, predicted and observed hits
+ * (prior-weighted), added row by row; {@link calibrationBins} turns them into the table.
+ */
 export class CalibrationBins {
   readonly binWeight = new Float64Array(10);
   readonly binPredicted = new Float64Array(10);
@@ -132,12 +134,7 @@ function predictorAt(prepared: Prepared, indices: Int32Array, coefficients: Arra
   const product = new Float64Array(indices.length);
   for (let r = 0; r < indices.length; r += 1) {
     design.rowAt(indices[r] as number, x);
-    let sum = 0;
-    for (let j = 0; j < x.length; j += 1) {
-      const coefficient = coefficients[j] as number;
-      if (coefficient !== 0) sum += (x[j] as number) * coefficient;
-    }
-    product[r] = sum;
+    product[r] = rowPredictor(x, coefficients);
   }
   return product;
 }

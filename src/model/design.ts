@@ -124,6 +124,19 @@ export function designRows(terms: readonly TermName[], coding: DifficultyCoding)
   };
 }
 
+/**
+ * X b of one design row `x`, summed as `multiply` (numeric/design-matrix.ts) sums each row: columns
+ * in order, zero coefficients skipped. The same bits as multiplying the matrix.
+ */
+export function rowPredictor(x: Float64Array, coefficients: ArrayLike<number>): number {
+  let sum = 0;
+  for (let j = 0; j < x.length; j += 1) {
+    const coefficient = coefficients[j] as number;
+    if (coefficient !== 0) sum += (x[j] as number) * coefficient;
+  }
+  return sum;
+}
+
 /** A design row by row: `rowAt(i, out)` writes row i's entries into `out` (the whole design is never needed at once). */
 export interface DesignByRow {
   readonly rows: number;

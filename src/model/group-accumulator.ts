@@ -316,29 +316,33 @@ export class GroupAccumulator {
 
   /**
    * The kept rows' columns with room for `groups` rows: made at the first kept row for the rows
-   * expected, grown by half again should more come. Rows are kept from the first row on (see
-   * `keepDistinct`), so every group is in them.
+   * expected, grown as the other columns here grow ({@link withRoom}) should more come. Rows are
+   * kept from the first row on (see `keepDistinct`), so every group is in them.
    */
   private keptRoom(groups: number): KeptColumns {
     const kept = this.kept;
-    if (kept !== null && groups <= kept.latency.length) return kept;
-    const size = Math.max(groups, kept === null ? this.expectedRows : Math.ceil(kept.latency.length * 1.5));
-    const grown = <T extends Float64Array | Int32Array>(old: T | null | undefined, make: (size: number) => T): T => {
-      const next = make(size);
-      if (old !== null && old !== undefined) next.set(old);
-      return next;
-    };
-    const float = (size: number) => new Float64Array(size);
-    this.kept = {
-      latency: grown(kept?.latency, float),
-      scale: grown(kept?.scale, float),
-      difficulty: grown(kept?.difficulty, float),
-      successes: grown(kept?.successes, float),
-      attempts: grown(kept?.attempts, float),
-      weight: this.hasWeight ? grown(kept?.weight, float) : null,
-      player: this.hasPlayer ? grown(kept?.player, (size) => new Int32Array(size)) : null,
-    };
-    return this.kept;
+    if (kept === null) {
+      const size = Math.max(groups, this.expectedRows);
+      return (this.kept = {
+        latency: new Float64Array(size),
+        scale: new Float64Array(size),
+        difficulty: new Float64Array(size),
+        successes: new Float64Array(size),
+        attempts: new Float64Array(size),
+        weight: this.hasWeight ? new Float64Array(size) : null,
+        player: this.hasPlayer ? new Int32Array(size) : null,
+      });
+    }
+    if (groups <= kept.latency.length) return kept;
+    return (this.kept = {
+      latency: withRoom(kept.latency, groups),
+      scale: withRoom(kept.scale, groups),
+      difficulty: withRoom(kept.difficulty, groups),
+      successes: withRoom(kept.successes, groups),
+      attempts: withRoom(kept.attempts, groups),
+      weight: kept.weight === null ? null : withRoom(kept.weight, groups),
+      player: kept.player === null ? null : withRoom(kept.player, groups),
+    });
   }
 
   /** Each row's 32-bit key hash into `groupOf`. */
@@ -518,11 +522,11 @@ function touchRecords(records: Float64Array, groupOf: Int32Array, count: number,
 }
 
 /** `array` itself when it holds at least `length` entries, else a copy grown by doubling (at least 8,192 entries). */
-function withRoom(array: Float64Array, length: number): Float64Array {
+function withRoom<T extends Float64Array | Int32Array>(array: T, length: number): T {
   if (length <= array.length) return array;
   let size = Math.max(1 << 13, array.length * 2);
   while (size < length) size *= 2;
-  const next = new Float64Array(size);
+  const next = new (array.constructor as new (size: number) => T)(size);
   next.set(array);
   return next;
 }

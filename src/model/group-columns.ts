@@ -6,6 +6,7 @@
  * key columns as they are, the counts from the index's compact counts plus,
  * for the groups the hash table found, their records.
  */
+import { filled } from '../formats/row-buffer.js';
 import type { CollapsedTrials } from './collapsed-trials.js';
 
 /** Where a record holds what: doubles per record, and the offsets of the prior weight and the player (-1: not held). */
@@ -62,30 +63,24 @@ export interface KeptColumns {
   readonly player: Int32Array | null;
 }
 
-/** The first `length` entries: a view when the column is at least 7/8 full (no column held twice), else a trimmed copy (a view would carry the rest along wherever it is copied to). */
-function trimmed<T extends Float64Array | Int32Array>(column: T, length: number): T {
-  const view = column.subarray(0, length) as T;
-  return length * 8 >= column.length * 7 ? view : (view.slice() as T);
-}
-
 /**
- * The groups as columns when rows were kept as they came: the columns they were written to (no
- * copy), each trimmed to `groups`; the same columns as {@link columnsFromRecords} would give had each
+ * The groups as columns when rows were kept as they came: the columns they were written to, each
+ * cut to `groups` (`filled`: a view, or a trimmed copy of a column far from full); the same columns as {@link columnsFromRecords} would give had each
  * row a record.
  */
 export function columnsFromKept(kept: KeptColumns, groups: number, sourceRows: number, difficultyValue?: (stored: number) => number): CollapsedTrials {
-  const difficulty = trimmed(kept.difficulty, groups);
+  const difficulty = filled(kept.difficulty, groups);
   if (difficultyValue !== undefined) for (let g = 0; g < groups; g += 1) difficulty[g] = difficultyValue(difficulty[g] as number);
-  const attempts = trimmed(kept.attempts, groups);
+  const attempts = filled(kept.attempts, groups);
   return {
     rows: groups,
-    latency: trimmed(kept.latency, groups),
-    scale: trimmed(kept.scale, groups),
+    latency: filled(kept.latency, groups),
+    scale: filled(kept.scale, groups),
     difficulty,
-    player: kept.player === null ? null : trimmed(kept.player, groups),
-    successes: trimmed(kept.successes, groups),
+    player: kept.player === null ? null : filled(kept.player, groups),
+    successes: filled(kept.successes, groups),
     attempts,
-    weight: kept.weight === null ? unitWeights(attempts) : trimmed(kept.weight, groups),
+    weight: kept.weight === null ? unitWeights(attempts) : filled(kept.weight, groups),
     sourceRows,
   };
 }

@@ -19,7 +19,7 @@
  */
 import type { BinomialFitEstimated, BinomialFitRankDeficient, BinomialFitSeparated } from './binomial-fit-types.js';
 import { mergedOverPlayers } from './collapse.js';
-import { type TermDesign, buildDesign, designRowsOf } from './design.js';
+import { type TermDesign, buildDesign, designRowsOf, rowPredictor } from './design.js';
 import { robustBlock, scoreFactor } from './fit-binomial.js';
 import { linkFor } from './links.js';
 import { type Prepared, runBinomial } from './prepared-fit.js';
@@ -71,12 +71,7 @@ export function fitFullModel(prepared: Prepared, design: () => TermDesign, { fol
   const clusterScores = new Float64Array(clusters === null ? 0 : clusters.count * k);
   for (let i = 0; i < data.rows; i += 1) {
     byRow.rowAt(i, x);
-    // X b summed as multiply() sums it (columns in order, zero coefficients skipped).
-    let eta = 0;
-    for (let j = 0; j < k; j += 1) {
-      const coefficient = fit.coefficients[j] as number;
-      if (coefficient !== 0) eta += (x[j] as number) * coefficient;
-    }
+    const eta = rowPredictor(x, fit.coefficients);
     let mu: number;
     let complement: number;
     if (logit) {

@@ -156,6 +156,24 @@ describe('GroupAccumulator direct index (latency on a 0.01 ms grid)', () => {
     expect(differences(naiveGroups(trials), groupsOf(collapsed))).toEqual([]);
   });
 
+  it('keeps rows as they come past the rows it expected (merging off), every column as given', () => {
+    // 20,000 rows with weights and players against an expected 10 (4,096 rows reserved): the kept columns grow.
+    const trials = seededTrials(20_000, true, true);
+    const codes = trials.difficulty.kind === 'levels' ? trials.difficulty.codes : trials.difficulty.values;
+    const accumulator = new GroupAccumulator({ weight: true, player: true, merge: false, expectedRows: 10 });
+    accumulator.addRows({ latency: trials.latency, scale: trials.scale, difficulty: codes, weight: trials.weight, player: trials.player?.codes ?? null, successes: trials.successes, attempts: trials.attempts }, trials.rows);
+    const kept = accumulator.finish();
+    expect(kept.rows).toBe(20_000);
+    const same = (column: ArrayLike<number> | null, given: ArrayLike<number> | null) => expect(Array.from(column ?? [])).toEqual(Array.from(given ?? [Number.NaN]));
+    same(kept.latency, trials.latency);
+    same(kept.scale, trials.scale);
+    same(kept.difficulty, codes);
+    same(kept.weight, trials.weight);
+    same(kept.player, trials.player?.codes ?? null);
+    same(kept.successes, trials.successes);
+    same(kept.attempts, trials.attempts);
+  });
+
   it('treats -0 and 0 as one point, for latency and scale', () => {
     const trials: Trials = {
       file: 'zeros.csv',
